@@ -1,0 +1,191 @@
+/**
+ * Shared types of the scoring engine. Every host (add-in, batch command, sandbox) speaks these.
+ *
+ * Row results are struct-of-arrays (typed arrays indexed by data row, 0-based, header excluded)
+ * so that a 1,048,575-row sheet scores within the memory budget; explanations are produced on
+ * demand by `explainRow` rather than stored per row.
+ */
+
+/** An error value read from a spreadsheet cell, e.g. `#N/A`, `#VALUE!`, `#DIV/0!`. */
+export interface CellError {
+  readonly kind: 'error';
+  readonly code: string;
+}
+
+/** A raw cell as a source hands it over, before parsing. */
+export type RawCell = number | string | boolean | Date | CellError | null | undefined;
+
+/** Why a cell did not become a number. Order is stable: the numeric code is the index. */
+export const EXCLUSION_REASONS = [
+  'blank',
+  'error',
+  'boolean',
+  'date',
+  'text',
+  'non-finite',
+  'not-positive-for-log',
+] as const;
+export type ExclusionReason = (typeof EXCLUSION_REASONS)[number];
+
+/** Plain-words label of each reason, for notes and summaries. */
+export const EXCLUSION_LABELS: Record<ExclusionReason, string> = {
+  blank: 'blank cell',
+  error: 'error value (e.g. #N/A, #VALUE!)',
+  boolean: 'TRUE/FALSE instead of an amount',
+  date: 'a date, not an amount',
+  text: 'text that is not a number',
+  'non-finite': 'not a finite number (NaN or infinity)',
+  'not-positive-for-log': 'zero or negative amount (log scale needs amounts above 0)',
+};
+
+export type ParseResult =
+  | { readonly ok: true; readonly value: number }
+  | { readonly ok: false; readonly reason: ExclusionReason };
+
+export interface ParseOptions {
+  /** Treat `,` as the decimal separator and `.`/space as thousands separators ("1.234,50"). */
+  readonly decimalComma?: boolean;
+}
+
+export type MethodId = 'robust' | 'classic' | 'iqr';
+export type Direction = 'high' | 'low' | 'both';
+/** What happens to groups smaller than `minGroupSize`: score against the whole column, or leave unscored. */
+export type SmallGroupPolicy = 'pool' | 'skip';
+
+export interface ScoreOptions {
+  readonly method: MethodId;
+  /** Cutoff on the method's score; defaults per method (robust 3.5, classic 3, IQR k = 1.5). */
+  readonly cutoff?: number;
+  readonly direction: Direction;
+  /** Score ln(x) instead of x; amounts <= 0 are excluded with reason `not-positive-for-log`. */
+  readonly logScale: boolean;
+  readonly minGroupSize: number;
+  readonly smallGroups: SmallGroupPolicy;
+  readonly decimalComma?: boolean;
+}
+
+export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId } = {
+  method: 'robust',
+  direction: 'both',
+  logScale: false,
+  minGroupSize: 8,
+  smallGroups: 'pool',
+  decimalComma: false,
+};
+
+/** Which population a row was compared with. Numeric code = index. */
+export const POPULATIONS = ['none', 'group', 'column'] as const;
+export type Population = (typeof POPULATIONS)[number];
+
+/** A fallback the engine had to take for a group, reported per group. */
+export type Fallback =
+  /** MAD was 0; the scale is 1.2533 x mean absolute deviation around the median. */
+  | 'mad-zero-used-meanad'
+  /** MAD and mean absolute deviation were both 0: every value equals the centre, nothing flagged. */
+  | 'no-spread'
+  /** SD was 0 (classic): nothing flagged. */
+  | 'sd-zero'
+  /** IQR was 0: fences collapse to Q1/Q3; score measured in units of the column's IQR if >0, else not scored. */
+  | 'iqr-zero'
+  /** Group smaller than the minimum size: compared with the whole column. */
+  | 'small-pooled'
+  /** Group smaller than the minimum size: left unscored. */
+  | 'small-skipped'
+  /** Classic z cannot reach the cutoff in a group of this size ((n-1)/sqrt(n) <= cutoff, Shiffler 1988). */
+  | 'cutoff-unreachable';
+
+/** Statistics of one population (a group, or the whole column). NaN never appears: undefined stats are null. */
+export interface GroupStats {
+  /** Stable key: key column values joined by U+001F after trimming. */
+  readonly key: string;
+  /** What a reviewer reads, e.g. "CC-410 / Travel"; blank keys show as "(blank)". */
+  readonly label: string;
+  /** Key column values after trimming, one per group column. */
+  readonly keyParts: readonly string[];
+  /** Rows in the group (scored or excluded). */
+  readonly rows: number;
+  /** Numeric values used (after exclusions). */
+  readonly n: number;
+  readonly excluded: Readonly<Record<ExclusionReason, number>>;
+  readonly median: number | null;
+  readonly mad: number | null;
+  /** 1.4826 x MAD. */
+  readonly scaledMad: number | null;
+  readonly meanAbsDev: number | null;
+  readonly mean: number | null;
+  readonly sd: number | null;
+  readonly q1: number | null;
+  readonly q3: number | null;
+  /** Centre and scale the method used (median and scaled MAD / mean and SD / Q1..Q3 with IQR). On the log scale if logScale. */
+  readonly center: number | null;
+  readonly scale: number | null;
+  /** Values outside [lower, upper] are flagged (in the original units, even on log scale). null = no bound that side. */
+  readonly lower: number | null;
+  readonly upper: number | null;
+  readonly flagged: number;
+  readonly fallbacks: readonly Fallback[];
+  /** Which population this group's rows were scored against. */
+  readonly population: Population;
+  /** Largest |classic z| attainable in a sample of n, (n - 1)/sqrt(n); null when n < 2. */
+  readonly maxAttainableZ: number | null;
+}
+
+/** Results for one value column. Arrays are indexed by data row (0-based). */
+export interface ColumnScores {
+  readonly column: string;
+  readonly method: MethodId;
+  readonly cutoff: number;
+  readonly direction: Direction;
+  readonly logScale: boolean;
+  /** Parsed value (NaN where excluded). */
+  readonly values: Float64Array;
+  /** Score (NaN where not scored). Hosts must turn NaN into an empty cell / null. */
+  readonly scores: Float64Array;
+  /** 1 where flagged. */
+  readonly flagged: Uint8Array;
+  /** 0 = not excluded; otherwise 1 + index into EXCLUSION_REASONS. */
+  readonly exclusion: Uint8Array;
+  /** Index into `groups` for every row. */
+  readonly groupOf: Int32Array;
+  /** Index into POPULATIONS per row. */
+  readonly population: Uint8Array;
+  readonly groups: readonly GroupStats[];
+  /** The whole column as one population (used for pooled small groups). */
+  readonly pooled: GroupStats;
+  readonly excludedCounts: Readonly<Record<ExclusionReason, number>>;
+  readonly scoredRows: number;
+  readonly flaggedRows: number;
+}
+
+/** Input to the engine: a table of raw cells, by column. */
+export interface ScoreInput {
+  /** One array of raw cells per value column, all the same length (number of data rows). */
+  readonly valueColumns: readonly { readonly name: string; readonly cells: ArrayLike<RawCell> }[];
+  /** Zero or more key columns (e.g. cost centre, category), same length. */
+  readonly groupColumns: readonly { readonly name: string; readonly cells: ArrayLike<RawCell> }[];
+}
+
+export interface ScoreResult {
+  readonly options: Required<ScoreOptions>;
+  readonly rowCount: number;
+  readonly groupColumns: readonly string[];
+  readonly columns: readonly ColumnScores[];
+}
+
+/**
+ * What every source (Excel selection, .xlsx/.csv file, sandbox workbook) yields: header names and
+ * raw cells by column, plus where the data sits on its sheet so results can be written beside it.
+ */
+export interface SourceTable {
+  /** Human description of the source, e.g. "claims.xlsx, sheet Claims, A1:H5001". */
+  readonly source: string;
+  readonly sheetName: string;
+  readonly headers: readonly string[];
+  /** Column-major raw cells: columns[c][r] is data row r (0-based, header excluded) of column c. */
+  readonly columns: readonly (readonly RawCell[])[];
+  readonly rowCount: number;
+  /** 1-based sheet row of the header row. Data row r sits on sheet row headerRow + 1 + r. */
+  readonly headerRow: number;
+  /** 0-based sheet column index of the first column of the table. */
+  readonly firstColumn: number;
+}
