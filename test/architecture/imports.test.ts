@@ -1,0 +1,78 @@
+/**
+ * Keeps the import direction of ../shared/ARCHITECTURE.md true: each layer may import only the
+ * layers below it, pure layers import no Node/DOM/Office, and no browser bundle pulls in files or cli.
+ */
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { join, relative, resolve, dirname, sep } from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const root = resolve(__dirname, '../..');
+const src = join(root, 'src');
+
+/** Which of our layers each layer may import. */
+const allowed: Record<string, readonly string[]> = {
+  scoring: [],
+  demo: ['scoring'],
+  sandbox: [],
+  report: ['scoring'],
+  workbook: ['report', 'scoring'],
+  files: ['report', 'scoring', 'sandbox'],
+  taskpane: ['workbook', 'report', 'scoring'],
+  preview: ['taskpane', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
+  cli: ['files', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
+};
+/** Layers that must stay free of Node built-ins (pure, or shipped to the browser). */
+const noNode = ['scoring', 'demo', 'sandbox', 'report', 'workbook', 'taskpane', 'preview'];
+
+function walk(dir: string): string[] {
+  return readdirSync(dir).flatMap((name) => {
+    const p = join(dir, name);
+    return statSync(p).isDirectory() ? walk(p) : /\.(ts|tsx)$/.test(name) ? [p] : [];
+  });
+}
+
+function importsOf(file: string): string[] {
+  const text = readFileSync(file, 'utf8');
+  const out: string[] = [];
+  const re = /(?:import|export)\s[^'"]*?from\s*['"]([^'"]+)['"]|import\(\s*['"]([^'"]+)['"]\s*\)|^\s*import\s*['"]([^'"]+)['"]/gm;
+  for (let m = re.exec(text); m; m = re.exec(text)) out.push(m[1] ?? m[2] ?? m[3]);
+  return out;
+}
+
+const files = walk(src);
+
+describe('import direction (ARCHITECTURE.md)', () => {
+  it('finds the source tree', () => {
+    expect(files.length).toBeGreaterThan(3);
+  });
+
+  for (const file of files) {
+    const rel = relative(src, file);
+    const layer = rel.split(sep)[0];
+    it(`${rel} imports only layers below it`, () => {
+      expect(Object.keys(allowed), `unknown layer src/${layer}`).toContain(layer);
+      for (const spec of importsOf(file)) {
+        if (spec.startsWith('.')) {
+          const target = relative(src, resolve(dirname(file), spec)).split(sep)[0];
+          if (target === layer) continue;
+          expect(allowed[layer], `${rel} imports src/${target} (${spec})`).toContain(target);
+        } else if (noNode.includes(layer)) {
+          expect(spec.startsWith('node:') || ['fs', 'path', 'os', 'child_process', 'zlib', 'stream'].includes(spec), `${rel} imports Node module ${spec}`).toBe(false);
+        }
+      }
+    });
+  }
+
+  it('only src/workbook touches Excel.* or Office.* at run time', () => {
+    for (const file of files) {
+      const rel = relative(src, file);
+      const layer = rel.split(sep)[0];
+      if (layer === 'workbook' || layer === 'sandbox') continue;
+      // The task pane entry may call Office.onReady / hand Excel.run to the workbook layer.
+      if (rel === join('taskpane', 'index.tsx')) continue;
+      const code = readFileSync(file, 'utf8').replace(/\/\*[\s\S]*?\*\/|\/\/.*$/gm, '');
+      const uses = code.match(/\b(Excel|Office)\.(run|context|onReady|EventType)\b/g) ?? [];
+      expect(uses, `${rel} calls Office.js directly`).toEqual([]);
+    }
+  });
+});
