@@ -85,7 +85,7 @@ export type Fallback =
   | 'no-spread'
   /** SD was 0 (classic): nothing flagged. */
   | 'sd-zero'
-  /** IQR was 0: fences collapse to Q1/Q3; score measured in units of the column's IQR if >0, else not scored. */
+  /** IQR was 0: fences are the group's Q1/Q3 -/+ k x the whole column's IQR (score in units of the column's IQR) if that is > 0, else not scored. */
   | 'iqr-zero'
   /** Group smaller than the minimum size: compared with the whole column. */
   | 'small-pooled'
@@ -155,6 +155,12 @@ export interface ColumnScores {
   readonly excludedCounts: Readonly<Record<ExclusionReason, number>>;
   readonly scoredRows: number;
   readonly flaggedRows: number;
+  /**
+   * IQR method only (added, optional): per row, the largest k at which the row would still be
+   * flagged in the column's direction, i.e. (y - Q3)/IQR above, (Q1 - y)/IQR below (the larger for
+   * 'both'); NaN where not scored. Lets `countFlaggedAt` / `cutoffForBudget` work for IQR without a re-run.
+   */
+  readonly fenceMultiple?: Float64Array;
 }
 
 /** Input to the engine: a table of raw cells, by column. */

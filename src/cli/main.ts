@@ -1,0 +1,273 @@
+/**
+ * The command line: argument parsing, exit codes and messages only. The work is done by files
+ * (read/write), scoring and report, exactly as in the add-in.
+ *
+ * Exit codes: 0 success (flags found or not), 2 bad input or options (one line on stderr), 1 anything
+ * unexpected.
+ */
+import { mkdir, stat } from 'node:fs/promises';
+import { basename, dirname, extname, join, resolve } from 'node:path';
+import { scoreTable } from '../scoring/index.js';
+import { EXCLUSION_LABELS, EXCLUSION_REASONS, POPULATIONS, type RawCell, type ScoreResult } from '../scoring/types.js';
+import { buildPlan } from '../report/plan.js';
+import { CAUTION } from '../report/style.js';
+import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
+import { InputFileError, readTable, type ReadTable } from '../files/read.js';
+import { OutputFileError, writeScoredWorkbook } from '../files/write.js';
+import { writeDemoWorkbook } from '../files/demo.js';
+import { HELP, parseDemoArgs, parseScoreArgs, UsageError, type ScoreArgs } from './args.js';
+
+const LARGE_ROWS = 50_000;
+
+interface Io {
+  out: (s: string) => void;
+  err: (s: string) => void;
+  progress: boolean;
+}
+
+const defaultIo = (): Io => ({
+  out: (s) => void process.stdout.write(s),
+  err: (s) => void process.stderr.write(s),
+  progress: Boolean(process.stderr.isTTY),
+});
+
+/** Find a header by exact name, then ignoring case and surrounding spaces. */
+function findHeader(table: ReadTable, name: string, what: string): number {
+  let i = table.headers.indexOf(name);
+  if (i < 0) {
+    const want = name.trim().toLowerCase();
+    i = table.headers.findIndex((h) => h.trim().toLowerCase() === want);
+  }
+  if (i < 0) {
+    throw new UsageError(
+      `${what} column "${name}" not found in ${table.source}; headers are: ${table.headers.map((h) => `"${h}"`).join(', ')}`,
+    );
+  }
+  return i;
+}
+
+function defaultOut(input: string): string {
+  const dir = dirname(input);
+  return join(dir, `${basename(input, extname(input))}-tailmark.xlsx`);
+}
+
+function n(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}
+
+function toJson(result: ScoreResult, table: ReadTable, idIndex: number | null) {
+  const multi = result.columns.length > 1;
+  const rows: Record<string, unknown>[] = [];
+  const groups: Record<string, unknown>[] = [];
+  for (const col of result.columns) {
+    for (let r = 0; r < result.rowCount; r++) {
+      const g = col.groups[col.groupOf[r]];
+      const entry: Record<string, unknown> = {
+        row: r + 1,
+        group: g ? g.label : null,
+        value: n(col.values[r]),
+        score: n(col.scores[r]),
+        flagged: col.flagged[r] === 1,
+      };
+      if (idIndex !== null) entry.id = rawText(table.columns[idIndex][r]);
+      if (multi) entry.column = col.column;
+      entry.comparedWith = POPULATIONS[col.population[r]];
+      rows.push(entry);
+    }
+    for (const g of col.groups) {
+      const entry: Record<string, unknown> = {
+        key: g.label,
+        n: g.n,
+        center: g.center,
+        scale: g.scale,
+        lower: g.lower,
+        upper: g.upper,
+        flagged: g.flagged,
+      };
+      if (multi) entry.column = col.column;
+      groups.push(entry);
+    }
+  }
+  return { method: result.options.method, cutoff: result.options.cutoff, rows, groups };
+}
+
+function rawText(v: RawCell): string | null {
+  if (v === null || v === undefined) return null;
+  if (v instanceof Date) return v.toISOString();
+  if (typeof v === 'object') return v.code;
+  return String(v);
+}
+
+async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{ outPath: string | null; result: ScoreResult }> {
+  const progress = (msg: string) => {
+    if (io.progress) io.err(`\r${msg}\x1b[K`);
+  };
+  let big = false;
+  try {
+    big = (await stat(args.input)).size > 5_000_000;
+  } catch {
+    /* readTable reports a missing file */
+  }
+  if (big) progress(`reading ${basename(args.input)}…`);
+  const table = await readTable(args.input, args.sheet !== undefined ? { sheet: args.sheet } : {});
+  if (table.rowCount === 0) throw new InputFileError(`${table.source} has a header row but no data rows`);
+  const large = table.rowCount >= LARGE_ROWS;
+
+  const valueIdx = args.values.map((v) => findHeader(table, v, 'value'));
+  const groupIdx = args.groups.map((g) => findHeader(table, g, 'group'));
+  const idIndex = args.id !== null ? findHeader(table, args.id, 'id') : null;
+  for (const v of valueIdx) {
+    if (groupIdx.includes(v)) throw new UsageError(`"${table.headers[v]}" is given both as --value and as --group`);
+  }
+  if (new Set(valueIdx).size !== valueIdx.length) throw new UsageError('the same --value column is given twice');
+
+  if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
+  let result: ScoreResult;
+  try {
+    result = scoreTable(
+    {
+      valueColumns: valueIdx.map((i) => ({ name: table.headers[i], cells: table.columns[i] })),
+      groupColumns: groupIdx.map((i) => ({ name: table.headers[i], cells: table.columns[i] })),
+    },
+    {
+      method: args.method,
+      ...(args.cutoff !== undefined ? { cutoff: args.cutoff } : {}),
+      direction: args.direction,
+      logScale: args.log,
+      minGroupSize: args.minGroup,
+      smallGroups: args.smallGroups,
+      decimalComma: args.decimalComma,
+    },
+  );
+  } catch (e) {
+    // The engine names the bad option or column; to the user that is bad input.
+    throw new UsageError(e instanceof Error ? e.message : String(e));
+  }
+  for (const col of result.columns) {
+    if (col.values.every((x) => !Number.isFinite(x))) {
+      const why = EXCLUSION_REASONS.filter((r) => col.excludedCounts[r] > 0)
+        .map((r) => `${col.excludedCounts[r]} ${EXCLUSION_LABELS[r]}`)
+        .join('; ');
+      throw new UsageError(`value column "${col.column}" has no numbers in ${table.source}${why ? ` (${why})` : ''}`);
+    }
+  }
+
+  const wantWorkbook = !args.json || args.out !== undefined;
+  let outPath: string | null = null;
+  if (wantWorkbook) {
+    outPath = args.out ?? outDefault ?? defaultOut(args.input);
+    const plan = buildPlan(result, {
+      source: table.source,
+      when: new Date(),
+      table,
+      idColumn: idIndex !== null ? table.headers[idIndex] : null,
+    });
+    if (large) progress('writing…');
+    await writeScoredWorkbook(args.input, table, plan, outPath, {
+      force: args.force,
+      workbook: table.workbook,
+      onProgress: large ? (phase, f) => progress(`${phase} ${Math.round(f * 100)}%`) : undefined,
+    });
+    if (large) progress('');
+    if (io.progress && large) io.err('\n');
+  }
+
+  if (args.json) {
+    io.out(`${JSON.stringify(toJson(result, table, idIndex), null, 2)}\n`);
+    if (outPath) io.err(`wrote ${outPath}\n`);
+  } else {
+    const flagged = new Set<number>();
+    for (const col of result.columns) for (let r = 0; r < result.rowCount; r++) if (col.flagged[r]) flagged.add(r);
+    const groups = result.columns[0].groups.length;
+    io.out(
+      `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
+        `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
+        `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
+        `Wrote ${outPath}\n${CAUTION}\n`,
+    );
+  }
+  return { outPath, result };
+}
+
+async function runDemo(argv: readonly string[], io: Io): Promise<number> {
+  const args = parseDemoArgs(argv);
+  let inputPath: string;
+  if (args.out === undefined) inputPath = join('out', 'demo-claims.xlsx');
+  else if (extname(args.out).toLowerCase() === '.xlsx') inputPath = args.out;
+  else inputPath = join(args.out, 'demo-claims.xlsx');
+  const scoredPath = join(dirname(inputPath), `${basename(inputPath, '.xlsx')}-scored.xlsx`);
+  // The default files are the demo's own and are replaced on each run; elsewhere ask for --force.
+  const force = args.force || args.out === undefined;
+  await mkdir(dirname(resolve(inputPath)), { recursive: true });
+  if (!force) {
+    for (const p of [inputPath, scoredPath]) {
+      const there = await stat(p).then(() => true, () => false);
+      if (there) throw new OutputFileError(`${p} already exists; choose another --out or add --force to replace it`);
+    }
+  }
+  await writeDemoWorkbook(inputPath, demoClaims());
+  const { result } = await runScore(
+    {
+      input: inputPath,
+      values: ['Amount'],
+      groups: ['Cost centre', 'Category'],
+      id: 'Claim ID',
+      method: 'robust',
+      cutoff: undefined,
+      direction: 'both',
+      minGroup: 8,
+      smallGroups: 'pool',
+      log: false,
+      decimalComma: false,
+      sheet: DEMO_SHEET,
+      out: scoredPath,
+      force: true,
+      json: false,
+    },
+    { ...io, out: () => {} },
+  );
+  const col = result.columns[0];
+  io.out(
+    `Demo claims (invented):  ${inputPath}\n` +
+      `Scored workbook:         ${scoredPath}\n` +
+      `${col.flaggedRows} of ${result.rowCount} claims flagged (robust z, cutoff ${result.options.cutoff}, groups Cost centre + Category).\n` +
+      `${CAUTION}\n`,
+  );
+  return 0;
+}
+
+export async function main(argv: string[], ioOverride?: Partial<Io>): Promise<number> {
+  const io: Io = { ...defaultIo(), ...ioOverride };
+  const [command, ...rest] = argv;
+  try {
+    if (command === undefined) throw new UsageError('no command given; try tailmark --help');
+    if (command === '--help' || command === '-h' || command === 'help') {
+      io.out(HELP);
+      return 0;
+    }
+    if (rest.includes('--help') || rest.includes('-h')) {
+      io.out(HELP);
+      return 0;
+    }
+    switch (command) {
+      case 'score':
+        await runScore(parseScoreArgs(rest), io);
+        return 0;
+      case 'demo':
+        return await runDemo(rest, io);
+      case 'sandbox': {
+        const m = await import('./sandbox-command.js');
+        return await m.runSandboxCommand(rest);
+      }
+      default:
+        throw new UsageError(`unknown command "${command}"; commands: score, demo, sandbox (see tailmark --help)`);
+    }
+  } catch (e) {
+    if (e instanceof UsageError || e instanceof InputFileError || e instanceof OutputFileError) {
+      io.err(`tailmark: ${e.message}\n`);
+      return 2;
+    }
+    io.err(`tailmark: unexpected error: ${e instanceof Error ? e.message : String(e)}\n`);
+    return 1;
+  }
+}

@@ -1,0 +1,290 @@
+/**
+ * Write a scored workbook (Node): a NEW .xlsx holding the input sheet as it was (values, formulas,
+ * formats, the user's own rules) plus our result columns to the right of the data, our highlight
+ * rules, a status dropdown and the notes sheet. The input file is never written.
+ *
+ * Strings are written as shared-string text cells, so a value beginning with = + - @ stays text and
+ * never becomes a formula.
+ */
+import { access, rename, rm } from 'node:fs/promises';
+import { realpathSync } from 'node:fs';
+import { basename, dirname, join, resolve } from 'node:path';
+import ExcelJS from 'exceljs';
+import type { RawCell, SourceTable } from '../scoring/types.js';
+import type { Plan, PlanCell, Swatch } from '../report/types.js';
+import { ruleFormula, isTailmarkFormula } from '../report/rules.js';
+import { PALETTE, REVIEW_STATUSES } from '../report/style.js';
+import { columnLetter, fileKind, InputFileError, readTable, type ReadTable } from './read.js';
+
+export class OutputFileError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'OutputFileError';
+  }
+}
+
+export interface WriteOptions {
+  /** Replace outPath if it exists (never the input). */
+  readonly force?: boolean;
+  /** The workbook `readTable` returned (xlsx), to avoid reading the input twice. It is modified. */
+  readonly workbook?: unknown;
+  readonly onProgress?: (phase: 'writing' | 'saving', fraction: number) => void;
+}
+
+export interface WriteSummary {
+  readonly outPath: string;
+  readonly sheetName: string;
+  /** Header and column letter of each plan column as placed. */
+  readonly placed: readonly { readonly header: string; readonly column: string }[];
+  readonly notesSheet: string;
+}
+
+interface SheetValidations {
+  model: Record<string, unknown>;
+  add(address: string, validation: ExcelJS.DataValidation): void;
+}
+
+function argb(hex: string): { argb: string } {
+  return { argb: `FF${hex.toUpperCase()}` };
+}
+
+function solid(sw: Swatch): ExcelJS.Fill {
+  return { type: 'pattern', pattern: 'solid', fgColor: argb(sw.fill), bgColor: argb(sw.fill) };
+}
+
+function sameFile(a: string, b: string): boolean {
+  const ra = resolve(a);
+  const rb = resolve(b);
+  if (ra === rb) return true;
+  try {
+    return realpathSync(ra) === realpathSync(rb);
+  } catch {
+    return false;
+  }
+}
+
+async function exists(p: string): Promise<boolean> {
+  try {
+    await access(p);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** A CSV field as a sheet value: plain decimal numbers become numbers, everything else stays text. */
+function csvFieldValue(f: string): ExcelJS.CellValue {
+  if (f === '') return null;
+  if (/^-?(0|[1-9]\d{0,14})(\.\d{1,10})?$/.test(f)) return Number(f);
+  return f;
+}
+
+function isEmptyValue(v: ExcelJS.CellValue): boolean {
+  return v === null || v === undefined || v === '';
+}
+
+/** The plan's cells as sheet values: strings stay strings (text), null is an empty cell. */
+function planValue(v: PlanCell): ExcelJS.CellValue {
+  return v === null ? null : v;
+}
+
+function rawToCellText(v: RawCell): string {
+  if (v === null || v === undefined) return '';
+  if (typeof v === 'object' && !(v instanceof Date)) return v.code;
+  return String(v);
+}
+
+export async function writeScoredWorkbook(
+  inputPath: string,
+  table: SourceTable,
+  plan: Plan,
+  outPath: string,
+  options: WriteOptions = {},
+): Promise<WriteSummary> {
+  if (fileKind(outPath) !== 'xlsx') throw new OutputFileError(`--out must end in .xlsx; got ${outPath}`);
+  if (sameFile(inputPath, outPath)) throw new OutputFileError(`refusing to write over the input file ${basename(inputPath)}; choose another --out`);
+  if (!options.force && (await exists(outPath))) {
+    throw new OutputFileError(`${outPath} already exists; choose another --out or add --force to replace it`);
+  }
+  if (!(await exists(dirname(resolve(outPath))))) throw new OutputFileError(`folder for --out does not exist: ${dirname(resolve(outPath))}`);
+
+  const kind = fileKind(inputPath);
+  let wb: ExcelJS.Workbook;
+  let ws: ExcelJS.Worksheet;
+  if (kind === 'xlsx') {
+    wb = (options.workbook as ExcelJS.Workbook | undefined) ?? ((await readTable(inputPath, { sheet: table.sheetName })).workbook as ExcelJS.Workbook);
+    const found = wb.getWorksheet(table.sheetName);
+    if (!found) throw new InputFileError(`sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
+    ws = found;
+  } else if (kind === 'csv') {
+    const again = (table as ReadTable).csvRecords ?? (await readTable(inputPath)).csvRecords ?? [];
+    wb = new ExcelJS.Workbook();
+    ws = wb.addWorksheet(table.sheetName);
+    again.forEach((rec, r) => {
+      const row = ws.getRow(r + 1);
+      rec.forEach((f, c) => {
+        const v = csvFieldValue(f);
+        if (v !== null) row.getCell(c + 1).value = v;
+      });
+    });
+  } else {
+    throw new InputFileError(`unsupported input type: ${inputPath}`);
+  }
+  wb.creator = wb.creator || 'Tailmark';
+
+  const headerRow = table.headerRow;
+  const firstDataRow = headerRow + 1;
+  const lastDataRow = headerRow + table.rowCount;
+  const tableEnd = table.firstColumn + table.headers.length; // 0-based, first column after the table
+
+  // Re-run: our columns already in the table are reused in place (status and notes keep their marks).
+  const existing = new Map<string, number>();
+  table.headers.forEach((h, i) => existing.set(h, table.firstColumn + i));
+
+  const isFree = (col0: number): boolean => {
+    for (let r = headerRow; r <= Math.max(lastDataRow, headerRow); r++) {
+      if (!isEmptyValue(ws.getRow(r).getCell(col0 + 1).value)) return false;
+    }
+    return true;
+  };
+  const needNew = plan.columns.filter((c) => !existing.has(c.header)).length;
+  let start = tableEnd;
+  for (;;) {
+    let ok = true;
+    for (let k = 0; k < needNew; k++) {
+      if (!isFree(start + k)) {
+        start = start + k + 1;
+        ok = false;
+        break;
+      }
+    }
+    if (ok) break;
+  }
+
+  const placed: { header: string; column: string; index: number }[] = [];
+  let next = start;
+  for (const col of plan.columns) {
+    const index = existing.get(col.header) ?? next++;
+    placed.push({ header: col.header, column: columnLetter(index), index });
+  }
+  if (placed.some((p) => p.index >= 16384)) throw new OutputFileError('the sheet has no room for the result columns (past column XFD)');
+
+  const total = plan.columns.length * Math.max(table.rowCount, 1);
+  let done = 0;
+  plan.columns.forEach((col, ci) => {
+    const c = placed[ci].index + 1;
+    const reused = existing.has(col.header);
+    const keepMarks = reused && (col.kind === 'status' || col.kind === 'note');
+    const head = ws.getRow(headerRow).getCell(c);
+    head.value = col.header;
+    head.font = { bold: true, color: argb(PALETTE.header.font) };
+    head.fill = solid(PALETTE.header);
+    const column = ws.getColumn(c);
+    if (col.width) column.width = col.width;
+    const priorCells = keepMarks ? table.columns[placed[ci].index - table.firstColumn] : undefined;
+    for (let r = 0; r < table.rowCount; r++) {
+      const cell = ws.getRow(firstDataRow + r).getCell(c);
+      if (priorCells && rawToCellText(priorCells[r]).trim() !== '') {
+        // keep the reviewer's mark as it is
+      } else {
+        cell.value = planValue(col.values[r] ?? null);
+      }
+      if (col.numberFormat) cell.numFmt = col.numberFormat;
+    }
+    done += table.rowCount;
+    options.onProgress?.('writing', done / total);
+  });
+
+  // Highlight rules: drop our old ones (recognised by marker), keep the user's, add ours.
+  const flagColumns = plan.columns.map((c, i) => (c.kind === 'flag' ? placed[i].column : null)).filter((c): c is string => c !== null);
+  const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
+  if (statusIdx >= 0 && table.rowCount > 0) {
+    const statusColumn = placed[statusIdx].column;
+    const model = ws as unknown as { conditionalFormattings?: { ref: string; rules: { formulae?: unknown[] }[] }[] };
+    if (Array.isArray(model.conditionalFormattings)) {
+      model.conditionalFormattings = model.conditionalFormattings.filter(
+        (cf) => !cf.rules.some((rule) => (rule.formulae ?? []).some((f) => typeof f === 'string' && isTailmarkFormula(f))),
+      );
+    }
+    const lastCol = Math.max(...placed.map((p) => p.index));
+    const ref = `${columnLetter(table.firstColumn)}${firstDataRow}:${columnLetter(lastCol)}${lastDataRow}`;
+    ws.addConditionalFormatting({
+      ref,
+      rules: plan.rules.map((rule) => ({
+        type: 'expression' as const,
+        priority: rule.priority,
+        formulae: [ruleFormula(rule, { firstDataRow, flagColumns, statusColumn }).replace(/^=/, '')],
+        style: { fill: solid(rule.swatch), font: { color: argb(rule.swatch.font) } },
+      })),
+    });
+    // Our dropdown replaces any per-cell validation a previous run left in the status column.
+    // ExcelJS has worksheet.dataValidations at runtime but not in its type definitions.
+    const dv = (ws as unknown as { dataValidations: SheetValidations }).dataValidations;
+    for (const address of Object.keys(dv.model)) {
+      const m = /^\$?([A-Z]+)\$?\d+(?::\$?([A-Z]+)\$?\d+)?$/.exec(address);
+      if (m && m[1] === statusColumn && (m[2] === undefined || m[2] === statusColumn)) delete dv.model[address];
+    }
+    const labels = REVIEW_STATUSES.map((s) => s.label).join(',');
+    dv.add(`${statusColumn}${firstDataRow}:${statusColumn}${lastDataRow}`, {
+      type: 'list',
+      allowBlank: true,
+      formulae: [`"${labels}"`],
+      showErrorMessage: true,
+      errorStyle: 'warning',
+      errorTitle: 'Tailmark status',
+      error: `Pick one of: ${REVIEW_STATUSES.map((s) => s.label).join(', ')}`,
+    });
+  }
+
+  // Notes sheet: replaced on a re-run when it is ours (it starts with our first section title);
+  // a sheet of the user's that happens to have the same name is left alone and ours gets a suffix.
+  let notesName = plan.notes.name;
+  const firstTitle = plan.notes.sections[0]?.title;
+  for (let k = 2; ; k++) {
+    const old = wb.getWorksheet(notesName);
+    if (!old) break;
+    if (firstTitle !== undefined && old.getCell('A1').value === firstTitle) {
+      wb.removeWorksheet(old.id);
+      break;
+    }
+    notesName = `${plan.notes.name} (${k})`;
+  }
+  const notes = wb.addWorksheet(notesName);
+  let r = 1;
+  let widest = 1;
+  for (const section of plan.notes.sections) {
+    const t = notes.getRow(r).getCell(1);
+    t.value = section.title;
+    t.font = { bold: true, size: 12, color: argb(PALETTE.title.font) };
+    t.fill = solid(PALETTE.title);
+    r++;
+    section.rows.forEach((cells, i) => {
+      const row = notes.getRow(r);
+      cells.forEach((v, c) => {
+        const cell = row.getCell(c + 1);
+        cell.value = planValue(v);
+        if (section.table && i === 0) {
+          cell.font = { bold: true };
+          cell.fill = solid(PALETTE.header);
+        }
+      });
+      widest = Math.max(widest, cells.length);
+      r++;
+    });
+    r++;
+  }
+  notes.getColumn(1).width = 34;
+  for (let c = 2; c <= widest; c++) notes.getColumn(c).width = 16;
+
+  options.onProgress?.('saving', 0);
+  const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);
+  try {
+    await wb.xlsx.writeFile(tmp);
+    await rename(tmp, outPath);
+  } catch (e) {
+    await rm(tmp, { force: true });
+    throw new OutputFileError(`cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
+  }
+  options.onProgress?.('saving', 1);
+  return { outPath, sheetName: ws.name, placed: placed.map(({ header, column }) => ({ header, column })), notesSheet: notes.name };
+}

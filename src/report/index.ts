@@ -1,0 +1,15 @@
+export * from './types.js';
+export { buildPlan, type PlanContext } from './plan.js';
+export { HIGHLIGHT_RULES, RULE_MARKER_PREFIX, ruleFormula, isTailmarkFormula, type RuleRefs } from './rules.js';
+export {
+  CAUTION,
+  FLAG_WORDS,
+  NOTES_SHEET_NAME,
+  NOTE_HEADER,
+  PALETTE,
+  REVIEW_STATUSES,
+  STATUS_HEADER,
+  resultHeaders,
+  statusLabel,
+  type ReviewState,
+} from './style.js';

@@ -1,0 +1,305 @@
+/**
+ * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
+ * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
+ */
+import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
+import {
+  EXCLUSION_LABELS,
+  EXCLUSION_REASONS,
+  type ColumnScores,
+  type Fallback,
+  type GroupStats,
+  type MethodId,
+  type Population,
+  type ScoreResult,
+  type SourceTable,
+} from '../scoring/types.js';
+import type { NotesSection, Plan, PlanCell, PlanColumn, RunLogEntry } from './types.js';
+import { HIGHLIGHT_RULES } from './rules.js';
+import {
+  CAUTION,
+  FLAG_WORDS,
+  NOTES_SHEET_NAME,
+  NOTE_HEADER,
+  REVIEW_STATUSES,
+  STATUS_HEADER,
+  resultHeaders,
+  statusLabel,
+} from './style.js';
+
+export interface PlanContext {
+  /** Where the data came from, e.g. "claims.xlsx, sheet Claims, A1:G601" or "Claims!A1:G601". */
+  readonly source: string;
+  readonly when: Date;
+  readonly table: SourceTable;
+  readonly idColumn?: string | null;
+}
+
+const METHOD_WORDS: Record<MethodId, string> = {
+  robust:
+    'Robust z-score: (amount - group median) / (1.4826 x MAD), where MAD is the median absolute deviation ' +
+    'from the median. A few very large claims barely move the median or the MAD, so they cannot hide each other.',
+  classic:
+    'Classic z-score: (amount - group mean) / group standard deviation. Large claims raise both the mean and the ' +
+    'standard deviation, so several of them together can hide each other (masking).',
+  iqr:
+    'Interquartile fences: an amount is flagged below Q1 - k x IQR or above Q3 + k x IQR, with quartiles computed ' +
+    'as QUARTILE.INC does (Hyndman & Fan type 7). The score is the distance beyond the nearer quartile in IQRs.',
+};
+
+const FALLBACK_WORDS: Record<Fallback, string> = {
+  'mad-zero-used-meanad': 'MAD was 0 (most amounts identical); used 1.2533 x mean absolute deviation instead',
+  'no-spread': 'all amounts equal; nothing can be flagged',
+  'sd-zero': 'standard deviation was 0; nothing can be flagged',
+  'iqr-zero': 'IQR was 0; fences sit at Q1 and Q3',
+  'small-pooled': 'group below the minimum size; compared with the whole column',
+  'small-skipped': 'group below the minimum size; left unscored',
+  'cutoff-unreachable': 'group too small for classic z to reach the cutoff',
+};
+
+const POPULATION_WORDS: Record<Population, string> = {
+  none: 'not scored',
+  group: 'its own group',
+  column: 'the whole column',
+};
+
+/** Round for display in the notes table: 2 decimals for ordinary amounts, 4 significant digits for small ones. */
+function tidy(x: number | null): number | null {
+  if (x === null || !Number.isFinite(x)) return null;
+  if (Math.abs(x) >= 1 || x === 0) return Math.round(x * 100) / 100;
+  return Number(x.toPrecision(4));
+}
+
+function round2(x: number): number | null {
+  return Number.isFinite(x) ? Math.round(x * 100) / 100 : null;
+}
+
+/** 0-based column index -> letters. */
+function letters(index: number): string {
+  let n = index + 1;
+  let s = '';
+  while (n > 0) {
+    const r = (n - 1) % 26;
+    s = String.fromCharCode(65 + r) + s;
+    n = Math.floor((n - 1) / 26);
+  }
+  return s;
+}
+
+function tableRange(t: SourceTable): string {
+  const last = t.firstColumn + Math.max(t.headers.length, 1) - 1;
+  return `${letters(t.firstColumn)}${t.headerRow}:${letters(last)}${t.headerRow + t.rowCount}`;
+}
+
+function directionWords(d: ScoreResult['options']['direction']): string {
+  return d === 'high' ? 'high side only' : d === 'low' ? 'low side only' : 'both sides';
+}
+
+function flagWord(col: ColumnScores, r: number): PlanCell {
+  if (!col.flagged[r]) return null;
+  const s = col.scores[r];
+  if (Number.isFinite(s)) return s < 0 ? FLAG_WORDS.low : FLAG_WORDS.high;
+  const g = col.population[r] === 2 ? col.pooled : col.groups[col.groupOf[r]];
+  const v = col.values[r];
+  return g && g.lower !== null && v < g.lower ? FLAG_WORDS.low : FLAG_WORDS.high;
+}
+
+function groupRow(g: GroupStats): PlanCell[] {
+  return [
+    g.label,
+    g.rows,
+    g.n,
+    tidy(g.median),
+    tidy(g.mad),
+    tidy(g.scaledMad),
+    tidy(g.mean),
+    tidy(g.sd),
+    tidy(g.q1),
+    tidy(g.q3),
+    tidy(g.lower),
+    tidy(g.upper),
+    g.flagged,
+    g.fallbacks.length ? g.fallbacks.map((f) => FALLBACK_WORDS[f]).join('; ') : '',
+    POPULATION_WORDS[g.population],
+  ];
+}
+
+const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.label > b.label ? 1 : 0);
+
+const GROUP_TABLE_HEADER: PlanCell[] = [
+  'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
+  'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with',
+];
+
+/** Build the plan of a run. */
+export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
+  const { options } = result;
+  const rows = result.rowCount;
+  const columns: PlanColumn[] = [];
+  const anyFlag = new Uint8Array(rows);
+  const anyScore = new Uint8Array(rows);
+
+  result.columns.forEach((col) => {
+    const h = resultHeaders(col.column);
+    const score: PlanCell[] = new Array(rows);
+    const flag: PlanCell[] = new Array(rows);
+    const reason: PlanCell[] = new Array(rows);
+    for (let r = 0; r < rows; r++) {
+      score[r] = round2(col.scores[r]);
+      flag[r] = flagWord(col, r);
+      reason[r] = explainRow(result, col, r);
+      if (col.flagged[r]) anyFlag[r] = 1;
+      if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
+    }
+    columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
+    columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reason, width: 60 });
+  });
+  const open = statusLabel('open');
+  const status: PlanCell[] = new Array(rows);
+  const note: PlanCell[] = new Array(rows);
+  let flaggedRows = 0;
+  let scoredRows = 0;
+  for (let r = 0; r < rows; r++) {
+    status[r] = anyFlag[r] ? open : null;
+    note[r] = null;
+    flaggedRows += anyFlag[r];
+    scoredRows += anyScore[r];
+  }
+  columns.push({ header: STATUS_HEADER, kind: 'status', valueColumn: null, values: status, width: 16 });
+  columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: 32 });
+
+  const when = ctx.when.toISOString();
+  const methodName = options.method === 'robust' ? 'robust z (median/MAD)' : options.method === 'classic' ? 'classic z (mean/SD)' : 'IQR fences';
+  const log: RunLogEntry = {
+    when,
+    source: ctx.source,
+    method: methodName,
+    cutoff: options.cutoff,
+    rowsScored: scoredRows,
+    flagged: flaggedRows,
+  };
+
+  const sections: NotesSection[] = [];
+  sections.push({
+    title: 'What was done',
+    rows: [
+      [
+        `Each amount in ${result.columns.map((c) => `"${c.column}"`).join(', ')} was compared with the other claims of its peer group ` +
+          (result.groupColumns.length ? `(same ${result.groupColumns.join(' and ')})` : '(no group columns: the whole column is one group)') +
+          '. Claims far from their group were flagged for review.',
+      ],
+      [METHOD_WORDS[options.method]],
+      [`${scoredRows} of ${rows} rows scored; ${flaggedRows} flagged.`],
+    ],
+  });
+  sections.push({
+    title: 'How the cutoff was chosen and what it means',
+    rows: [
+      [describeCutoff(options.method, options.cutoff, options.direction)],
+      [cutoffOrigin(result)],
+      ['The same settings on next period\'s sheet give comparable flags; change the cutoff only with a reason you can record here.'],
+    ],
+  });
+  sections.push({
+    title: 'Parameters',
+    table: true,
+    rows: [
+      ['Parameter', 'Value'],
+      ['Method', methodName],
+      ['Cutoff', options.cutoff],
+      ['Direction', directionWords(options.direction)],
+      ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
+      ['Minimum group size', options.minGroupSize],
+      ['Smaller groups', options.smallGroups === 'pool' ? 'compared with the whole column' : 'left unscored'],
+      ['Decimal comma', options.decimalComma ? 'yes ("1.234,50" read as 1234.5)' : 'no'],
+      ['Value columns', result.columns.map((c) => c.column).join(', ')],
+      ['Group columns', result.groupColumns.length ? result.groupColumns.join(', ') : '(none)'],
+      ['Claim ID column', ctx.idColumn ?? '(none)'],
+    ],
+  });
+  for (const col of result.columns) {
+    sections.push({
+      title: `Groups: ${col.column}`,
+      table: true,
+      rows: [GROUP_TABLE_HEADER, ...[...col.groups].sort(byLabel).map(groupRow), groupRow(col.pooled)],
+    });
+  }
+  const excludedRows: PlanCell[][] = [['Column', 'Reason', 'Cells']];
+  for (const col of result.columns) {
+    for (const reason of EXCLUSION_REASONS) {
+      const count = col.excludedCounts[reason];
+      if (count > 0) excludedRows.push([col.column, EXCLUSION_LABELS[reason], count]);
+    }
+  }
+  if (excludedRows.length === 1) excludedRows.push(['(all columns)', 'no cells were left out', 0]);
+  sections.push({ title: 'Cells left out', table: true, rows: excludedRows });
+
+  const unreachable: PlanCell[][] = [['Column', 'Group', 'n', 'Largest possible |z| = (n-1)/sqrt(n)', 'Cutoff']];
+  for (const col of result.columns) {
+    for (const g of col.groups) {
+      if (g.fallbacks.includes('cutoff-unreachable')) {
+        unreachable.push([col.column, g.label, g.n, g.maxAttainableZ === null ? null : Math.round(g.maxAttainableZ * 1000) / 1000, col.cutoff]);
+      }
+    }
+  }
+  sections.push({
+    title: 'Groups where the cutoff cannot be reached',
+    table: unreachable.length > 1,
+    rows:
+      unreachable.length > 1
+        ? [
+            ...unreachable,
+            ['In a group of n amounts no classic z-score can exceed (n-1)/sqrt(n) (Shiffler, 1988), so these groups can never flag a claim with this cutoff.'],
+          ]
+        : [
+            [
+              options.method === 'classic'
+                ? 'None: every scored group is large enough for classic z to reach the cutoff.'
+                : 'Not applicable to this method (the limit (n-1)/sqrt(n), Shiffler 1988, concerns classic z-scores).',
+            ],
+          ],
+  });
+  sections.push({
+    title: 'Review statuses',
+    table: true,
+    rows: [['Status', 'Meaning'], ...REVIEW_STATUSES.map((s) => [s.label, s.meaning])],
+  });
+  sections.push({
+    title: 'Source and time of run',
+    table: true,
+    rows: [
+      ['Item', 'Value'],
+      ['Source', ctx.source],
+      ['Sheet', ctx.table.sheetName],
+      ['Data range (with header)', tableRange(ctx.table)],
+      ['Data rows', rows],
+      ['Time of run (UTC)', when],
+      ['Rows scored', scoredRows],
+      ['Rows flagged', flaggedRows],
+    ],
+  });
+  sections.push({ title: 'Caution', rows: [[CAUTION]] });
+
+  return {
+    columns,
+    statuses: REVIEW_STATUSES,
+    rules: HIGHLIGHT_RULES,
+    notes: { name: NOTES_SHEET_NAME, sections },
+    log,
+    caution: CAUTION,
+  };
+}
+
+function cutoffOrigin(result: ScoreResult): string {
+  const { method, cutoff } = result.options;
+  const origin: Record<MethodId, string> = {
+    robust: 'Iglewicz and Hoaglin (1993) recommend 3.5 for modified (robust) z-scores.',
+    classic: 'A cutoff of 3 standard deviations is common practice (no single published source).',
+    iqr: 'Tukey (1977) drew fences at 1.5 x IQR beyond the quartiles.',
+  };
+  const def = defaultCutoff(method);
+  return cutoff === def
+    ? `This is the default cutoff for the method. ${origin[method]}`
+    : `The cutoff was set for this run (default for the method: ${def}). ${origin[method]}`;
+}

@@ -1,0 +1,87 @@
+import { formatCutoff, formatNumber, formatScore } from './format.js';
+import { EXCLUSION_LABELS, EXCLUSION_REASONS, type ColumnScores, type Direction, type Fallback, type GroupStats, type ScoreResult } from './types.js';
+
+const directionWords = (d: Direction): string => (d === 'both' ? 'both directions' : d === 'high' ? 'high side only' : 'low side only');
+
+const FALLBACK_WORDS: Record<Fallback, string> = {
+  'mad-zero-used-meanad': 'More than half the values share the median (MAD = 0), so the scale is 1.2533 x the mean absolute deviation around the median instead.',
+  'no-spread': 'Every value equals the median (no spread), so nothing can be flagged.',
+  'sd-zero': 'The standard deviation is 0 (all values equal), so nothing can be flagged.',
+  'iqr-zero': "The group's IQR is 0, so the fences use the whole column's IQR as the unit.",
+  'small-pooled': '',
+  'small-skipped': '',
+  'cutoff-unreachable': 'In a group of this size classic z can never pass the cutoff ((n - 1)/sqrt(n) <= cutoff, Shiffler 1988).',
+};
+
+const q = (label: string): string => `"${label}"`;
+
+/**
+ * One row's result in plain words with its numbers, e.g.
+ * `Amount 1,840.00 is 6.2 robust z above the median of its group "CC-410 / Travel" (median 212.00,
+ * scaled MAD 61.30, n = 24); cutoff 3.5, both directions. Flagged.`
+ * Says why an excluded row was not scored, that a pooled row was compared with the whole column
+ * (group n < minimum), that a skipped row was left unscored, and which fallback was used.
+ * Amounts have 2 decimals with thousands separators; scores 1-2 decimals. `row` is 0-based.
+ */
+export function explainRow(result: ScoreResult, col: ColumnScores, row: number): string {
+  if (!(row >= 0 && row < col.scores.length) || !Number.isInteger(row)) {
+    return `Row ${row} is outside the table (data rows 0 to ${col.scores.length - 1}).`;
+  }
+  const g = col.groups[col.groupOf[row]];
+  const groupText = result.groupColumns.length === 0 ? 'the whole column' : `its group ${q(g.label)}`;
+  const name = col.column;
+  const e = col.exclusion[row];
+  if (e !== 0) {
+    const reason = EXCLUSION_REASONS[e - 1];
+    const where = result.groupColumns.length === 0 ? '' : ` (group ${q(g.label)})`;
+    return `${name} not scored: ${EXCLUSION_LABELS[reason]}${where}.`;
+  }
+  const v = col.values[row];
+  const amount = `${name} ${formatNumber(v)}`;
+  const pop = col.population[row];
+  const min = result.options.minGroupSize;
+  if (pop === 0) {
+    if (g.fallbacks.includes('small-skipped') || g.fallbacks.includes('small-pooled')) {
+      return `${amount} was left unscored: ${groupText} has n = ${g.n} usable values, fewer than the minimum ${min}.`;
+    }
+    const why = g.fallbacks.includes('iqr-zero')
+      ? 'its IQR is 0 and so is the whole column\'s, so there is no unit to measure by'
+      : 'there are no usable values to compare with';
+    return `${amount} was left unscored: in ${groupText} ${why}.`;
+  }
+  const stats: GroupStats = pop === 2 ? col.pooled : g;
+  const against = pop === 2 ? `the whole column ${q(name)}` : groupText;
+  const pooledNote = pop === 2 ? `Compared with the whole column because its group ${q(g.label)} has n = ${g.n} < ${min}. ` : '';
+  const z = col.scores[row];
+  const flagged = col.flagged[row] === 1;
+  const log = col.logScale;
+  const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled').map((f) => FALLBACK_WORDS[f]).filter((w) => w !== '');
+  const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
+  const cut = `${col.method === 'iqr' ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
+  const logNote = log ? ' on the log scale' : '';
+  const centreText = (c: number | null): string => (c === null ? 'n/a' : log ? `${formatNumber(Math.exp(c))} (ln ${formatNumber(c, 3)})` : formatNumber(c));
+  const scaleText = (s: number | null): string => (s === null ? '0' : log ? `${formatNumber(s, 3)} in ln units` : formatNumber(s));
+
+  if (col.method === 'iqr') {
+    const bounds = `Q1 ${fmtQ(stats, 'q1', log)}, Q3 ${fmtQ(stats, 'q3', log)}, ${stats.fallbacks.includes('iqr-zero') ? "column's IQR" : 'IQR'} ${scaleText(stats.scale)}, ` +
+      `fences ${stats.lower === null ? '-' : formatNumber(stats.lower)} to ${stats.upper === null ? '-' : formatNumber(stats.upper)}, n = ${stats.n}`;
+    const where = z > 0
+      ? `is ${formatScore(z)} IQRs above the upper fence${logNote} of ${against}`
+      : z < 0
+        ? `is ${formatScore(-z)} IQRs below the lower fence${logNote} of ${against}`
+        : `lies between the fences${logNote} of ${against}`;
+    return `${amount} ${where} (${bounds}); ${cut}. ${tail}`;
+  }
+  const robust = col.method === 'robust';
+  const side = z > 0 ? 'above' : z < 0 ? 'below' : 'at';
+  const centreName = robust ? 'median' : 'mean';
+  const scaleName = robust ? (stats.fallbacks.includes('mad-zero-used-meanad') ? '1.2533 x mean abs. deviation' : 'scaled MAD') : 'SD';
+  const scoreWords = `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'classic z'}`;
+  const lead = side === 'at' ? `is at the ${centreName}${logNote} of ${against}` : `is ${scoreWords} ${side} the ${centreName}${logNote} of ${against}`;
+  return `${amount} ${lead} (${centreName} ${centreText(stats.center)}, ${scaleName} ${scaleText(stats.scale)}, n = ${stats.n}); ${cut}. ${tail}`;
+}
+
+function fmtQ(s: GroupStats, which: 'q1' | 'q3', log: boolean): string {
+  const v = s[which];
+  return v === null ? 'n/a' : formatNumber(v) + (log ? ' (amounts)' : '');
+}

@@ -1,0 +1,108 @@
+import { medianInPlace } from './median.js';
+import { minOfRange, quickselect } from './quickselect.js';
+
+/**
+ * Every statistic of one population, computed in one go on a scratch buffer (engine internal).
+ *
+ * All figures are in units of `unit`, a power of two chosen so that the largest |value| lies in
+ * [1, 2) whenever the data are extremely large or extremely small (|x| > 2^500 or < 2^-500);
+ * otherwise unit = 1. Dividing by a power of two is exact, so this changes no digit, but it keeps
+ * sums, squares and differences from overflowing to Infinity or underflowing to 0. Undefined
+ * statistics are NaN here (the engine reports them as null).
+ */
+export interface Summary {
+  readonly n: number;
+  readonly unit: number;
+  readonly median: number;
+  readonly mad: number;
+  readonly meanAbsDev: number;
+  readonly mean: number;
+  readonly sd: number;
+  readonly q1: number;
+  readonly q3: number;
+}
+
+const BIG = 2 ** 500;
+const SMALL = 2 ** -500;
+
+export const EMPTY_SUMMARY: Summary = { n: 0, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN };
+
+/**
+ * Summarises `buf[0..n-1]` (finite numbers). Rearranges and may rescale `buf`; overwrites
+ * `dev[0..n-1]`. Cost O(n) expected: quickselects for the median (n), Q1 and Q3 (within the halves
+ * the median left, n/2 each) and the MAD (n), and three passes.
+ */
+export function summarize(buf: Float64Array, n: number, dev: Float64Array): Summary {
+  if (n === 0) return EMPTY_SUMMARY;
+  let min = buf[0];
+  let max = buf[0];
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    const v = buf[i];
+    if (v < min) min = v;
+    else if (v > max) max = v;
+    sum += v;
+  }
+  if (min === max) {
+    return { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
+  }
+  let unit = 1;
+  const maxAbs = Math.max(Math.abs(min), Math.abs(max));
+  if (maxAbs > BIG || maxAbs < SMALL) {
+    unit = 2 ** Math.floor(Math.log2(maxAbs));
+    if (!Number.isFinite(unit) || unit === 0) unit = 1;
+    sum = 0;
+    for (let i = 0; i < n; i++) sum += (buf[i] /= unit);
+  }
+  // Mean and SD: corrected two-pass (Chan, Golub & LeVeque 1983), one pass after the sum.
+  const m0 = sum / n;
+  let ss = 0;
+  let c = 0;
+  for (let i = 0; i < n; i++) {
+    const d = buf[i] - m0;
+    ss += d * d;
+    c += d;
+  }
+  const mean = m0 + c / n;
+  const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
+  const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
+  // Median, then Q1 and Q3 (type 7) selected within the halves the median selection left.
+  const k = (n - 1) >> 1;
+  quickselect(buf, k, 0, n - 1);
+  const xk = buf[k];
+  const median = n % 2 === 1 ? xk : xk + (minOfRange(buf, k + 1, n - 1) - xk) / 2;
+  const q1 = typeSevenWithin(buf, n, 0.25, 0, k);
+  const q3 = typeSevenWithin(buf, n, 0.75, k, n - 1);
+  // Mean absolute deviation around the median and MAD.
+  let sad = 0;
+  for (let i = 0; i < n; i++) {
+    const d = Math.abs(buf[i] - median);
+    dev[i] = d;
+    sad += d;
+  }
+  const mad = medianInPlace(dev, n);
+  return { n, unit, median, mad, meanAbsDev: sad / n, mean, sd, q1, q3 };
+}
+
+/**
+ * Type-7 quantile p of buf[0..n-1] when its order-statistic positions lie within [left, right] and
+ * that range already holds exactly the elements of those ranks (left of it smaller, right larger).
+ */
+function typeSevenWithin(buf: Float64Array, n: number, p: number, left: number, right: number): number {
+  const h = (n - 1) * p;
+  const lo = Math.floor(h);
+  quickselect(buf, lo, left, right);
+  const xlo = buf[lo];
+  const frac = h - lo;
+  if (frac === 0 || lo + 1 >= n) return xlo;
+  // The next order statistic is the smallest element after position lo; elements beyond `right`
+  // are all >= buf[right], so only (lo, right] needs scanning when lo < right.
+  const xhi = lo + 1 <= right ? minOfRange(buf, lo + 1, right) : minOfRange(buf, lo + 1, n - 1);
+  return xlo + frac * (xhi - xlo);
+}
+
+/** A summary figure back in real units, or null when undefined or not representable. */
+export function real(x: number, unit: number): number | null {
+  const v = x * unit;
+  return Number.isFinite(v) ? v : null;
+}

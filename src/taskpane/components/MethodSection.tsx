@@ -1,0 +1,181 @@
+import { Button, Checkbox, Field, Input, Select, Slider, Text } from '@fluentui/react-components';
+import type { Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
+import { methodDefaultCutoff } from '../engine.js';
+import type { PaneModel } from '../usePaneState.js';
+import { usePaneStyles } from './styles.js';
+
+export const METHOD_WORDS: Record<MethodId, { label: string; unit: string; range: [number, number] }> = {
+  robust: { label: 'Robust z (median and MAD)', unit: 'robust z', range: [1, 10] },
+  classic: { label: 'Classic z (mean and SD)', unit: 'z', range: [1, 10] },
+  iqr: { label: 'IQR fences (quartiles)', unit: 'k × IQR', range: [0.5, 6] },
+};
+
+const DIRECTION_WORDS: Record<Direction, string> = {
+  high: 'Unusually high only',
+  low: 'Unusually low only',
+  both: 'High or low',
+};
+
+const MAX_GROUP_ROWS = 12;
+
+/** (b) Method, direction and cutoff, with the live (unwritten) preview of what they flag. */
+export function MethodSection({ model }: { model: PaneModel }) {
+  const s = usePaneStyles();
+  const { state, actions, preview } = model;
+  const settings = state.settings;
+  if (!settings || !state.table) return null;
+  const m = METHOD_WORDS[settings.method];
+  const def = methodDefaultCutoff(settings.method);
+  const first = preview?.columns[0];
+  const groups = first ? [...first.groups].sort((a, b) => b.flagged - a.flagged || b.n - a.n) : [];
+  const unreachable = first ? first.groups.filter((g) => g.unreachable).length : 0;
+  return (
+    <section className={s.section} aria-labelledby="tm-method-h">
+      <h2 id="tm-method-h" className={s.heading}>
+        2. How to score
+      </h2>
+      <Field label="Method">
+        <Select value={settings.method} onChange={(_, d) => actions.setSettings({ method: d.value as MethodId })} data-testid="method">
+          {(Object.keys(METHOD_WORDS) as MethodId[]).map((id) => (
+            <option key={id} value={id}>
+              {METHOD_WORDS[id].label}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      <Field label="Look for">
+        <Select value={settings.direction} onChange={(_, d) => actions.setSettings({ direction: d.value as Direction })}>
+          {(Object.keys(DIRECTION_WORDS) as Direction[]).map((id) => (
+            <option key={id} value={id}>
+              {DIRECTION_WORDS[id]}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      <Checkbox
+        label="Score on a log scale (for skewed amounts; zero and credits are left out)"
+        checked={settings.logScale}
+        onChange={(_, d) => actions.setSettings({ logScale: d.checked === true })}
+      />
+      <div className={s.row}>
+        <Field label="Smallest peer group" className={s.grow}>
+          <Input
+            type="number"
+            min={2}
+            step={1}
+            value={String(settings.minGroupSize)}
+            onChange={(_, d) => {
+              const n = Number(d.value);
+              if (Number.isInteger(n) && n >= 2) actions.setSettings({ minGroupSize: n });
+            }}
+          />
+        </Field>
+        <Field label="Smaller groups" className={s.grow}>
+          <Select value={settings.smallGroups} onChange={(_, d) => actions.setSettings({ smallGroups: d.value as SmallGroupPolicy })}>
+            <option value="pool">Compare with whole column</option>
+            <option value="skip">Leave unscored</option>
+          </Select>
+        </Field>
+      </div>
+      <Field label={`Cutoff (${m.unit}; default ${def})`}>
+        <div className={s.row}>
+          <Slider
+            className={s.grow}
+            min={m.range[0]}
+            max={m.range[1]}
+            step={0.1}
+            value={Math.min(m.range[1], Math.max(m.range[0], settings.cutoff))}
+            onChange={(_, d) => actions.setSettings({ cutoff: Math.round(d.value * 10) / 10 })}
+            aria-label="Cutoff slider"
+          />
+          <Input
+            type="number"
+            step={0.1}
+            min={0}
+            style={{ width: '6.5em' }}
+            value={String(settings.cutoff)}
+            aria-label="Cutoff value"
+            data-testid="cutoff"
+            onChange={(_, d) => {
+              const n = Number(d.value);
+              if (d.value.trim() !== '' && Number.isFinite(n) && n > 0) actions.setSettings({ cutoff: n });
+            }}
+          />
+          <Button size="small" disabled={settings.cutoff === def} onClick={() => actions.setSettings({ cutoff: def })}>
+            Default
+          </Button>
+        </div>
+      </Field>
+      <div className={s.row}>
+        <Field label="I can review this many claims" className={s.grow}>
+          <Input
+            type="number"
+            min={0}
+            step={1}
+            value={state.budget}
+            onChange={(_, d) => actions.setBudget(d.value)}
+            onKeyDown={(e) => {
+              if (e.key === 'Enter') actions.applyBudget();
+            }}
+            data-testid="budget"
+          />
+        </Field>
+        <Button onClick={actions.applyBudget} disabled={!preview} data-testid="apply-budget">
+          Set cutoff
+        </Button>
+      </div>
+      <div aria-live="polite" data-testid="preview">
+        {state.previewLoading && <Text className={s.muted}>Reading the chosen columns…</Text>}
+        {preview && first && (
+          <>
+            <Text block>
+              At this cutoff: <strong data-testid="preview-flagged">{preview.flaggedRows}</strong> of{' '}
+              {Math.max(...preview.columns.map((c) => c.scored)).toLocaleString('en')} scored claims would be flagged
+              {preview.columns.length > 1 ? ` (${preview.columns.map((c) => `${c.column}: ${c.flagged}`).join(', ')})` : ''}. Nothing is written
+              until you press Run.
+            </Text>
+            <Text block className={s.small} data-testid="meaning">
+              {preview.meaning}
+            </Text>
+            {unreachable > 0 && (
+              <Text block className={s.small}>
+                In {unreachable} small group{unreachable === 1 ? '' : 's'} classic z cannot reach this cutoff at all.
+              </Text>
+            )}
+            <table className={s.table} data-testid="group-counts">
+              <caption className={s.visuallyHidden}>Flagged claims per peer group at this cutoff</caption>
+              <thead>
+                <tr>
+                  <th scope="col">Peer group</th>
+                  <th scope="col" className="num">
+                    Claims
+                  </th>
+                  <th scope="col" className="num">
+                    Flagged
+                  </th>
+                </tr>
+              </thead>
+              <tbody>
+                {groups.slice(0, MAX_GROUP_ROWS).map((g) => (
+                  <tr key={g.label}>
+                    <td>
+                      {g.label}
+                      {g.unreachable ? ' (cutoff out of reach)' : ''}
+                    </td>
+                    <td className="num">{g.n}</td>
+                    <td className="num">{g.flagged}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            {groups.length > MAX_GROUP_ROWS && (
+              <Text className={s.muted}>
+                …and {groups.length - MAX_GROUP_ROWS} more groups ({groups.slice(MAX_GROUP_ROWS).reduce((a, g) => a + g.flagged, 0)} flagged).
+              </Text>
+            )}
+          </>
+        )}
+      </div>
+    </section>
+  );
+}

@@ -1,0 +1,68 @@
+import { beforeAll, describe, expect, it } from 'vitest';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import * as XLSX from 'xlsx';
+import { readBook } from './helpers.js';
+
+const root = fileURLToPath(new URL('../..', import.meta.url));
+const bin = join(root, 'bin', 'tailmark.js');
+
+beforeAll(() => {
+  // Build dist/ as `npm ci` (prepare) does. Another area's type error must not hide ours, so the
+  // exit status is not asserted; the compiled entry point must exist.
+  try {
+    execFileSync('npm', ['run', 'build:node'], { cwd: root, stdio: 'pipe' });
+  } catch {
+    /* tsc emits even when it reports errors elsewhere */
+  }
+  expect(existsSync(join(root, 'dist', 'src', 'cli', 'main.js'))).toBe(true);
+}, 180_000);
+
+function node(args: string[], cwd = root) {
+  return spawnSync(process.execPath, [bin, ...args], { cwd, encoding: 'utf8' });
+}
+
+describe('bin/tailmark.js (real process)', () => {
+  it('--help exits 0 with the usage text', () => {
+    const r = node(['--help']);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toContain('tailmark score <input.xlsx|input.csv> --value <header>');
+    expect(r.stderr).toBe('');
+  });
+
+  it('bad input exits 2 with one line on stderr', () => {
+    const r = node(['score', join(tmpdir(), 'tailmark-no-such-file.xlsx'), '--value', 'Amount']);
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/input file not found/);
+  });
+
+  it('demo writes the input and scored workbooks under out/ and can run again', () => {
+    const cwd = mkdtempSync(join(tmpdir(), 'tailmark-demo-'));
+    for (let i = 0; i < 2; i++) {
+      const r = node(['demo'], cwd);
+      expect(r.stderr).toBe('');
+      expect(r.status).toBe(0);
+      expect(r.stdout).toContain(join('out', 'demo-claims.xlsx'));
+      expect(r.stdout).toContain(join('out', 'demo-claims-scored.xlsx'));
+    }
+    const book = readBook(join(cwd, 'out', 'demo-claims-scored.xlsx'));
+    expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    const header = XLSX.utils.sheet_to_json<unknown[]>(book.Sheets.Claims, { header: 1 })[0];
+    expect(header).toContain('Amount · tail score');
+  });
+
+  it('demo with an explicit --out refuses to replace files without --force', () => {
+    const cwd = mkdtempSync(join(tmpdir(), 'tailmark-demo-'));
+    const target = join(cwd, 'my-demo.xlsx');
+    expect(node(['demo', '--out', target], cwd).status).toBe(0);
+    expect(existsSync(join(cwd, 'my-demo-scored.xlsx'))).toBe(true);
+    const again = node(['demo', '--out', target], cwd);
+    expect(again.status).toBe(2);
+    expect(again.stderr).toMatch(/already exists.*--force/);
+    expect(node(['demo', '--out', target, '--force'], cwd).status).toBe(0);
+  });
+});
