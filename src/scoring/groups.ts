@@ -16,8 +16,10 @@ export interface Grouping {
   readonly keys: readonly string[];
   readonly labels: readonly string[];
   readonly keyParts: readonly (readonly string[])[];
-  /** Row indices ordered by group (counting sort): group g owns rows[start[g] .. start[g+1]-1], ascending. */
-  readonly rows: Int32Array;
+  /**
+   * Counting-sort offsets: group g owns positions start[g] .. start[g+1]-1 of any group-ordered
+   * buffer (start[g+1] - start[g] = rows in group g). Length = groups + 1.
+   */
   readonly start: Int32Array;
 }
 
@@ -40,7 +42,8 @@ export function keyPart(cell: RawCell): string {
  * key is the trimmed key parts joined by U+001F and the label the parts joined by " / ", blank
  * parts shown as "(blank)". Groups are numbered in order of first appearance.
  *
- * Cost: O(rows x key columns) with one Map lookup per row, plus an O(rows) counting sort.
+ * Cost: O(rows x key columns) with one Map lookup per row (one key column: a lookup on the raw
+ * cell), plus an O(rows) count of group sizes.
  */
 export function groupRows(groupColumns: readonly { readonly cells: ArrayLike<RawCell> }[], rowCount: number): Grouping {
   const groupOf = new Int32Array(rowCount);
@@ -100,8 +103,5 @@ export function groupRows(groupColumns: readonly { readonly cells: ArrayLike<Raw
   const start = new Int32Array(nGroups + 1);
   for (let r = 0; r < rowCount; r++) start[groupOf[r] + 1]++;
   for (let g = 0; g < nGroups; g++) start[g + 1] += start[g];
-  const fill = start.slice(0, nGroups);
-  const rows = new Int32Array(rowCount);
-  for (let r = 0; r < rowCount; r++) rows[fill[groupOf[r]]++] = r;
-  return { groupOf, keys, labels, keyParts, rows, start };
+  return { groupOf, keys, labels, keyParts, start };
 }

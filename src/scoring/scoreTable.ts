@@ -74,15 +74,18 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  * Scores every value column of a table per peer group.
  *
  * Pipeline (no per-row object allocation on the hot path):
- * 1. group once per table (`groupRows`: one Map lookup per row, counting sort of rows by group
- *    into one Int32Array);
+ * 1. group once per table (`groupRows`: one Map lookup per row, group sizes -> counting-sort
+ *    offsets), shared by every value column;
  * 2. per value column, parse each cell once into a Float64Array (`parseCell`; plain numbers take a
  *    fast path), with an exclusion code per row;
- * 3. per group, copy its usable values into a scratch Float64Array and summarise it (median, Q1,
- *    Q3 and MAD by quickselect; mean, SD, mean absolute deviation by passes) — O(n) per group;
- * 4. the method fits centre / scale / bounds; rows are scored and flagged.
+ * 3. counting sort: scatter the usable values into one group-ordered Float64Array scratch;
+ * 4. per group, summarise its slice of that scratch (median, Q1, Q3 and MAD by quickselect;
+ *    mean, SD, mean absolute deviation by passes) — O(n) per group — and let the method fit
+ *    centre / scale / bounds;
+ * 5. score and flag every row in row order.
  * Groups with fewer than `minGroupSize` usable values are compared with the whole column
- * ('pool') or left unscored ('skip').
+ * ('pool') or left unscored ('skip'). The whole-column population (`pooled`) is summarised when
+ * a group needs it, else on first read of `ColumnScores.pooled`.
  *
  * Cost: O(rows x (key columns + value columns)) expected time; memory about 26 bytes per row per
  * value column plus 16 bytes per row of scratch and grouping.
@@ -110,10 +113,6 @@ function reasonCounts(counts: Int32Array, offset: number): Record<ExclusionReaso
   const out = {} as Record<ExclusionReason, number>;
   for (let i = 0; i < NREASONS; i++) out[EXCLUSION_REASONS[i]] = counts[offset + i];
   return out;
-}
-
-interface Scored {
-  flagged: number;
 }
 
 function scoreColumn(
@@ -162,50 +161,70 @@ function scoreColumn(
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
   const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
-  const { rows, start, groupOf } = grouping;
+  const { start, groupOf } = grouping;
   const nGroups = grouping.keys.length;
-  const groups: GroupStats[] = new Array(nGroups);
-  const gCounts = new Int32Array(NREASONS);
-  let pooledFlagged = 0;
-  let scoredRows = 0;
-  let flaggedRows = 0;
-  const state: Scored = { flagged: 0 };
 
+  // 3. Scatter usable values into group order (one sequential pass; writes go to one cursor per
+  //    group, which stays cache-friendly where a per-group gather of random rows would not).
+  const cursor = start.slice(0, nGroups);
+  const gCounts = new Int32Array(nGroups * NREASONS);
+  const orig = logScale ? new Float64Array(rowCount) : null;
+  for (let r = 0; r < rowCount; r++) {
+    const g = groupOf[r];
+    const e = exclusion[r];
+    if (e === 0) {
+      const at = cursor[g]++;
+      buf[at] = y[r];
+      if (orig !== null) orig[at] = values[r];
+    } else gCounts[g * NREASONS + e - 1]++;
+  }
+
+  // 4. Summarise and fit each group.
+  const fits: Fit[] = new Array(nGroups);
+  const popOf = new Uint8Array(nGroups);
+  const groupN = new Int32Array(nGroups);
+  const groupSummaries: Summary[] = new Array(nGroups);
+  const groupFallbacks: Fallback[][] = new Array(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const from = start[g];
-    const to = start[g + 1];
-    gCounts.fill(0);
-    const n = gather(rows, from, to, exclusion, y, buf, gCounts);
-    const s = summarize(buf, n, dev);
-    const o = logScale ? summarizeOriginal(values, exclusion, rows, from, to, buf, dev) : s;
+    const n = cursor[g] - from;
+    groupN[g] = n;
+    const s = summarize(buf.subarray(from, from + n), n, dev);
+    groupSummaries[g] = logScale && orig !== null ? summarize(orig.subarray(from, from + n), n, dev) : s;
     let fit: Fit;
-    let pop: Population;
     let popCode: number;
     const fallbacks: Fallback[] = [];
     if (n >= opts.minGroupSize) {
       fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
-      pop = fit.kind === 'none' ? 'none' : 'group';
       popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
       fallbacks.push(...fit.fallbacks);
     } else if (opts.smallGroups === 'pool' && n > 0) {
       fit = column().fit;
-      pop = fit.kind === 'none' ? 'none' : 'column';
       popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;
       fallbacks.push('small-pooled', ...fit.fallbacks);
     } else {
       fit = NO_FIT;
-      pop = 'none';
       popCode = POP_NONE;
       if (n > 0) fallbacks.push(opts.smallGroups === 'pool' ? 'small-pooled' : 'small-skipped');
     }
-    state.flagged = 0;
-    const scored = scoreRows(fit, opts.cutoff, opts.direction, rows, from, to, exclusion, y, scores, flagged, population, popCode, reach, state);
-    scoredRows += scored;
-    flaggedRows += state.flagged;
-    if (popCode === POP_COLUMN) pooledFlagged += state.flagged;
+    fits[g] = fit;
+    popOf[g] = popCode;
+    groupFallbacks[g] = fallbacks;
+  }
+
+  // 5. Score every row in row order.
+  const flaggedPerGroup = new Int32Array(nGroups);
+  const scoredRows = scoreRows(fits, popOf, groupOf, opts.cutoff, opts.direction, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
+  let flaggedRows = 0;
+  let pooledFlagged = 0;
+  const groups: GroupStats[] = new Array(nGroups);
+  const popNames: Population[] = ['none', 'group', 'column'];
+  for (let g = 0; g < nGroups; g++) {
+    flaggedRows += flaggedPerGroup[g];
+    if (popOf[g] === POP_COLUMN) pooledFlagged += flaggedPerGroup[g];
     groups[g] = makeStats(
-      grouping.keys[g], grouping.labels[g], grouping.keyParts[g], to - from, n, reasonCounts(gCounts, 0),
-      o, fit, logScale, state.flagged, fallbacks, pop,
+      grouping.keys[g], grouping.labels[g], grouping.keyParts[g], start[g + 1] - start[g], groupN[g],
+      reasonCounts(gCounts, g * NREASONS), groupSummaries[g], fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], popNames[popOf[g]],
     );
   }
 
@@ -288,18 +307,6 @@ function parseColumn(
   }
 }
 
-/** Copies the usable scoring values of rows[from..to) into buf and counts exclusions; returns n. */
-function gather(rows: Int32Array, from: number, to: number, exclusion: Uint8Array, y: Float64Array, buf: Float64Array, counts: Int32Array): number {
-  let n = 0;
-  for (let i = from; i < to; i++) {
-    const r = rows[i];
-    const e = exclusion[r];
-    if (e === 0) buf[n++] = y[r];
-    else counts[e - 1]++;
-  }
-  return n;
-}
-
 /** Summary of the original (not log) values of the usable rows, for the descriptive fields on log scale. */
 function summarizeOriginal(
   values: Float64Array, exclusion: Uint8Array, rows: Int32Array | null, from: number, to: number,
@@ -316,62 +323,52 @@ function summarizeOriginal(
 const MAX = Number.MAX_VALUE;
 const clamp = (x: number): number => (x > MAX ? MAX : x < -MAX ? -MAX : x);
 
-/** Scores the usable rows of one group against `fit`; returns how many were scored. */
+/** Scores every usable row against its group's fit, in row order; returns how many were scored. */
 function scoreRows(
-  fit: Fit, cutoff: number, direction: Direction, rows: Int32Array, from: number, to: number,
+  fits: readonly Fit[], popOf: Uint8Array, groupOf: Int32Array, cutoff: number, direction: Direction,
   exclusion: Uint8Array, y: Float64Array, scores: Float64Array, flagged: Uint8Array, population: Uint8Array,
-  popCode: number, reach: Float64Array | undefined, state: Scored,
+  reach: Float64Array | undefined, flaggedPerGroup: Int32Array,
 ): number {
-  if (fit.kind === 'none') return 0;
-  const unit = fit.unit;
+  const hi = direction !== 'low';
+  const lo = direction !== 'high';
+  const n = y.length;
   let count = 0;
-  let nFlag = 0;
-  if (fit.kind === 'z') {
-    const center = fit.center;
-    const scale = fit.scale;
-    const hi = direction !== 'low';
-    const lo = direction !== 'high';
-    for (let i = from; i < to; i++) {
-      const r = rows[i];
-      if (exclusion[r] !== 0) continue;
-      count++;
-      population[r] = popCode;
+  for (let r = 0; r < n; r++) {
+    if (exclusion[r] !== 0) continue;
+    const g = groupOf[r];
+    const fit = fits[g];
+    if (fit.kind === 'none') continue;
+    count++;
+    population[r] = popOf[g];
+    const v = y[r] / fit.unit;
+    if (fit.kind === 'z') {
+      const scale = fit.scale;
       if (!(scale > 0)) {
         scores[r] = 0;
         continue;
       }
-      const z = clamp((y[r] / unit - center) / scale);
+      const z = clamp((v - fit.center) / scale);
       scores[r] = z;
       if ((hi && z > cutoff) || (lo && z < -cutoff)) {
         flagged[r] = 1;
-        nFlag++;
+        flaggedPerGroup[g]++;
       }
-    }
-  } else {
-    const q1 = fit.q1;
-    const q3 = fit.q3;
-    const iqr = fit.scale;
-    for (let i = from; i < to; i++) {
-      const r = rows[i];
-      if (exclusion[r] !== 0) continue;
-      count++;
-      population[r] = popCode;
-      const v = y[r] / unit;
-      const tHigh = clamp((v - q3) / iqr);
-      const tLow = clamp((q1 - v) / iqr);
+    } else {
+      const iqr = fit.scale;
+      const tHigh = clamp((v - fit.q3) / iqr);
+      const tLow = clamp((fit.q1 - v) / iqr);
       let score = 0;
       if (tHigh > cutoff) score = tHigh - cutoff;
       else if (tLow > cutoff) score = -(tLow - cutoff);
       scores[r] = score;
-      const t = direction === 'high' ? tHigh : direction === 'low' ? tLow : Math.max(tHigh, tLow);
+      const t = hi && lo ? Math.max(tHigh, tLow) : hi ? tHigh : tLow;
       if (reach !== undefined) reach[r] = t;
       if (t > cutoff) {
         flagged[r] = 1;
-        nFlag++;
+        flaggedPerGroup[g]++;
       }
     }
   }
-  state.flagged = nFlag;
   return count;
 }
 

@@ -180,6 +180,7 @@ describe('tailmark score on the demo workbook', () => {
     const xml = decodeXml(zipPart(again, sheetPart(again, 'Claims')));
     expect(xml.match(/ISTEXT\("tailmark:open"\)/g)).toHaveLength(1);
     expect(xml.match(/<dataValidation /g)).toHaveLength(1);
+    expect(readBook(again).SheetNames).toEqual(['Claims', 'Tailmark notes']);
   });
 });
 
@@ -199,6 +200,7 @@ describe('tailmark score keeps the user own formulas, formats and rules', () => 
       ref: 'C2:C11',
       rules: [{ type: 'expression', priority: 1, formulae: ['$C2>50'], style: { font: { bold: true } } }],
     });
+    wb.addWorksheet('Tailmark notes').getCell('A1').value = 'my own sheet that happens to share the name';
     const p = join(dir, 'own.xlsx');
     await wb.xlsx.writeFile(p);
     const out = join(dir, 'own-out.xlsx');
@@ -212,6 +214,9 @@ describe('tailmark score keeps the user own formulas, formats and rules', () => 
       expect({ t: b[addr].t, v: b[addr].v, f: b[addr].f, z: b[addr].z }, addr).toEqual({ t: a[addr].t, v: a[addr].v, f: a[addr].f, z: a[addr].z });
     }
     expect(b.D11.f).toBe('C11*2');
+    const outBook = readBook(out);
+    expect(outBook.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)']);
+    expect(outBook.Sheets['Tailmark notes'].A1.v).toBe('my own sheet that happens to share the name');
     // Column E is empty but F has the user's note, so results start in G.
     expect(b.G1.v).toBe('Amount · tail score');
     expect(b.E1).toBeUndefined();

@@ -1,6 +1,7 @@
 import { Button, Checkbox, Field, Input, Select, Slider, Text } from '@fluentui/react-components';
 import type { Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
+import { NumberInput } from './NumberInput.js';
 import type { PaneModel } from '../usePaneState.js';
 import { usePaneStyles } from './styles.js';
 
@@ -59,15 +60,12 @@ export function MethodSection({ model }: { model: PaneModel }) {
       />
       <div className={s.row}>
         <Field label="Smallest peer group" className={s.grow}>
-          <Input
-            type="number"
+          <NumberInput
             min={2}
             step={1}
-            value={String(settings.minGroupSize)}
-            onChange={(_, d) => {
-              const n = Number(d.value);
-              if (Number.isInteger(n) && n >= 2) actions.setSettings({ minGroupSize: n });
-            }}
+            value={settings.minGroupSize}
+            valid={(n) => Number.isInteger(n) && n >= 2}
+            onValue={(n) => actions.setSettings({ minGroupSize: n })}
           />
         </Field>
         <Field label="Smaller groups" className={s.grow}>
@@ -88,18 +86,15 @@ export function MethodSection({ model }: { model: PaneModel }) {
             onChange={(_, d) => actions.setSettings({ cutoff: Math.round(d.value * 10) / 10 })}
             aria-label="Cutoff slider"
           />
-          <Input
-            type="number"
+          <NumberInput
             step={0.1}
             min={0}
             style={{ width: '6.5em' }}
-            value={String(settings.cutoff)}
+            value={settings.cutoff}
+            valid={(n) => n > 0}
+            onValue={(n) => actions.setSettings({ cutoff: n })}
             aria-label="Cutoff value"
             data-testid="cutoff"
-            onChange={(_, d) => {
-              const n = Number(d.value);
-              if (d.value.trim() !== '' && Number.isFinite(n) && n > 0) actions.setSettings({ cutoff: n });
-            }}
           />
           <Button size="small" disabled={settings.cutoff === def} onClick={() => actions.setSettings({ cutoff: def })}>
             Default

@@ -1,0 +1,493 @@
+/**
+ * SandboxWorkbook: an in-memory workbook that implements, strictly, the part of the Excel
+ * JavaScript API that Tailmark uses (see context.ts for the proxy rules), plus test helpers:
+ * direct setup without syncs, `highlightAt` (evaluates our conditional-format rules),
+ * `validationAt`, `snapshot()` / `diffSnapshots()` for "nothing lost" checks, and `stats`.
+ *
+ * Runs in Node and in the browser (no Node-only imports).
+ */
+import { type Rect, rect, parseAddress, formatRect, formatAddress, columnLetters, columnIndex, MAX_COLS, MAX_ROWS } from './address.js';
+import { SandboxError } from './errors.js';
+import { CellError, WorkbookModel, type SheetModel, type StoredValue, ATTRS, type Attr, dateToSerial, normaliseColour } from './model.js';
+import { SandboxContext, type SandboxOptions } from './context.js';
+import { evaluateFormula } from './formula.js';
+
+export interface ByteStats {
+  /** Largest single request/response so far (bytes). */
+  max: number;
+  total: number;
+  last: number;
+}
+
+export interface SandboxStats {
+  /** Excel.run batches started. */
+  runs: number;
+  /** context.sync() calls (including the implicit one at the end of a run with queued work). */
+  syncs: number;
+  /** Queued statements sent (property writes, method calls, loads). */
+  requests: number;
+  requestBytes: ByteStats;
+  responseBytes: ByteStats;
+  reset(): void;
+}
+
+/** A cell for direct setup (no sync, no typed-input interpretation: strings stay text). */
+export interface SandboxCellInput {
+  value?: number | string | boolean | CellError | null;
+  formula?: string;
+  numberFormat?: string;
+  fill?: string;
+  font?: string;
+  bold?: boolean;
+  wrap?: boolean;
+}
+
+export interface CellSnapshot {
+  value?: number | string | boolean | { error: string };
+  formula?: string;
+  quotePrefix?: true;
+  numberFormat?: string;
+  fill?: string;
+  font?: string;
+  bold?: true;
+  wrap?: true;
+}
+
+export interface SheetSnapshot {
+  name: string;
+  position: number;
+  visibility: string;
+  protected: boolean;
+  /** Keyed by A1 address ("B7"); only cells with something stored. */
+  cells: Record<string, CellSnapshot>;
+  /** Column letters -> width in points, only for columns whose width was set. */
+  columnWidths: Record<string, number>;
+  tables: { name: string; address: string; showHeaders: boolean }[];
+  /** In priority order. */
+  conditionalFormats: { priority: number; type: string; ranges: string; formula: string; fill: string | null; font: string | null; bold: boolean | null; stopIfTrue: boolean }[];
+  validations: { ranges: string; list: { source: string; inCellDropDown: boolean }; ignoreBlanks: boolean }[];
+}
+
+export interface SandboxSnapshot {
+  sheets: SheetSnapshot[];
+  settings: Record<string, unknown>;
+  activeSheet: string;
+  selection: { sheet: string; address: string };
+}
+
+export type SelectionHandler = (args: { workbook: unknown; type: string }) => Promise<unknown> | unknown;
+
+function newBytes(): ByteStats {
+  return { max: 0, total: 0, last: 0 };
+}
+
+export class SandboxWorkbook {
+  /** @internal */ readonly model = new WorkbookModel();
+  readonly options: Required<SandboxOptions>;
+  name = 'Book1';
+  /** @internal */ readonly passwords = new Map<string, string>();
+  private readonly listeners = new Map<number, SelectionHandler>();
+  private nextListener = 1;
+  private pendingEvents: Promise<void>[] = [];
+  /** Errors thrown by selection-changed handlers (flushEvents rethrows the first). */
+  readonly eventErrors: unknown[] = [];
+
+  readonly stats: SandboxStats = {
+    runs: 0, syncs: 0, requests: 0, requestBytes: newBytes(), responseBytes: newBytes(),
+    reset: () => {
+      const s = this.stats;
+      s.runs = 0; s.syncs = 0; s.requests = 0; s.requestBytes = newBytes(); s.responseBytes = newBytes();
+    },
+  };
+
+  constructor(options: SandboxOptions = {}) {
+    this.options = {
+      payloadLimitBytes: options.payloadLimitBytes ?? 5 * 1024 * 1024,
+      partialOnError: options.partialOnError ?? false,
+    };
+  }
+
+  /**
+   * Like Excel.run: a fresh RequestContext per batch; queued work left at the end is synced
+   * (as Excel.run does); afterwards the context's objects cannot queue more work.
+   * This is the one place where the sandbox's context is presented as an Excel.RequestContext:
+   * the proxies implement the members Tailmark uses, not the whole interface, so the type is
+   * asserted here, at the boundary, and nowhere else.
+   */
+  run = async <T>(batch: (context: Excel.RequestContext) => Promise<T>): Promise<T> => {
+    this.stats.runs++;
+    const ctx = new SandboxContext(this);
+    const before = this.selectionKey();
+    try {
+      const result = await batch(ctx as unknown as Excel.RequestContext);
+      if (ctx.queue.length > 0) await ctx.sync();
+      return result;
+    } finally {
+      ctx.closed = true;
+      if (this.selectionKey() !== before) this.fireSelectionChanged();
+    }
+  };
+
+  /** The same context object `run` hands out, typed as the sandbox's own classes (for sandbox tests). */
+  newContext(): SandboxContext {
+    return new SandboxContext(this);
+  }
+
+  /** @internal */
+  recordSync(statements: number, bytes: number): void {
+    const s = this.stats;
+    s.syncs++;
+    s.requests += statements;
+    s.requestBytes.last = bytes;
+    s.requestBytes.total += bytes;
+    if (bytes > s.requestBytes.max) s.requestBytes.max = bytes;
+  }
+
+  /** @internal */
+  recordResponse(bytes: number): void {
+    const s = this.stats.responseBytes;
+    s.last = bytes;
+    s.total += bytes;
+    if (bytes > s.max) s.max = bytes;
+  }
+
+  // ------------------------------------------------------------ events
+
+  /** @internal */
+  addSelectionListener(h: SelectionHandler): number {
+    const id = this.nextListener++;
+    this.listeners.set(id, h);
+    return id;
+  }
+
+  /** @internal */
+  removeSelectionListener(id: number): void {
+    this.listeners.delete(id);
+  }
+
+  get selectionListenerCount(): number {
+    return this.listeners.size;
+  }
+
+  private selectionKey(): string {
+    const s = this.model.selection;
+    return `${s.sheetId}|${s.areas.map(formatRect).join(',')}`;
+  }
+
+  private fireSelectionChanged(): void {
+    for (const h of [...this.listeners.values()]) {
+      const ctx = new SandboxContext(this);
+      const p = Promise.resolve()
+        .then(() => h({ workbook: ctx.workbook, type: 'WorkbookSelectionChanged' }))
+        .then(() => undefined, (e: unknown) => { this.eventErrors.push(e); });
+      this.pendingEvents.push(p);
+    }
+  }
+
+  /** Wait until every selection-changed handler fired so far has settled; rethrows the first handler error. */
+  async flushEvents(): Promise<void> {
+    while (this.pendingEvents.length) {
+      const ps = this.pendingEvents;
+      this.pendingEvents = [];
+      await Promise.all(ps);
+    }
+    if (this.eventErrors.length) throw this.eventErrors[0];
+  }
+
+  /** Simulate the user selecting one or more areas ("A1:B3" or ["A1:A5", "C1:C5"]) on a sheet; fires listeners. */
+  userSelect(sheet: string, areas: string | string[]): void {
+    const s = this.sheet(sheet);
+    const list = (Array.isArray(areas) ? areas : areas.split(',')).map((a) => this.rectOf(a));
+    const before = this.selectionKey();
+    this.model.activeSheetId = s.id;
+    this.model.selection = { sheetId: s.id, areas: list };
+    if (this.selectionKey() !== before) this.fireSelectionChanged();
+  }
+
+  // ------------------------------------------------------------ direct setup (no sync, untracked)
+
+  private sheet(name: string): SheetModel {
+    const s = this.model.sheetByName(name);
+    if (!s) throw new SandboxError('ItemNotFound', `Sandbox: no sheet named "${name}".`);
+    return s;
+  }
+
+  private rectOf(a1: string): Rect {
+    const p = parseAddress(a1);
+    if (!p) throw new SandboxError('InvalidArgument', `Sandbox: "${a1}" is not an address.`);
+    return p.rect;
+  }
+
+  addSheet(name: string): this {
+    this.model.addSheet(name);
+    return this;
+  }
+
+  sheetNames(): string[] {
+    return this.model.sheets.map((s) => s.name);
+  }
+
+  /** Store a cell exactly as given (strings stay text; a Date becomes a serial with format yyyy-mm-dd). */
+  setCell(sheet: string, row: number, col: number, cell: SandboxCellInput | number | string | boolean | Date | null): void {
+    const s = this.sheet(sheet);
+    if (row < 0 || row >= MAX_ROWS || col < 0 || col >= MAX_COLS) throw new SandboxError('InvalidArgument', `Sandbox: cell (${row}, ${col}) is outside the grid.`);
+    const m = this.model;
+    const c: SandboxCellInput =
+      cell instanceof Date ? { value: dateToSerial(cell.getUTCFullYear(), cell.getUTCMonth() + 1, cell.getUTCDate()), numberFormat: 'yyyy-mm-dd' }
+        : cell === null || typeof cell !== 'object' || cell instanceof CellError ? { value: cell as SandboxCellInput['value'] } : cell;
+    if ('value' in c || 'formula' in c) {
+      const v = c.value;
+      m.setAttr(s, row, col, 'v', v === null || v === '' ? undefined : v);
+      m.setAttr(s, row, col, 'f', c.formula);
+      m.setAttr(s, row, col, 'qp', undefined);
+    }
+    if (c.numberFormat !== undefined) m.setAttr(s, row, col, 'nf', c.numberFormat === 'General' ? undefined : c.numberFormat);
+    if (c.fill !== undefined) m.setAttr(s, row, col, 'fill', normaliseColour(c.fill, 'setCell'));
+    if (c.font !== undefined) m.setAttr(s, row, col, 'font', normaliseColour(c.font, 'setCell'));
+    if (c.bold !== undefined) m.setAttr(s, row, col, 'bold', c.bold || undefined);
+    if (c.wrap !== undefined) m.setAttr(s, row, col, 'wrap', c.wrap || undefined);
+  }
+
+  /** Store a block of raw values with its top-left at `topLeft` ("A1"). Column-wise, so large blocks are fast. */
+  setValues(sheet: string, topLeft: string, rows: readonly (readonly unknown[])[]): void {
+    const s = this.sheet(sheet);
+    const at = this.rectOf(topLeft);
+    const width = rows.reduce((w, r) => Math.max(w, r.length), 0);
+    if (at.c0 + width > MAX_COLS || at.r0 + rows.length > MAX_ROWS) throw new SandboxError('InvalidArgument', 'Sandbox: block extends outside the grid.');
+    for (let j = 0; j < width; j++) {
+      for (let i = 0; i < rows.length; i++) {
+        const v = rows[i][j];
+        if (v === undefined || v === null || v === '') continue;
+        if (v instanceof Date || v instanceof CellError || typeof v !== 'object') {
+          this.setCell(sheet, at.r0 + i, at.c0 + j, v as number | string | boolean | Date | CellError as never);
+        } else this.setCell(sheet, at.r0 + i, at.c0 + j, v as SandboxCellInput);
+      }
+    }
+    void s;
+  }
+
+  setColumnWidth(sheet: string, column: string, points: number): void {
+    this.sheet(sheet).widths.set(columnIndex(column), points);
+  }
+
+  setProtected(sheet: string, on: boolean): void {
+    this.sheet(sheet).protected = on;
+  }
+
+  /** Add a table directly (headers must already be in the first row). */
+  addTable(sheet: string, address: string, name: string): void {
+    const s = this.sheet(sheet);
+    s.tables.push({ id: this.model.newId('table'), name, rect: this.rectOf(address), showHeaders: true });
+  }
+
+  /** Add a custom conditional format directly (lowest priority, i.e. evaluated after existing ones). */
+  addConditionalFormat(sheet: string, address: string, formula: string, format: { fill?: string; font?: string; bold?: boolean }): void {
+    const s = this.sheet(sheet);
+    const r = this.rectOf(address);
+    s.cfs.push({
+      id: this.model.newId('cf'), type: 'Custom', rects: [r], anchor: { row: r.r0, col: r.c0 },
+      formula: formula.startsWith('=') ? formula : `=${formula}`,
+      fill: format.fill ? normaliseColour(format.fill, 'addConditionalFormat') : null,
+      font: format.font ? normaliseColour(format.font, 'addConditionalFormat') : null,
+      bold: format.bold ?? null, stopIfTrue: false,
+    });
+  }
+
+  addListValidation(sheet: string, address: string, source: string, inCellDropDown = true): void {
+    this.model.setValidation(this.sheet(sheet), this.rectOf(address), { list: { source, inCellDropDown } }, true);
+  }
+
+  setSetting(key: string, value: unknown): void {
+    this.model.settings.set(key, JSON.stringify(value));
+  }
+
+  getSetting(key: string): unknown {
+    const j = this.model.settings.get(key);
+    return j === undefined ? undefined : JSON.parse(j);
+  }
+
+  /** Select directly without firing listeners. */
+  setSelection(sheet: string, areas: string | string[]): void {
+    const s = this.sheet(sheet);
+    this.model.activeSheetId = s.id;
+    this.model.selection = { sheetId: s.id, areas: (Array.isArray(areas) ? areas : areas.split(',')).map((a) => this.rectOf(a)) };
+  }
+
+  /** Current selection as "Sheet!A1:B2" addresses. */
+  selection(): string[] {
+    const m = this.model;
+    const s = m.sheetById(m.selection.sheetId) ?? m.activeSheet();
+    return m.selection.areas.map((a) => formatAddress(s.name, a));
+  }
+
+  // ------------------------------------------------------------ inspection
+
+  /** What Range.values would report for one cell ("" for empty, "#N/A" for errors). */
+  valueAt(sheet: string, row: number, col: number): number | string | boolean {
+    const v = this.model.readValue(this.sheet(sheet), row, col);
+    return v === null ? '' : v instanceof CellError ? v.code : v;
+  }
+
+  /** Raw stored cell (formula, number format, quote prefix...) or null when nothing is stored. */
+  cellAt(sheet: string, row: number, col: number): CellSnapshot | null {
+    return cellSnapshot(this.sheet(sheet), row, col);
+  }
+
+  /** Values of a block, as Range.values would read them. */
+  valuesOf(sheet: string, address: string): (number | string | boolean)[][] {
+    const r = this.rectOf(address);
+    const out: (number | string | boolean)[][] = [];
+    for (let i = 0; i < r.rows; i++) {
+      const row: (number | string | boolean)[] = [];
+      for (let j = 0; j < r.cols; j++) row.push(this.valueAt(sheet, r.r0 + i, r.c0 + j));
+      out.push(row);
+    }
+    return out;
+  }
+
+  /**
+   * The format of the first custom conditional-format rule (in priority order, 0 first) that
+   * applies to the cell and evaluates to TRUE / non-zero, or null. Rule formulas are evaluated by
+   * the sandbox's small evaluator (formula.ts), which throws on anything it does not support.
+   * stopIfTrue is not needed: only the first match is reported.
+   */
+  highlightAt(sheet: string, row: number, col: number): { fill: string | null; font: string | null; bold: boolean | null } | null {
+    return this.model.highlightAt(this.sheet(sheet), row, col);
+  }
+
+  /** The list a cell's validation allows (a comma list split and trimmed, or a range reference's values), or null. */
+  validationAt(sheet: string, row: number, col: number): string[] | null {
+    const s = this.sheet(sheet);
+    const v = s.validations.find((x) => x.rects.some((r) => row >= r.r0 && row < r.r0 + r.rows && col >= r.c0 && col < r.c0 + r.cols));
+    if (!v) return null;
+    const src = v.rule.list.source;
+    if (!src.startsWith('=')) return src.split(',').map((x) => x.trim());
+    const ref = src.slice(1);
+    const p = parseAddress(ref);
+    if (!p) {
+      // A single-value formula: evaluate it (throws when unsupported).
+      const res = evaluateFormula(src, (r, c) => this.model.readValue(s, r, c));
+      return [String(res)];
+    }
+    const target = p.sheet ? this.sheet(p.sheet) : s;
+    const out: string[] = [];
+    for (let i = 0; i < p.rect.rows; i++) for (let j = 0; j < p.rect.cols; j++) {
+      const x = this.model.readValue(target, p.rect.r0 + i, p.rect.c0 + j);
+      if (x !== null) out.push(x instanceof CellError ? x.code : String(x));
+    }
+    return out;
+  }
+
+  /** Deep plain-JSON copy of everything the workbook holds, for before/after comparisons. */
+  snapshot(): SandboxSnapshot {
+    const m = this.model;
+    const sheets = m.sheets.map((s, position): SheetSnapshot => {
+      const cells: Record<string, CellSnapshot> = {};
+      const rowsWith = new Set<number>();
+      for (let c = 0; c < s.cols.length; c++) {
+        const col = s.cols[c];
+        if (!col) continue;
+        for (const a of ATTRS) {
+          const arr = col[a] as unknown[] | undefined;
+          if (!arr) continue;
+          for (let r = 0; r < arr.length; r++) if (arr[r] !== undefined) rowsWith.add(r * MAX_COLS + c);
+        }
+      }
+      for (const key of [...rowsWith].sort((x, y) => x - y)) {
+        const r = Math.floor(key / MAX_COLS);
+        const c = key % MAX_COLS;
+        const cs = cellSnapshot(s, r, c);
+        if (cs) cells[`${columnLetters(c)}${r + 1}`] = cs;
+      }
+      const columnWidths: Record<string, number> = {};
+      for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) columnWidths[columnLetters(c)] = w;
+      return {
+        name: s.name, position, visibility: s.visibility, protected: s.protected, cells, columnWidths,
+        tables: s.tables.map((t) => ({ name: t.name, address: formatRect(t.rect), showHeaders: t.showHeaders })),
+        conditionalFormats: s.cfs.map((cf, priority) => ({
+          priority, type: cf.type, ranges: cf.rects.map(formatRect).join(','), formula: cf.formula,
+          fill: cf.fill, font: cf.font, bold: cf.bold, stopIfTrue: cf.stopIfTrue,
+        })),
+        validations: s.validations.map((v) => ({ ranges: v.rects.map(formatRect).join(','), list: { ...v.rule.list }, ignoreBlanks: v.ignoreBlanks })),
+      };
+    });
+    const settings: Record<string, unknown> = {};
+    for (const [k, v] of [...m.settings].sort((a, b) => (a[0] < b[0] ? -1 : 1))) settings[k] = JSON.parse(v);
+    const selSheet = m.sheetById(m.selection.sheetId) ?? m.sheets[0];
+    return {
+      sheets, settings,
+      activeSheet: m.sheetById(m.activeSheetId)?.name ?? '',
+      selection: { sheet: selSheet?.name ?? '', address: m.selection.areas.map(formatRect).join(',') },
+    };
+  }
+}
+
+function cellSnapshot(s: SheetModel, r: number, c: number): CellSnapshot | null {
+  const col = s.cols[c];
+  if (!col) return null;
+  const get = (a: Attr) => (col[a] as unknown[] | undefined)?.[r];
+  const out: CellSnapshot = {};
+  const v = get('v') as StoredValue;
+  if (v !== undefined) out.value = v instanceof CellError ? { error: v.code } : v;
+  const f = get('f') as string | undefined;
+  if (f !== undefined) out.formula = f;
+  if (get('qp')) out.quotePrefix = true;
+  const nf = get('nf') as string | undefined;
+  if (nf !== undefined) out.numberFormat = nf;
+  const fill = get('fill') as string | undefined;
+  if (fill !== undefined) out.fill = fill;
+  const font = get('font') as string | undefined;
+  if (font !== undefined) out.font = font;
+  if (get('bold')) out.bold = true;
+  if (get('wrap')) out.wrap = true;
+  return Object.keys(out).length ? out : null;
+}
+
+/**
+ * Human-readable differences between two snapshots ("Claims!B7 value: 12 -> 13",
+ * "Claims conditional format 0 added", "setting tailmark.run changed"). Empty when equal.
+ */
+export function diffSnapshots(before: SandboxSnapshot, after: SandboxSnapshot): string[] {
+  const out: string[] = [];
+  const j = (x: unknown) => JSON.stringify(x);
+  const byName = (ss: SheetSnapshot[]) => new Map(ss.map((s) => [s.name, s]));
+  const a = byName(before.sheets);
+  const b = byName(after.sheets);
+  for (const [name] of a) if (!b.has(name)) out.push(`sheet ${name} removed`);
+  for (const [name, sb] of b) {
+    const sa = a.get(name);
+    if (!sa) { out.push(`sheet ${name} added`); continue; }
+    for (const k of ['position', 'visibility', 'protected'] as const) if (sa[k] !== sb[k]) out.push(`sheet ${name} ${k}: ${j(sa[k])} -> ${j(sb[k])}`);
+    const keys = new Set([...Object.keys(sa.cells), ...Object.keys(sb.cells)]);
+    for (const k of keys) {
+      const x = sa.cells[k] ?? {};
+      const y = sb.cells[k] ?? {};
+      for (const f of new Set([...Object.keys(x), ...Object.keys(y)]) as Set<keyof CellSnapshot>) {
+        if (j(x[f]) !== j(y[f])) out.push(`${name}!${k} ${f}: ${j(x[f]) ?? 'none'} -> ${j(y[f]) ?? 'none'}`);
+      }
+    }
+    for (const c of new Set([...Object.keys(sa.columnWidths), ...Object.keys(sb.columnWidths)])) {
+      if (sa.columnWidths[c] !== sb.columnWidths[c]) out.push(`${name} column ${c} width: ${sa.columnWidths[c] ?? 'default'} -> ${sb.columnWidths[c] ?? 'default'}`);
+    }
+    for (const k of ['tables', 'conditionalFormats', 'validations'] as const) {
+      const xa = sa[k].map(j);
+      const xb = sb[k].map(j);
+      for (const x of xa) if (!xb.includes(x)) out.push(`${name} ${k} removed/changed: ${x}`);
+      for (const x of xb) if (!xa.includes(x)) out.push(`${name} ${k} added/changed: ${x}`);
+    }
+  }
+  for (const k of new Set([...Object.keys(before.settings), ...Object.keys(after.settings)])) {
+    if (j(before.settings[k]) !== j(after.settings[k])) out.push(`setting ${k}: ${j(before.settings[k]) ?? 'none'} -> ${j(after.settings[k]) ?? 'none'}`);
+  }
+  return out;
+}
+
+/** Build a one-sheet sandbox from raw rows (strings stay text, Dates become serials with a date format). */
+export function sandboxFromRows(sheetName: string, rows: readonly (readonly unknown[])[], options?: SandboxOptions): SandboxWorkbook {
+  const sb = new SandboxWorkbook(options);
+  sb.addSheet(sheetName);
+  sb.setValues(sheetName, 'A1', rows);
+  return sb;
+}
+
+export { rect };

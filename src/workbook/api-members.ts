@@ -1,0 +1,1 @@
+export const REQUIRED_EXCEL_API = 'ExcelApi 1.9';

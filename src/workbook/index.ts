@@ -1,0 +1,133 @@
+/**
+ * The workbook layer: the only code that touches Excel.*. `createWorkbookLayer(Excel.run)` in the
+ * add-in; `createWorkbookLayer(sandbox.run)` in tests, the preview page and `tailmark sandbox`.
+ *
+ * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
+ * that grows with the number of cells only.
+ */
+import type { DetectedTable, Exception, PreviewData, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
+import { TailmarkError } from './api.js';
+import { detectTable } from './detect.js';
+import { listExceptionRows, loadRunSettings, markRows, previewColumns, removeResults, selectDataRow } from './ops.js';
+import { runScoring } from './run.js';
+import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
+
+export type ExcelRunner = <T>(batch: (context: Excel.RequestContext) => Promise<T>) => Promise<T>;
+
+export interface WorkbookLayerOptions {
+  /** Host request/response limit in bytes (default 5 MB, Excel on the web). */
+  readonly payloadLimit?: number;
+  /** Share of the limit planned per sync (default 0.6). */
+  readonly safety?: number;
+  /** Clock for the run log and notes (default: now). */
+  readonly now?: () => Date;
+  /** Called with errors of background work (removing a selection handler). */
+  readonly onBackgroundError?: (e: unknown) => void;
+}
+
+/** What the last action cost, as this layer counted it. */
+export interface OperationStats {
+  readonly action: string;
+  readonly syncs: number;
+  /** Largest request we queued between two syncs (our estimate of the JSON payload). */
+  readonly maxRequestBytes: number;
+  /** Largest response we received in one sync (JSON length of what was loaded). */
+  readonly maxResponseBytes: number;
+}
+
+export interface RunDetails {
+  readonly summary: RunSummary;
+  readonly marksKept: number;
+  /** Column letters of our result columns, in plan order. */
+  readonly resultColumns: readonly string[];
+}
+
+export interface TailmarkWorkbookLayer extends WorkbookLayer {
+  /** Stats of the most recent action (null before the first). */
+  readonly lastStats: OperationStats | null;
+  /** Details of the most recent successful run() (null before the first). */
+  readonly lastRun: RunDetails | null;
+}
+
+export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOptions = {}): TailmarkWorkbookLayer {
+  const budget = makeBudget(options.payloadLimit ?? PAYLOAD_LIMIT, options.safety ?? SAFETY);
+  const now = options.now ?? (() => new Date());
+  let lastStats: OperationStats | null = null;
+  let lastRun: RunDetails | null = null;
+
+  async function act<T>(action: string, body: (sync: Syncer) => Promise<T>): Promise<T> {
+    let syncer: Syncer | null = null;
+    try {
+      return await run(async (context) => {
+        syncer = new Syncer(context, budget);
+        return body(syncer);
+      });
+    } finally {
+      const s: Syncer | null = syncer;
+      if (s !== null) {
+        const done: Syncer = s;
+        lastStats = { action, syncs: done.syncs, maxRequestBytes: done.maxRequest, maxResponseBytes: done.maxResponse };
+      }
+    }
+  }
+
+  const layer: TailmarkWorkbookLayer = {
+    get lastStats() {
+      return lastStats;
+    },
+    get lastRun() {
+      return lastRun;
+    },
+    detect(): Promise<DetectedTable> {
+      return act('detect', (s) => detectTable(s));
+    },
+    readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
+      return act('preview', (s) => previewColumns(s, table, settings));
+    },
+    async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal): Promise<RunSummary> {
+      if (signal?.aborted) throw new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
+      const out = await act('run', (s) =>
+        runScoring(s, table, settings, {
+          now,
+          ...(onProgress ? { onProgress } : {}),
+          ...(signal ? { signal } : {}),
+        }),
+      );
+      lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
+      return out.summary;
+    },
+    remove(includeNotes: boolean): Promise<void> {
+      return act('remove', (s) => removeResults(s, includeNotes));
+    },
+    loadSettings(): Promise<RunSettings | null> {
+      return act('loadSettings', (s) => loadRunSettings(s));
+    },
+    listExceptions(): Promise<readonly Exception[]> {
+      return act('listExceptions', (s) => listExceptionRows(s));
+    },
+    selectRow(row: number): Promise<void> {
+      return act('selectRow', (s) => selectDataRow(s, row));
+    },
+    mark(rows: readonly number[], status: string | null, note: string | null): Promise<void> {
+      return act('mark', (s) => markRows(s, rows, status, note));
+    },
+    async onSelectionChanged(handler: () => void): Promise<() => void> {
+      const registration = await run(async (context) => {
+        const result = context.workbook.onSelectionChanged.add(async () => {
+          handler();
+        });
+        await context.sync();
+        return result;
+      });
+      return () => {
+        registration.remove();
+        registration.context.sync().catch((e: unknown) => options.onBackgroundError?.(e));
+      };
+    },
+  };
+  return layer;
+}
+
+export { TailmarkError } from './api.js';
+export type * from './api.js';
+export { REQUIRED_EXCEL_API } from './api-members.js';

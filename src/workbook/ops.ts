@@ -1,0 +1,327 @@
+/**
+ * The other pane actions: remove, mark, listExceptions, selectRow, readForPreview, loadSettings.
+ * Each is one Excel.run with a small, fixed number of syncs plus row chunks where it reads data.
+ */
+import { parseCell } from '../scoring/index.js';
+import type { RawCell } from '../scoring/types.js';
+import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, resultHeaders } from '../report/index.js';
+import { TailmarkError, type DetectedTable, type Exception, type PreviewData, type RunSettings } from './api.js';
+import { cellText, toRawCell } from './cells.js';
+import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
+import { readRows } from './read.js';
+import { columnOf, protectedError, resolveTable } from './resolve.js';
+import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
+import type { Syncer } from './sync.js';
+
+function noResults(): TailmarkError {
+  return new TailmarkError('no-results', 'This workbook has no Tailmark results yet. Select your claims table and run a review first.');
+}
+
+interface Located {
+  readonly state: LayerState;
+  readonly settings: RunSettings | null;
+  readonly sheet: Excel.Worksheet;
+  readonly table: Excel.Table | null;
+  /** 0-based sheet row of the first data row. */
+  readonly firstDataRow: number;
+  readonly rows: number;
+  /** Sheet column of each of our headers. */
+  readonly columns: ReadonlyMap<string, number>;
+  /** Sheet column of each user header (header row from firstColumn to the end of our block). */
+  readonly userColumns: ReadonlyMap<string, number>;
+  readonly protected: boolean;
+}
+
+/**
+ * Load our state and find our columns as they are now: by table column name for tables, by the
+ * header cells at the remembered place otherwise. 2 syncs.
+ */
+async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Promise<Located | null> {
+  const wb = sync.context.workbook;
+  const st = wb.settings.getItemOrNullObject(STATE_KEY);
+  st.load('value');
+  const se = wb.settings.getItemOrNullObject(SETTINGS_KEY);
+  se.load('value');
+  await sync.sync();
+  const state = parseState(st.isNullObject ? null : st.value);
+  if (!state) {
+    if (opts.allowMissing) return null;
+    throw noResults();
+  }
+  const settings = parseSettings(se.isNullObject ? null : se.value);
+  const sheet = wb.worksheets.getItemOrNullObject(state.sheet);
+  sheet.load('name');
+  sheet.protection.load('protected');
+  let table: Excel.Table | null = null;
+  let tableRange: Excel.Range | null = null;
+  let tableCols: Excel.TableColumnCollection | null = null;
+  if (state.table) {
+    table = wb.tables.getItemOrNullObject(state.table);
+    table.load('name');
+  }
+  await sync.sync();
+  if (sheet.isNullObject) {
+    if (opts.allowMissing) return null;
+    throw new TailmarkError('no-results', `The sheet "${state.sheet}" with Tailmark's results no longer exists.`);
+  }
+  if (table && table.isNullObject) table = null;
+  const lastCol = state.blockColumn + state.columns.length;
+  let header: Excel.Range | null = null;
+  if (table) {
+    tableRange = table.getRange();
+    tableRange.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
+    tableCols = table.columns;
+    tableCols.load('items/name');
+  } else {
+    header = sheet.getRangeByIndexes(state.headerRow, state.firstColumn, 1, Math.max(1, lastCol - state.firstColumn));
+    header.load('values');
+  }
+  await sync.sync();
+  const columns = new Map<string, number>();
+  const userColumns = new Map<string, number>();
+  let firstDataRow = state.headerRow + 1;
+  let rows = state.rowCount;
+  const ourHeaders = new Set(state.columns.map((c) => c.header));
+  if (table && tableRange && tableCols) {
+    firstDataRow = tableRange.rowIndex + 1;
+    rows = tableRange.rowCount - 1;
+    tableCols.items.forEach((c, i) => (ourHeaders.has(c.name) ? columns : userColumns).set(c.name, tableRange.columnIndex + i));
+  } else if (header) {
+    const cells = (header.values[0] as unknown[]).map((v) => cellText(typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean' ? v : null));
+    cells.forEach((h, i) => {
+      const col = state.firstColumn + i;
+      if (col >= state.blockColumn && ourHeaders.has(h)) columns.set(h, col);
+      else if (col < state.blockColumn && h !== '' && !userColumns.has(h)) userColumns.set(h, col);
+    });
+  }
+  return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected };
+}
+
+/** remove(): delete exactly what we added. */
+export async function removeResults(sync: Syncer, includeNotes: boolean): Promise<void> {
+  const loc = await locate(sync, { allowMissing: true });
+  const wb = sync.context.workbook;
+  const notes = wb.worksheets.getItemOrNullObject(NOTES_SHEET_NAME);
+  notes.load('name');
+  const log = wb.worksheets.getItemOrNullObject(LOG_SHEET_NAME);
+  log.load('name');
+  let cfs: Excel.ConditionalFormatCollection | null = null;
+  if (loc) {
+    if (loc.protected) throw protectedError(loc.state.sheet);
+    const start = Math.min(loc.state.firstColumn, ...loc.columns.values());
+    const end = Math.max(loc.state.blockColumn + loc.state.columns.length, ...[...loc.columns.values()].map((c) => c + 1));
+    cfs = loc.sheet.getRangeByIndexes(loc.state.headerRow, start, Math.max(loc.rows, loc.state.rowCount) + 1, Math.max(1, end - start)).conditionalFormats;
+    cfs.load('items/type');
+  }
+  await sync.sync();
+  const notesA1 = notes.isNullObject ? null : notes.getRange('A1');
+  notesA1?.load('values');
+  const logA1 = log.isNullObject ? null : log.getRange('A1');
+  logA1?.load('values');
+  const custom = cfs ? cfs.items.filter((cf) => cf.type === 'Custom') : [];
+  for (const cf of custom) cf.custom.rule.load('formula');
+  await sync.sync();
+  if (!loc && !(includeNotes && (notesA1 || logA1))) throw noResults();
+
+  if (loc) {
+    for (const cf of custom) if (isTailmarkFormula(cf.custom.rule.formula)) cf.delete();
+    if (loc.table) {
+      for (const c of loc.state.columns) if (loc.columns.has(c.header)) loc.table.columns.getItem(c.header).delete();
+    } else {
+      const rows = Math.max(loc.rows, loc.state.rowCount) + 1;
+      // Right to left so the columns to delete keep their places.
+      const ours = loc.state.columns
+        .map((c) => ({ c, col: loc.columns.get(c.header) }))
+        .filter((x): x is { c: (typeof loc.state.columns)[number]; col: number } => x.col !== undefined)
+        .sort((a, b) => b.col - a.col);
+      for (const { c, col } of ours) {
+        if (c.inserted) loc.sheet.getRangeByIndexes(0, col, 1, 1).getEntireColumn().delete('Left');
+        else {
+          const r = loc.sheet.getRangeByIndexes(loc.state.headerRow, col, rows, 1);
+          r.dataValidation.clear();
+          r.clear('All');
+          if (c.width !== null) r.format.columnWidth = c.width;
+        }
+      }
+    }
+    wb.settings.getItem(STATE_KEY).delete();
+    const se = wb.settings.getItemOrNullObject(SETTINGS_KEY);
+    se.load('value');
+    await sync.sync();
+    if (!se.isNullObject) se.delete();
+  }
+  if (includeNotes) {
+    if (notesA1 && isNotesMarker(notesA1.values[0][0])) notes.delete();
+    if (logA1 && isLogMarker(logA1.values[0][0])) log.delete();
+  }
+  await sync.sync();
+}
+
+/** Status text for a requested label or id; throws on an unknown one. */
+function statusText(status: string): string {
+  if (status === '') return '';
+  const s = REVIEW_STATUSES.find((x) => x.label === status || x.id === status || x.label.toLowerCase() === status.toLowerCase());
+  if (!s) {
+    throw new TailmarkError('bad-settings', `"${status}" is not a review status; use one of: ${REVIEW_STATUSES.map((x) => x.label).join(', ')}.`);
+  }
+  return s.label;
+}
+
+export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null): Promise<void> {
+  const label = status === null ? null : statusText(status);
+  const loc = await locate(sync);
+  if (!loc) throw noResults();
+  if (loc.protected) throw protectedError(loc.state.sheet);
+  const sc = loc.columns.get(STATUS_HEADER);
+  const nc = loc.columns.get(NOTE_HEADER);
+  if (sc === undefined || nc === undefined) {
+    throw new TailmarkError('no-results', "Tailmark's status and note columns were not found where they were written. Run the review again.");
+  }
+  for (const r of rows) {
+    if (!Number.isInteger(r) || r < 0 || r >= loc.rows) {
+      throw new TailmarkError('bad-settings', `Row ${r} is outside the data (0..${loc.rows - 1}).`);
+    }
+  }
+  const sorted = [...new Set(rows)].sort((a, b) => a - b);
+  const target = sync.budget.target;
+  // Contiguous runs of rows become one range each.
+  let i = 0;
+  while (i < sorted.length) {
+    let j = i;
+    while (j + 1 < sorted.length && sorted[j + 1] === sorted[j] + 1) j++;
+    const n = j - i + 1;
+    const bytes = n * ((label?.length ?? 0) + (note?.length ?? 0) + 16);
+    if (bytes > target) throw new TailmarkError('too-large', 'Too many rows or too long a note to mark at once; mark fewer rows.');
+    await sync.reserve(bytes);
+    if (label !== null) {
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], sc, n, 1);
+      r.numberFormat = Array.from({ length: n }, () => ['@']);
+      r.values = Array.from({ length: n }, () => [label]);
+    }
+    if (note !== null) {
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], nc, n, 1);
+      r.numberFormat = Array.from({ length: n }, () => ['@']);
+      r.values = Array.from({ length: n }, () => [note]);
+    }
+    i = j + 1;
+  }
+  await sync.flush();
+}
+
+export async function selectDataRow(sync: Syncer, row: number): Promise<void> {
+  const loc = await locate(sync);
+  if (!loc) throw noResults();
+  if (!Number.isInteger(row) || row < 0 || row >= loc.rows) {
+    throw new TailmarkError('bad-settings', `Row ${row} is outside the data (0..${loc.rows - 1}).`);
+  }
+  const cols = [...loc.columns.values(), ...loc.userColumns.values(), loc.state.firstColumn];
+  const start = Math.min(...cols);
+  const end = Math.max(...cols) + 1;
+  loc.sheet.activate();
+  loc.sheet.getRangeByIndexes(loc.firstDataRow + row, start, 1, end - start).select();
+  await sync.sync();
+}
+
+export async function listExceptionRows(sync: Syncer): Promise<readonly Exception[]> {
+  const loc = await locate(sync, { allowMissing: true });
+  if (!loc) return [];
+  const settings = loc.settings;
+  const valueName = settings?.valueColumns[0] ?? null;
+  const find = (name: string | null | undefined) => (name ? loc.userColumns.get(name) : undefined);
+  const wanted: { key: string; column: number }[] = [];
+  const add = (key: string, column: number | undefined) => {
+    if (column !== undefined) wanted.push({ key, column });
+  };
+  add('status', loc.columns.get(STATUS_HEADER));
+  add('note', loc.columns.get(NOTE_HEADER));
+  add('id', find(settings?.idColumn));
+  add('value', find(valueName));
+  settings?.groupColumns.forEach((g, i) => add(`group${i}`, find(g)));
+  for (const v of settings?.valueColumns ?? []) {
+    const h = resultHeaders(v);
+    add(`score:${v}`, loc.columns.get(h.score));
+    add(`flag:${v}`, loc.columns.get(h.flag));
+  }
+  const got = new Map<string, unknown[]>();
+  for (const w of wanted) got.set(w.key, new Array<unknown>(loc.rows));
+  await readRows(
+    sync,
+    loc.sheet,
+    loc.firstDataRow,
+    loc.rows,
+    wanted.map((w) => ({ column: w.column, columnCount: 1, props: 'values' as const })),
+    (si, offset, d) => {
+      const into = got.get(wanted[si].key)!;
+      for (let r = 0; r < d.values.length; r++) into[offset + r] = d.values[r][0];
+    },
+  );
+  const text = (k: string, r: number) => {
+    const v = got.get(k)?.[r];
+    return v === undefined || v === null ? '' : String(v).trim();
+  };
+  const flagWords = new Set<string>([FLAG_WORDS.high, FLAG_WORDS.low]);
+  const out: Exception[] = [];
+  for (let r = 0; r < loc.rows; r++) {
+    let flaggedScore: number | null = null;
+    let anyFlag = false;
+    let firstScore: number | null = null;
+    for (const v of settings?.valueColumns ?? []) {
+      const f = text(`flag:${v}`, r);
+      const s = got.get(`score:${v}`)?.[r];
+      const score = typeof s === 'number' ? s : null;
+      if (firstScore === null) firstScore = score;
+      if (f !== '' && (flagWords.has(f) || f.length > 0)) {
+        anyFlag = true;
+        if (flaggedScore === null) flaggedScore = score;
+      }
+    }
+    const status = text('status', r);
+    const note = text('note', r);
+    if (!anyFlag && status === '' && note === '') continue;
+    const rawValue = got.get('value')?.[r];
+    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimalComma ?? false });
+    const group = (settings?.groupColumns ?? []).map((_, i) => text(`group${i}`, r) || '(blank)').join(' / ');
+    out.push({
+      row: r,
+      claimId: got.has('id') ? text('id', r) || null : null,
+      group: group === '' ? '(all rows)' : group,
+      value: parsed.ok ? parsed.value : null,
+      score: flaggedScore ?? firstScore,
+      status,
+      note,
+    });
+  }
+  return out;
+}
+
+export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
+  const res = await resolveTable(sync, table);
+  const want = [
+    ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'amount') })),
+    ...settings.groupColumns.map((name) => ({ name, kind: 'group' as const, column: columnOf(res, name, 'group') })),
+  ];
+  const cells: RawCell[][] = want.map(() => new Array<RawCell>(res.rows));
+  await readRows(
+    sync,
+    res.sheet,
+    res.headerRow + 1,
+    res.rows,
+    want.map((w) => ({ column: w.column, columnCount: 1, props: 'typed' as const })),
+    (si, offset, d) => {
+      const into = cells[si];
+      for (let r = 0; r < d.values.length; r++) into[offset + r] = toRawCell(d.values[r][0], d.valueTypes![r][0], d.numberFormat![r][0]);
+    },
+    res.bytesPerCell ? { bytesPerRowHint: res.bytesPerCell * want.length * 1.2 } : {},
+  );
+  return {
+    valueColumns: want.flatMap((w, i) => (w.kind === 'value' ? [{ name: w.name, cells: cells[i] }] : [])),
+    groupColumns: want.flatMap((w, i) => (w.kind === 'group' ? [{ name: w.name, cells: cells[i] }] : [])),
+  };
+}
+
+export async function loadRunSettings(sync: Syncer): Promise<RunSettings | null> {
+  const se = sync.context.workbook.settings.getItemOrNullObject(SETTINGS_KEY);
+  se.load('value');
+  await sync.sync();
+  return parseSettings(se.isNullObject ? null : se.value);
+}

@@ -1,0 +1,254 @@
+/**
+ * Browser end-to-end tests: the real task pane driving the sandbox workbook on the preview page,
+ * built for production and served by scripts/serve.mjs, in headless Chromium. Also saves the
+ * screenshots in docs/screenshots/.
+ */
+import { mkdirSync } from 'node:fs';
+import path from 'node:path';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { pageSize, PANE_GZIP_LIMIT } from '../../scripts/bundle-size.mjs';
+import { DEMO_GROUPS, demoClaims } from '../../src/demo/claims.js';
+import { NOTES_SHEET_NAME, PALETTE, REVIEW_STATUSES } from '../../src/report/style.js';
+import { scoreTable } from '../../src/scoring/index.js';
+import type { RawCell } from '../../src/scoring/types.js';
+import { buildWeb, OUT_DIR, openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
+
+/** What the batch engine flags on the demo data with the pane's default choices (robust z, both sides). */
+function expectedFlags(cutoff: number): number {
+  const demo = demoClaims();
+  const column = (h: string): { name: string; cells: RawCell[] } => {
+    const i = demo.headers.indexOf(h);
+    return { name: h, cells: demo.rows.map((r) => r[i]) };
+  };
+  const result = scoreTable(
+    { valueColumns: [column('Amount')], groupColumns: [column('Cost centre'), column('Category')] },
+    { method: 'robust', cutoff, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' },
+  );
+  return result.columns[0].flaggedRows;
+}
+
+const label = (id: string) => REVIEW_STATUSES.find((s) => s.id === id)!.label;
+const hex = (h: string) => `#${h.toUpperCase()}`;
+
+let session: Session;
+
+beforeAll(async () => {
+  buildWeb();
+  session = await startSession();
+  mkdirSync(SCREENSHOT_DIR, { recursive: true });
+}, 300_000);
+
+afterAll(async () => {
+  await session?.close();
+});
+
+async function ready(page: Page): Promise<void> {
+  await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+  await page.getByTestId('preview-flagged').waitFor({ timeout: 30_000 });
+}
+
+type Hook = {
+  snapshot(): string;
+  highlightAt(sheet: string, row: number, col: number): { fill: string | null } | null;
+  text(sheet: string, row: number, col: number): string;
+  sheetNames(): string[];
+  select(sheet: string, row: number, col: number): void;
+  headers(sheet: string): string[];
+};
+declare global {
+  interface Window {
+    tailmarkPreview: Hook;
+  }
+}
+
+async function runAndWait(page: Page): Promise<void> {
+  await page.getByTestId('run').click();
+  await page.getByTestId('summary').waitFor({ timeout: 60_000 });
+  await page.getByTestId('review-counts').waitFor({ timeout: 30_000 });
+}
+
+async function shot(page: Page, name: string, fullPage = false): Promise<void> {
+  await page.screenshot({ path: path.join(SCREENSHOT_DIR, name), fullPage });
+}
+
+describe('preview page with the real task pane', () => {
+  it('is labelled as a preview and makes no request outside our server', async () => {
+    const { page, requests, errors } = await openPage(session, 'preview.html');
+    await ready(page);
+    await expect(page.getByText('Preview — not Excel').first().isVisible()).resolves.toBe(true);
+    expect(requests.length).toBeGreaterThan(0);
+    for (const u of requests) expect(u.startsWith(session.url), u).toBe(true);
+    expect(errors).toEqual([]);
+    await page.close();
+  });
+
+  it('runs the whole flow on the demo data', async () => {
+    const { page, errors } = await openPage(session, 'preview.html');
+    await ready(page);
+
+    // Live preview: counts match the batch engine at the default and at a changed cutoff, nothing written.
+    const before = await page.evaluate(() => window.tailmarkPreview.snapshot());
+    await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
+    await page.getByTestId('cutoff').fill('3');
+    await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3)));
+    expect(expectedFlags(3)).toBeGreaterThan(expectedFlags(3.5));
+    await page.getByTestId('cutoff').fill('3.5');
+    await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
+    expect(await page.evaluate(() => window.tailmarkPreview.snapshot())).toBe(before);
+
+    // The chart of the planted masking group shows robust z flagging more than classic z.
+    await page.getByTestId('chart-group').selectOption(`${DEMO_GROUPS.masking.costCentre} / ${DEMO_GROUPS.masking.category}`);
+    const robust = Number(await page.getByTestId('chart-robust').textContent());
+    const classic = Number(await page.getByTestId('chart-classic').textContent());
+    expect(robust).toBeGreaterThan(classic);
+    await expect(page.getByTestId('chart').locator('desc').textContent()).resolves.toMatch(/masking/);
+
+    // Run: summary count equals the batch engine; results and a notes sheet appear.
+    await runAndWait(page);
+    const flagged = expectedFlags(3.5);
+    expect(await page.getByTestId('summary-flagged').textContent()).toBe(String(flagged));
+    expect(await page.getByTestId('open-count').textContent()).toBe(String(flagged));
+    await expect(page.getByTestId('caution').first().textContent()).resolves.toMatch(/not misconduct/);
+    const sheets = await page.evaluate(() => window.tailmarkPreview.sheetNames());
+    expect(sheets).toContain(NOTES_SHEET_NAME);
+    await expect(page.getByRole('tab', { name: NOTES_SHEET_NAME }).isVisible()).resolves.toBe(true);
+
+    // Next exception: the grid selects its row, and that row is highlighted in the "open" colour.
+    await page.getByTestId('next').click();
+    await expect.poll(() => page.getByTestId('position').textContent()).toBe(`2 / ${flagged}`);
+    const activeCell = page.locator('[role=gridcell][aria-selected=true]');
+    await activeCell.waitFor();
+    const rowIndex = Number((await activeCell.getAttribute('data-cell'))!.split(',')[0]);
+    const row = page.locator(`[data-cell^="${rowIndex},"]`);
+    await expect.poll(() => row.first().getAttribute('data-fill')).toBe(hex(PALETTE.open.fill));
+
+    // A status change in the grid recolours the row (conditional formats follow the status cell).
+    const status = page.locator(`select[data-status-row="${rowIndex}"]`);
+    await status.selectOption(label('cleared'));
+    await expect.poll(() => row.first().getAttribute('data-fill')).toBe(hex(PALETTE.cleared.fill));
+    await expect.poll(() => page.getByTestId('done-count').textContent()).toBe('1');
+
+    // A mark from the pane: note + status on the current claim.
+    await page.getByTestId('prev').click();
+    await page.getByTestId('status').selectOption(label('asked'));
+    await page.getByTestId('note').fill('=receipt requested');
+    await page.getByTestId('save-mark').click();
+    await expect.poll(() => page.getByTestId('notice').textContent()).toMatch(/Saved the mark on 1 claim/);
+
+    // Re-run keeps the marks.
+    await page.getByTestId('run').click();
+    await page.getByTestId('summary').waitFor();
+    await expect.poll(() => page.getByTestId('done-count').textContent()).toBe('1');
+    await expect.poll(() => status.inputValue()).toBe(label('cleared'));
+    await expect.poll(() => row.first().getAttribute('data-fill')).toBe(hex(PALETTE.cleared.fill));
+    const texts = await page.evaluate(() => {
+      const h = window.tailmarkPreview;
+      const sheet = h.sheetNames()[0];
+      const headers = h.headers(sheet);
+      const noteCol = headers.findIndex((x) => /note/i.test(x) && /tailmark/i.test(x));
+      const out: string[] = [];
+      for (let r = 1; r < 700; r++) out.push(h.text(sheet, r, noteCol));
+      return out;
+    });
+    expect(texts).toContain('=receipt requested');
+
+    await shot(page, 'preview-desktop-light.png');
+    expect(errors).toEqual([]);
+    await page.close();
+  });
+
+  it('cancel leaves the workbook as it was', async () => {
+    const { page } = await openPage(session, 'preview.html', { query: 'delay=600' });
+    await ready(page);
+    const before = await page.evaluate(() => window.tailmarkPreview.snapshot());
+    await page.getByTestId('run').click();
+    await page.getByTestId('progress').waitFor({ timeout: 20_000 });
+    await page.getByTestId('cancel').click();
+    await expect.poll(() => page.getByTestId('notice').textContent(), { timeout: 30_000 }).toMatch(/cancelled/i);
+    expect(await page.evaluate(() => window.tailmarkPreview.snapshot())).toBe(before);
+    expect(await page.getByTestId('summary').count()).toBe(0);
+    await page.close();
+  });
+
+  it('says what to do when the selection is an empty area', async () => {
+    const { page } = await openPage(session, 'preview.html');
+    await ready(page);
+    await page.evaluate(() => window.tailmarkPreview.select(window.tailmarkPreview.sheetNames()[0], 40, 20));
+    const error = page.getByTestId('error');
+    await error.waitFor({ timeout: 10_000 });
+    await expect(error.textContent()).resolves.toMatch(/Select/);
+    await page.close();
+  });
+
+  it('works with the keyboard alone', async () => {
+    const { page } = await openPage(session, 'preview.html');
+    await ready(page);
+    const pane = page.getByTestId('pane');
+    await pane.locator('button, input, select, textarea').first().focus();
+    // Tab forward until the Run button has focus, then press Enter.
+    let found = false;
+    for (let i = 0; i < 80 && !found; i++) {
+      await page.keyboard.press('Tab');
+      found = await page.evaluate(() => document.activeElement?.getAttribute('data-testid') === 'run');
+    }
+    expect(found).toBe(true);
+    await page.keyboard.press('Enter');
+    await page.getByTestId('summary').waitFor({ timeout: 60_000 });
+    // Next exception with Space, from the keyboard.
+    await page.getByTestId('next').focus();
+    await page.keyboard.press('Space');
+    await expect.poll(() => page.getByTestId('position').textContent()).toMatch(/^2 \//);
+    // A checkbox toggles with Space.
+    const box = pane.locator('input[type=checkbox]').first();
+    const was = await box.isChecked();
+    await box.focus();
+    await page.keyboard.press('Space');
+    await expect.poll(() => box.isChecked()).toBe(!was);
+    await page.close();
+  });
+
+  it('saves screenshots at 320 px and desktop width, light and dark', async () => {
+    for (const theme of ['light', 'dark'] as const) {
+      const desk = await openPage(session, 'preview.html', { theme, width: 1280, height: 860 });
+      await ready(desk.page);
+      await runAndWait(desk.page);
+      if (theme === 'dark') await shot(desk.page, 'preview-desktop-dark.png');
+      await desk.page.getByTestId('pane').screenshot({ path: path.join(SCREENSHOT_DIR, `pane-desktop-${theme}.png`) });
+      await desk.page.close();
+
+      const narrow = await openPage(session, 'preview.html', { theme, width: 320, height: 900 });
+      await ready(narrow.page);
+      await runAndWait(narrow.page);
+      const pane = narrow.page.getByTestId('pane');
+      // Nothing in the pane is wider than the 320 px viewport.
+      const overflow = await pane.evaluate((el) => el.scrollWidth - el.clientWidth);
+      expect(overflow).toBeLessThanOrEqual(1);
+      await pane.screenshot({ path: path.join(SCREENSHOT_DIR, `pane-320-${theme}.png`) });
+      await shot(narrow.page, `preview-320-${theme}.png`);
+      await narrow.page.close();
+    }
+  });
+});
+
+describe('task pane page outside Office', () => {
+  it('explains how to open it in Excel, links to the preview, and asks only for Office.js', async () => {
+    const { page, requests } = await openPage(session, 'taskpane.html');
+    await page.getByTestId('outside-office').waitFor({ timeout: 20_000 });
+    await expect(page.getByRole('link', { name: /preview page/ }).getAttribute('href')).resolves.toBe('preview.html');
+    const external = requests.filter((u) => !u.startsWith(session.url));
+    expect(external).toEqual(['https://appsforoffice.microsoft.com/lib/1/hosted/office.js']);
+    await page.close();
+  });
+});
+
+describe('bundle', () => {
+  it(`keeps the pane's initial JS under ${PANE_GZIP_LIMIT / 1024} KB gzipped and loads Office.js only in Office pages`, () => {
+    const pane = pageSize(OUT_DIR, 'taskpane.html');
+    expect(pane.scripts.length).toBeGreaterThan(0);
+    expect(pane.gzipped).toBeLessThan(PANE_GZIP_LIMIT);
+    expect(pane.external).toEqual(['https://appsforoffice.microsoft.com/lib/1/hosted/office.js']);
+    const preview = pageSize(OUT_DIR, 'preview.html');
+    expect(preview.external).toEqual([]);
+  });
+});
