@@ -7,7 +7,7 @@
  * peak RSS (process.resourceUsage().maxRSS) while running ours.
  *
  * Targets: ours <= 1/3 of the baseline's time; peak memory < 400 MB. Exit code 1 if missed.
- * Usage: npm run bench [-- --json]
+ * Usage: npm run bench [-- --json]   (npm run -s bench -- --json prints only the JSON line)
  */
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
@@ -18,6 +18,7 @@ import type { RawCell, ScoreOptions } from '../src/scoring/index.js';
 const ROWS = 1_048_575;
 const GROUPS = 2_000;
 const REPEATS = 3;
+const ROUNDS = 2;
 const TARGET_RATIO = 1 / 3;
 const TARGET_MB = 400;
 
@@ -132,8 +133,16 @@ function main(): void {
   const rows: { name: string; rows: number; groups: number; ms: number; baselineMs: number; ratio: number; peakMB: number }[] = [];
   let ok = true;
   for (const method of ['robust', 'classic'] as const) {
-    const o = runChild(method, 'ours');
-    const b = runChild(method, 'baseline');
+    // Alternate the two implementations over ROUNDS child processes and keep each one's best,
+    // so a burst of load on the (shared) machine does not decide the ratio.
+    let o = { ms: Infinity, peakMB: 0 };
+    let b = { ms: Infinity, peakMB: 0 };
+    for (let round = 0; round < ROUNDS; round++) {
+      const oi = runChild(method, 'ours');
+      const bi = runChild(method, 'baseline');
+      o = { ms: Math.min(o.ms, oi.ms), peakMB: Math.max(o.peakMB, oi.peakMB) };
+      b = { ms: Math.min(b.ms, bi.ms), peakMB: Math.max(b.peakMB, bi.peakMB) };
+    }
     const ratio = o.ms / b.ms;
     const r: ChildResult & { name: string; rows: number; groups: number; ratio: number } = {
       name: method, rows: ROWS, groups: GROUPS, ms: round(o.ms), baselineMs: round(b.ms), ratio: round(ratio, 3), peakMB: round(o.peakMB),
@@ -145,7 +154,7 @@ function main(): void {
     process.stdout.write(JSON.stringify(rows) + '\n');
   } else {
     const line = (cells: string[]): string => cells.map((c, i) => (i === 0 ? c.padEnd(9) : c.padStart(12))).join(' ');
-    console.log(`scoreTable vs simple-statistics baseline (best of ${REPEATS}; peak RSS of the child running scoreTable)`);
+    console.log(`scoreTable vs simple-statistics baseline (best of ${REPEATS} runs x ${ROUNDS} child processes; peak = max RSS of the children running scoreTable)`);
     console.log(line(['method', 'rows', 'groups', 'ms', 'baseline ms', 'ratio', 'peak MB']));
     for (const r of rows) console.log(line([r.name, String(r.rows), String(r.groups), r.ms.toFixed(1), r.baselineMs.toFixed(1), r.ratio.toFixed(3), r.peakMB.toFixed(1)]));
     console.log(`targets: ratio <= ${TARGET_RATIO.toFixed(3)}, peak < ${TARGET_MB} MB -> ${ok ? 'met' : 'MISSED'}`);

@@ -12,7 +12,7 @@ export const PANE_GZIP_LIMIT = 400 * 1024;
 /** @returns {{ page: string, scripts: string[], external: string[], minified: number, gzipped: number }} */
 export function pageSize(dir, page) {
   const html = readFileSync(path.join(dir, page), 'utf8');
-  const srcs = [...html.matchAll(/<script\b[^>]*\bsrc="([^"]+)"/g)].map((m) => m[1]);
+  const srcs = [...html.matchAll(/<script\b[^>]*?\bsrc=(?:"([^"]+)"|'([^']+)'|([^\s>]+))/g)].map((m) => m[1] ?? m[2] ?? m[3]);
   const external = srcs.filter((s) => /^[a-z]+:\/\//i.test(s) || s.startsWith('//'));
   const scripts = srcs.filter((s) => !external.includes(s));
   let minified = 0;

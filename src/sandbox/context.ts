@@ -7,8 +7,10 @@
  *   makes the set value readable locally (Office.js does the same).
  * - Property writes and method calls are queued and applied in order at `sync()`. Object paths
  *   (getItem, getRange...) are resolved at sync, when first used, and then stay bound.
- * - `...OrNullObject` results expose `isNullObject` after a sync; operating on a null object fails
- *   with InvalidOperation (stricter than Excel, which sometimes ignores such calls).
+ * - `...OrNullObject` results expose `isNullObject` after a sync; property writes and method calls
+ *   on a null object (or on objects reached from one) do nothing, as in Excel (Microsoft's own
+ *   samples rely on `worksheets.getItemOrNullObject("Sample").delete()`); loaded properties of a
+ *   null object read as null.
  * - A sync is atomic by default: if any queued statement fails, nothing from that sync is applied
  *   and nothing loaded becomes readable. Real Excel may have applied the statements before the
  *   failing one; `partialOnError: true` models that (statements before the failure stay applied).
@@ -156,6 +158,11 @@ export class SandboxContext {
           if (r?.commit) commits.push(r.commit);
           if (r?.responseBytes) respBytes += r.responseBytes + 1;
         } catch (e) {
+          if (e instanceof NullObjectSkip) {
+            // A statement on a null object does nothing (Excel's behaviour).
+            if (partial) model.commit();
+            continue;
+          }
           if (partial) model.rollback();
           throw decorate(e, a.statement);
         }
@@ -184,6 +191,14 @@ export class SandboxContext {
     this.memoResets = [];
     for (const c of commits) c();
     return passThroughValue as T;
+  }
+}
+
+/** Thrown when a statement reaches a null object; the statement is skipped, not failed. */
+export class NullObjectSkip extends Error {
+  constructor(path: string) {
+    super(`${path} is a null object`);
+    this.name = 'NullObjectSkip';
   }
 }
 
@@ -247,11 +262,15 @@ export abstract class ProxyBase<T> {
     return this.memo;
   }
 
-  /** @internal Resolve or throw ItemNotFound / InvalidOperation (null object). */
+  /**
+   * @internal Resolve, or throw ItemNotFound; for a null object (or an object reached from one)
+   * throw NullObjectSkip, which makes the queued statement a no-op — as in Excel, where e.g.
+   * `worksheets.getItemOrNullObject("x").delete()` does nothing when "x" does not exist.
+   */
   target(): T {
     const t = this.targetOrNull();
     if (t === null) {
-      if (this.orNull) throw err('InvalidOperation', `${this.path} is a null object (it does not exist); check isNullObject before using it.`, this.entity);
+      if (this.orNull) throw new NullObjectSkip(this.path);
       throw err('ItemNotFound', `The requested resource doesn't exist: ${this.path}.`, this.entity);
     }
     return t;
@@ -259,7 +278,13 @@ export abstract class ProxyBase<T> {
 
   /** @internal */
   _resolveNullness(): () => void {
-    const isNull = this.targetOrNull() === null;
+    let isNull: boolean;
+    try {
+      isNull = this.targetOrNull() === null;
+    } catch (e) {
+      if (!(e instanceof NullObjectSkip)) throw e;
+      isNull = true;
+    }
     return () => { this._isNull = isNull; };
   }
 
@@ -269,12 +294,13 @@ export abstract class ProxyBase<T> {
       return this._isNull;
     }
     if (this.context.syncCount === this.createdAt) throw notLoaded(this.entity, 'isNullObject');
-    return false;
+    return this._isNull ?? false;
   }
 
+  /** Loaded properties of a null object read as null (Office.js does not throw for them). */
   protected get<V>(prop: string): V {
     if (Object.prototype.hasOwnProperty.call(this._data, prop)) return this._data[prop] as V;
-    if (this.orNull && this._isNull === true) return null as V;
+    if (this._isNull === true) return null as V;
     throw notLoaded(this.entity, prop);
   }
 
@@ -309,7 +335,13 @@ export abstract class ProxyBase<T> {
 
   /** @internal Read the given props now (at sync time). */
   _readProps(props: readonly string[]): Record<string, unknown> {
-    const t = this.targetOrNull();
+    let t: T | null;
+    try {
+      t = this.targetOrNull();
+    } catch (e) {
+      if (e instanceof NullObjectSkip) return {};
+      throw e;
+    }
     const out: Record<string, unknown> = {};
     if (t === null) {
       if (!this.orNull) throw err('ItemNotFound', `The requested resource doesn't exist: ${this.path}.`, this.entity);
@@ -340,7 +372,13 @@ export abstract class ProxyBase<T> {
         statement: `${this.path}.load(${props.join(',')})`,
         payload: props,
         run: () => {
-          const data = this._readProps(props);
+          let data: Record<string, unknown>;
+          try {
+            data = this._readProps(props);
+          } catch (e) {
+            if (e instanceof NullObjectSkip) return { commit: () => { this._isNull = true; } };
+            throw e;
+          }
           return { commit: () => { Object.assign(this._data, data); }, responseBytes: jsonBytes(data) };
         },
       });
@@ -378,7 +416,13 @@ abstract class CollectionBase<T, I extends ProxyBase<unknown>> extends ProxyBase
       statement: `${this.path}.load(items/${props.join(',')})`,
       payload: props,
       run: () => {
-        const t = this.target();
+        let t: T;
+        try {
+          t = this.target();
+        } catch (e) {
+          if (e instanceof NullObjectSkip) return { commit: () => { this._items = []; this._isNull = true; } };
+          throw e;
+        }
         const items = this.list(t);
         const datas = items.map((it) => it._readProps(props));
         const ownData: Record<string, unknown> = {};
@@ -880,18 +924,37 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
       const at = cellInput(v, t.rect, where);
       const m = this.context.model;
       const { r0, c0, rows, cols } = t.rect;
-      // Interpret everything first so a bad cell leaves the range untouched.
-      const writes = new Array(rows * cols);
-      for (let i = 0; i < rows; i++) {
-        for (let j = 0; j < cols; j++) {
+      // Interpret every cell first (column by column) so a bad cell leaves the range untouched;
+      // then apply each column as runs (one undo-log entry per column and attribute).
+      const planned: { c: number; vs: unknown[]; fs: unknown[]; qs: unknown[]; ns: unknown[] | null }[] = [];
+      for (let j = 0; j < cols; j++) {
+        const c = c0 + j;
+        const col = t.sheet.cols[c];
+        const curV = col?.v; const curF = col?.f; const curQ = col?.qp; const curN = col?.nf;
+        const vs = new Array(rows); const fs = new Array(rows); const qs = new Array(rows);
+        let ns: unknown[] | null = null;
+        for (let i = 0; i < rows; i++) {
+          const r = r0 + i;
           const x = at(i, j);
-          if (x === null || x === undefined) { writes[i * cols + j] = null; continue; }
-          writes[i * cols + j] = interpretInput(x, m.getAttr(t.sheet, r0 + i, c0 + j, 'nf'), `${where} at ${formatAddress(t.sheet.name, rect(r0 + i, c0 + j, 1, 1))}`);
+          if (typeof x === 'number' && Number.isFinite(x)) { vs[i] = x; fs[i] = undefined; qs[i] = undefined; continue; }
+          if (x === null || x === undefined) {
+            vs[i] = curV?.[r]; fs[i] = curF?.[r]; qs[i] = curQ?.[r];
+            continue;
+          }
+          const w = interpretInput(x, curN?.[r], `${where} at ${formatAddress(t.sheet.name, rect(r, c, 1, 1))}`);
+          vs[i] = w.v; fs[i] = w.f; qs[i] = w.qp;
+          if (w.nf !== undefined) {
+            if (!ns) { ns = new Array(rows); for (let k = 0; k < rows; k++) ns[k] = curN?.[r0 + k]; }
+            ns[i] = w.nf;
+          }
         }
+        planned.push({ c, vs, fs, qs, ns });
       }
-      for (let j = 0; j < cols; j++) for (let i = 0; i < rows; i++) {
-        const w = writes[i * cols + j];
-        if (w) m.applyWrite(t.sheet, r0 + i, c0 + j, w);
+      for (const p of planned) {
+        m.writeRun(t.sheet, p.c, 'v', r0, p.vs);
+        m.writeRun(t.sheet, p.c, 'f', r0, p.fs);
+        m.writeRun(t.sheet, p.c, 'qp', r0, p.qs);
+        if (p.ns) m.writeRun(t.sheet, p.c, 'nf', r0, p.ns);
       }
     });
   }
@@ -911,10 +974,14 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
         if (x === null || x === undefined) continue;
         if (typeof x !== 'string') throw err('InvalidArgument', `${where}: a number format must be a string.`, where);
       }
-      for (let j = 0; j < t.rect.cols; j++) for (let i = 0; i < t.rect.rows; i++) {
-        const x = at(i, j) as string | null | undefined;
-        if (x === null || x === undefined) continue;
-        m.setAttr(t.sheet, t.rect.r0 + i, t.rect.c0 + j, 'nf', x === 'General' ? undefined : x);
+      const run = new Array(t.rect.rows);
+      for (let j = 0; j < t.rect.cols; j++) {
+        const c = t.rect.c0 + j;
+        for (let i = 0; i < t.rect.rows; i++) {
+          const x = at(i, j) as string | null | undefined;
+          run[i] = x === null || x === undefined ? m.getAttr(t.sheet, t.rect.r0 + i, c, 'nf') : x === 'General' ? undefined : x;
+        }
+        m.writeRun(t.sheet, c, 'nf', t.rect.r0, run);
       }
     });
   }

@@ -4,7 +4,7 @@
  * The exceljs bridge lives in './exceljs-bridge.js' (import it separately so the base bundle stays small).
  */
 export { SandboxWorkbook, sandboxFromRows, diffSnapshots } from './workbook.js';
-export type { SandboxStats, ByteStats, SandboxCellInput, CellSnapshot, SheetSnapshot, SandboxSnapshot, SelectionHandler } from './workbook.js';
+export type { SandboxStats, ByteStats, SandboxCellInput, CellSnapshot, SheetSnapshot, SandboxSnapshot, SelectionHandler, SandboxRun } from './workbook.js';
 export type { SandboxOptions } from './context.js';
 export { SandboxContext, SandboxClientResult } from './context.js';
 export { SandboxError, isSandboxError } from './errors.js';

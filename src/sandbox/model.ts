@@ -109,8 +109,8 @@ const cloneRects = (rs: Rect[]): Rect[] => rs.map((r) => ({ ...r }));
  */
 export class Tx {
   private readonly logArr: unknown[][] = [];
-  private readonly logIdx: number[] = [];
-  private readonly logOld: unknown[] = [];
+  private readonly logStart: number[] = [];
+  private readonly logOld: unknown[][] = [];
   private readonly logLen: number[] = [];
   readonly fresh = new Set<unknown[]>();
   private readonly sheetSaved = new Map<SheetModel, SheetSaved>();
@@ -140,18 +140,21 @@ export class Tx {
     });
   }
 
-  log(arr: unknown[], i: number): void {
+  /** Remember entries [start, start+n) of `arr` (and its length) before they are overwritten. */
+  log(arr: unknown[], start: number, n = 1): void {
     if (this.fresh.has(arr)) return;
     this.logArr.push(arr);
-    this.logIdx.push(i);
-    this.logOld.push(arr[i]);
+    this.logStart.push(start);
+    this.logOld.push(start < arr.length ? arr.slice(start, Math.min(start + n, arr.length)) : []);
     this.logLen.push(arr.length);
   }
 
   rollback(): void {
     for (let k = this.logArr.length - 1; k >= 0; k--) {
       const arr = this.logArr[k];
-      arr[this.logIdx[k]] = this.logOld[k];
+      const old = this.logOld[k];
+      const start = this.logStart[k];
+      for (let i = 0; i < old.length; i++) arr[start + i] = old[i];
       if (arr.length !== this.logLen[k]) arr.length = this.logLen[k];
     }
     for (const [s, saved] of this.sheetSaved) {
@@ -380,6 +383,42 @@ export class WorkbookModel {
       for (let k = arr.length; k < r; k++) arr.push(undefined);
     }
     arr[r] = value;
+  }
+
+  /** Direct bulk write of plain values into one column (setup only, outside transactions). Clears formulas there. */
+  bulkValues(s: SheetModel, c: number, r0: number, values: readonly StoredValue[]): void {
+    if (this.tx) throw new SandboxError('GeneralException', 'Sandbox: bulkValues inside a sync.');
+    while (s.cols.length < c) s.cols.push(undefined);
+    const col = (s.cols[c] ??= {});
+    const v = (col.v ??= []);
+    for (let k = v.length; k < r0; k++) v.push(undefined);
+    for (let i = 0; i < values.length; i++) {
+      if (r0 + i < v.length) v[r0 + i] = values[i];
+      else v.push(values[i]);
+    }
+    if (col.f) for (let i = 0; i < values.length && r0 + i < col.f.length; i++) col.f[r0 + i] = undefined;
+    if (col.qp) for (let i = 0; i < values.length && r0 + i < col.qp.length; i++) col.qp[r0 + i] = undefined;
+  }
+
+  /**
+   * Write a contiguous run of one attribute in one column: entries [r0, r0 + values.length).
+   * One undo-log entry per run, so writing a chunk of rows costs O(rows), not O(rows) allocations.
+   */
+  writeRun(s: SheetModel, c: number, attr: Attr, r0: number, values: readonly unknown[]): void {
+    const existing = s.cols[c]?.[attr] as unknown[] | undefined;
+    if (!existing || existing.length <= r0) {
+      let any = false;
+      for (let i = 0; i < values.length; i++) if (values[i] !== undefined) { any = true; break; }
+      if (!any) return;
+    }
+    const arr = this.writable(s, c, attr);
+    if (this.tx) this.tx.log(arr, r0, values.length);
+    for (let k = arr.length; k < r0; k++) arr.push(undefined);
+    for (let i = 0; i < values.length; i++) {
+      const r = r0 + i;
+      if (r < arr.length) arr[r] = values[i];
+      else arr.push(values[i]);
+    }
   }
 
   getAttr<A extends Attr>(s: SheetModel, r: number, c: number, attr: A): NonNullable<ColumnData[A]>[number] | undefined {

@@ -75,6 +75,14 @@ export interface SandboxSnapshot {
   selection: { sheet: string; address: string };
 }
 
+type Batch<T> = (context: Excel.RequestContext) => Promise<T>;
+
+/** Excel.run's shape: run(batch) or run(object | context, batch). */
+export interface SandboxRun {
+  <T>(batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
+  <T>(object: OfficeExtension.ClientRequestContext | OfficeExtension.ClientObject | { context: unknown }, batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
+}
+
 export type SelectionHandler = (args: { workbook: unknown; type: string }) => Promise<unknown> | unknown;
 
 function newBytes(): ByteStats {
@@ -89,6 +97,8 @@ export class SandboxWorkbook {
   private readonly listeners = new Map<number, SelectionHandler>();
   private nextListener = 1;
   private pendingEvents: Promise<void>[] = [];
+  /** What an import (sandboxFromExcelJs) met but could not carry, one line each. */
+  readonly importNotes: string[] = [];
   /** Errors thrown by selection-changed handlers (flushEvents rethrows the first). */
   readonly eventErrors: unknown[] = [];
 
@@ -110,23 +120,35 @@ export class SandboxWorkbook {
   /**
    * Like Excel.run: a fresh RequestContext per batch; queued work left at the end is synced
    * (as Excel.run does); afterwards the context's objects cannot queue more work.
+   * `run(objectOrContext, batch)` reuses an earlier context (Excel.run's overload), e.g. to remove
+   * an event handler: `run(handlerResult.context, async (ctx) => { handlerResult.remove(); await ctx.sync(); })`.
    * This is the one place where the sandbox's context is presented as an Excel.RequestContext:
    * the proxies implement the members Tailmark uses, not the whole interface, so the type is
    * asserted here, at the boundary, and nowhere else.
    */
-  run = async <T>(batch: (context: Excel.RequestContext) => Promise<T>): Promise<T> => {
+  readonly run: SandboxRun = (<T>(a: unknown, b?: unknown): Promise<T> => {
+    if (typeof a === 'function') return this.runIn<T>(new SandboxContext(this), a as Batch<T>);
+    const ctx = a instanceof SandboxContext ? a : (a as { context?: unknown } | null)?.context;
+    if (!(ctx instanceof SandboxContext) || ctx.sandbox !== this || typeof b !== 'function') {
+      return Promise.reject(new SandboxError('InvalidArgument', 'run(object, batch): the object must be a context or an object of this sandbox, and batch a function.'));
+    }
+    return this.runIn<T>(ctx, b as Batch<T>);
+  }) as SandboxRun;
+
+  private async runIn<T>(ctx: SandboxContext, batch: Batch<T>): Promise<T> {
     this.stats.runs++;
-    const ctx = new SandboxContext(this);
     const before = this.selectionKey();
+    ctx.closed = false;
     try {
       const result = await batch(ctx as unknown as Excel.RequestContext);
       if (ctx.queue.length > 0) await ctx.sync();
       return result;
     } finally {
+      ctx.queue = [];
       ctx.closed = true;
       if (this.selectionKey() !== before) this.fireSelectionChanged();
     }
-  };
+  }
 
   /** The same context object `run` hands out, typed as the sandbox's own classes (for sandbox tests). */
   newContext(): SandboxContext {
@@ -255,6 +277,20 @@ export class SandboxWorkbook {
     const width = rows.reduce((w, r) => Math.max(w, r.length), 0);
     if (at.c0 + width > MAX_COLS || at.r0 + rows.length > MAX_ROWS) throw new SandboxError('InvalidArgument', 'Sandbox: block extends outside the grid.');
     for (let j = 0; j < width; j++) {
+      // Fast path: plain scalars go straight into the column's value array.
+      const scalars: StoredValue[] = new Array(rows.length);
+      let plain = true;
+      for (let i = 0; i < rows.length; i++) {
+        const v = rows[i][j];
+        if (v === undefined || v === null || v === '') { scalars[i] = undefined; continue; }
+        const t = typeof v;
+        if (t === 'number' || t === 'string' || t === 'boolean' || v instanceof CellError) scalars[i] = v as StoredValue;
+        else { plain = false; break; }
+      }
+      if (plain) {
+        this.model.bulkValues(s, at.c0 + j, at.r0, scalars);
+        continue;
+      }
       for (let i = 0; i < rows.length; i++) {
         const v = rows[i][j];
         if (v === undefined || v === null || v === '') continue;
@@ -263,7 +299,6 @@ export class SandboxWorkbook {
         } else this.setCell(sheet, at.r0 + i, at.c0 + j, v as SandboxCellInput);
       }
     }
-    void s;
   }
 
   setColumnWidth(sheet: string, column: string, points: number): void {
@@ -383,21 +418,22 @@ export class SandboxWorkbook {
     const m = this.model;
     const sheets = m.sheets.map((s, position): SheetSnapshot => {
       const cells: Record<string, CellSnapshot> = {};
-      const rowsWith = new Set<number>();
+      // Row-major over the stored extent of the used columns.
+      const used: number[] = [];
+      let maxLen = 0;
       for (let c = 0; c < s.cols.length; c++) {
         const col = s.cols[c];
         if (!col) continue;
-        for (const a of ATTRS) {
-          const arr = col[a] as unknown[] | undefined;
-          if (!arr) continue;
-          for (let r = 0; r < arr.length; r++) if (arr[r] !== undefined) rowsWith.add(r * MAX_COLS + c);
-        }
+        let len = 0;
+        for (const a of ATTRS) { const arr = col[a] as unknown[] | undefined; if (arr && arr.length > len) len = arr.length; }
+        if (len > 0) { used.push(c); if (len > maxLen) maxLen = len; }
       }
-      for (const key of [...rowsWith].sort((x, y) => x - y)) {
-        const r = Math.floor(key / MAX_COLS);
-        const c = key % MAX_COLS;
-        const cs = cellSnapshot(s, r, c);
-        if (cs) cells[`${columnLetters(c)}${r + 1}`] = cs;
+      const letters = used.map((c) => columnLetters(c));
+      for (let r = 0; r < maxLen; r++) {
+        for (let k = 0; k < used.length; k++) {
+          const cs = cellSnapshot(s, r, used[k]);
+          if (cs) cells[letters[k] + (r + 1)] = cs;
+        }
       }
       const columnWidths: Record<string, number> = {};
       for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) columnWidths[columnLetters(c)] = w;

@@ -38,8 +38,9 @@ export function oneInN(p: number): string {
   return `about 1 in ${formatNumber(rounded, decimals).replace(/\.0$/, '')}`;
 }
 
-const directionWords = (d: Direction): string =>
-  d === 'both' ? 'on either side' : d === 'high' ? 'above (high side only)' : 'below (low side only)';
+const sideWords = (d: Direction): string => (d === 'both' ? 'away from' : d === 'high' ? 'above' : 'below');
+const sideNote = (d: Direction): string =>
+  d === 'both' ? ' Both sides are checked.' : d === 'high' ? ' Only the high side is checked.' : ' Only the low side is checked.';
 
 /**
  * The distance, in SDs from the mean, of the upper IQR fence Q3 + k x IQR for normal data:
@@ -69,9 +70,9 @@ export function describeCutoff(method: MethodId, cutoff: number, direction: Dire
   }
   const p = tailProbability(cutoff, direction);
   const what = method === 'robust'
-    ? `more than ${c} scaled MADs (1.4826 x median absolute deviation) ${directionWords(direction)} of its group's median`
-    : `more than ${c} standard deviations ${directionWords(direction)} of its group's mean`;
-  const tail = `For normally distributed amounts, ${oneInN(p)} values would pass this by chance.`;
+    ? `more than ${c} scaled MADs (1.4826 x median absolute deviation) ${sideWords(direction)} its group's median`
+    : `more than ${c} standard deviations ${sideWords(direction)} its group's mean`;
+  const tail = `${sideNote(direction).trim()} For normally distributed amounts, ${oneInN(p)} values would pass this by chance.`;
   const extra = method === 'classic'
     ? ' A few large amounts raise the mean and SD together and can hide one another (masking); in a group of n, |z| cannot exceed (n - 1)/sqrt(n).'
     : ' The median and MAD are not pulled by the unusual amounts themselves, so several of them cannot hide one another.';

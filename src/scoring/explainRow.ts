@@ -58,30 +58,35 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled').map((f) => FALLBACK_WORDS[f]).filter((w) => w !== '');
   const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
   const cut = `${col.method === 'iqr' ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
-  const logNote = log ? ' on the log scale' : '';
+  const logNote = log ? ' (log scale)' : '';
   const centreText = (c: number | null): string => (c === null ? 'n/a' : log ? `${formatNumber(Math.exp(c))} (ln ${formatNumber(c, 3)})` : formatNumber(c));
-  const scaleText = (s: number | null): string => (s === null ? '0' : log ? `${formatNumber(s, 3)} in ln units` : formatNumber(s));
+  const scaleText = (v: number | null): string => (v === null ? '0' : log ? `${formatNumber(v, 3)} in ln units` : formatNumber(v));
 
   if (col.method === 'iqr') {
-    const bounds = `Q1 ${fmtQ(stats, 'q1', log)}, Q3 ${fmtQ(stats, 'q3', log)}, ${stats.fallbacks.includes('iqr-zero') ? "column's IQR" : 'IQR'} ${scaleText(stats.scale)}, ` +
-      `fences ${stats.lower === null ? '-' : formatNumber(stats.lower)} to ${stats.upper === null ? '-' : formatNumber(stats.upper)}, n = ${stats.n}`;
+    const fences = stats.lower !== null && stats.upper !== null
+      ? `fences ${formatNumber(stats.lower)} to ${formatNumber(stats.upper)}`
+      : stats.upper !== null ? `upper fence ${formatNumber(stats.upper)}` : stats.lower !== null ? `lower fence ${formatNumber(stats.lower)}` : 'no fences';
+    const iqrName = stats.fallbacks.includes('iqr-zero') ? "column's IQR" : 'IQR';
+    const figures = log
+      ? `${fences}, ${iqrName} of ln amounts ${formatNumber(stats.scale ?? 0, 3)}, n = ${stats.n}`
+      : `Q1 ${fmtQ(stats, 'q1')}, Q3 ${fmtQ(stats, 'q3')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
     const where = z > 0
-      ? `is ${formatScore(z)} IQRs above the upper fence${logNote} of ${against}`
+      ? `is ${formatScore(z)} IQRs${logNote} above the upper fence of ${against}`
       : z < 0
-        ? `is ${formatScore(-z)} IQRs below the lower fence${logNote} of ${against}`
+        ? `is ${formatScore(-z)} IQRs${logNote} below the lower fence of ${against}`
         : `lies between the fences${logNote} of ${against}`;
-    return `${amount} ${where} (${bounds}); ${cut}. ${tail}`;
+    return `${amount} ${where} (${figures}); ${cut}. ${tail}`;
   }
   const robust = col.method === 'robust';
   const side = z > 0 ? 'above' : z < 0 ? 'below' : 'at';
   const centreName = robust ? 'median' : 'mean';
   const scaleName = robust ? (stats.fallbacks.includes('mad-zero-used-meanad') ? '1.2533 x mean abs. deviation' : 'scaled MAD') : 'SD';
-  const scoreWords = `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'classic z'}`;
-  const lead = side === 'at' ? `is at the ${centreName}${logNote} of ${against}` : `is ${scoreWords} ${side} the ${centreName}${logNote} of ${against}`;
+  const scoreWords = `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'classic z'}${logNote}`;
+  const lead = side === 'at' ? `is at the ${centreName}${logNote} of ${against}` : `is ${scoreWords} ${side} the ${centreName} of ${against}`;
   return `${amount} ${lead} (${centreName} ${centreText(stats.center)}, ${scaleName} ${scaleText(stats.scale)}, n = ${stats.n}); ${cut}. ${tail}`;
 }
 
-function fmtQ(s: GroupStats, which: 'q1' | 'q3', log: boolean): string {
+function fmtQ(s: GroupStats, which: 'q1' | 'q3'): string {
   const v = s[which];
-  return v === null ? 'n/a' : formatNumber(v) + (log ? ' (amounts)' : '');
+  return v === null ? 'n/a' : formatNumber(v);
 }

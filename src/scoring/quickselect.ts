@@ -1,10 +1,15 @@
+/** Ranges longer than this take a Floyd-Rivest sample pivot. */
+const SAMPLE_ABOVE = 600;
+
 /**
  * In-place selection: rearranges `a[left..right]` so that `a[k]` holds the value it would have if
  * that range were sorted ascending, every element before it (within the range) is <= `a[k]` and
  * every element after it is >= `a[k]`.
  *
  * Algorithm: Hoare's FIND / quickselect (C. A. R. Hoare, "Algorithm 65: Find", Communications of
- * the ACM 4(7), 1961) with a median-of-three pivot and a branch-free Lomuto partition (the
+ * the ACM 4(7), 1961). Pivot: median of three for ranges up to 600 elements; above that, the
+ * Floyd-Rivest sample window (R. W. Floyd & R. L. Rivest, "Algorithm 489: SELECT", CACM 18(3),
+ * 1975), as simple-statistics also does. Partition: a branch-free Lomuto partition (the
  * comparison result is added to the write index instead of branching on it, which avoids
  * mispredicted branches on random data: about 2.5x faster than a branching partition here).
  * Ties are safe: when the target lies at or right of the pivot, a second branch-free pass gathers
@@ -22,12 +27,26 @@ export function quickselect(a: Float64Array, k: number, left = 0, right = a.leng
       a.subarray(left, right + 1).sort();
       return;
     }
-    const mid = left + ((right - left) >> 1);
-    let t: number;
-    if (a[mid] < a[left]) { t = a[mid]; a[mid] = a[left]; a[left] = t; }
-    if (a[right] < a[left]) { t = a[right]; a[right] = a[left]; a[left] = t; }
-    if (a[right] < a[mid]) { t = a[right]; a[right] = a[mid]; a[mid] = t; }
-    const p = a[mid];
+    if (right - left > SAMPLE_ABOVE) {
+      // Floyd & Rivest: select within a sample window around k first, so a[k] is a pivot close
+      // to the target rank and the partition below leaves only a small range.
+      const n = right - left + 1;
+      const m = k - left + 1;
+      const z = Math.log(n);
+      const s = 0.5 * Math.exp((2 * z) / 3);
+      const sd = 0.5 * Math.sqrt((z * s * (n - s)) / n) * (m - n / 2 < 0 ? -1 : 1);
+      const nl = Math.max(left, Math.floor(k - (m * s) / n + sd));
+      const nr = Math.min(right, Math.floor(k + ((n - m) * s) / n + sd));
+      quickselect(a, k, nl, nr);
+    } else {
+      const mid = left + ((right - left) >> 1);
+      let t: number;
+      if (a[mid] < a[left]) { t = a[mid]; a[mid] = a[left]; a[left] = t; }
+      if (a[right] < a[left]) { t = a[right]; a[right] = a[left]; a[left] = t; }
+      if (a[right] < a[mid]) { t = a[right]; a[right] = a[mid]; a[mid] = t; }
+      t = a[mid]; a[mid] = a[k]; a[k] = t;
+    }
+    const p = a[k];
     // Pass 1: [left, j) < p, [j, right] >= p.
     let j = left;
     for (let i = left; i <= right; i++) {

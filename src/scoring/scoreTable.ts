@@ -84,8 +84,8 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  *    centre / scale / bounds;
  * 5. score and flag every row in row order.
  * Groups with fewer than `minGroupSize` usable values are compared with the whole column
- * ('pool') or left unscored ('skip'). The whole-column population (`pooled`) is summarised when
- * a group needs it, else on first read of `ColumnScores.pooled`.
+ * ('pool') or left unscored ('skip'). The whole column is also summarised as one population
+ * (`ColumnScores.pooled`).
  *
  * Cost: O(rows x (key columns + value columns)) expected time; memory about 26 bytes per row per
  * value column plus 16 bytes per row of scratch and grouping.
@@ -142,22 +142,25 @@ function scoreColumn(
     if (e === 0) nAll++;
     else colCounts[e - 1]++;
   }
+  // Summarised when a group first needs it (a pooled small group, an IQR group borrowing the
+  // column's IQR), else once the groups are done; either way it reuses the `dev` scratch and a
+  // scratch of its own only while `buf` is still in use by the groups.
   let colCache: { s: Summary; o: Summary; fit: Fit } | null = null;
+  let groupsDone = false;
   const column = (): { s: Summary; o: Summary; fit: Fit } => {
     if (colCache !== null) return colCache;
-    const b = new Float64Array(nAll);
-    const d = new Float64Array(nAll);
+    const b = groupsDone ? buf : new Float64Array(nAll);
     let k = 0;
     for (let r = 0; r < rowCount; r++) if (exclusion[r] === 0) b[k++] = y[r];
-    const s = summarize(b, nAll, d);
-    const o = logScale ? summarizeOriginal(values, exclusion, null, 0, rowCount, b, d) : s;
+    const s = summarize(b.subarray(0, nAll), nAll, dev);
+    const o = logScale ? summarizeOriginal(values, exclusion, b, dev) : s;
     colCache = { s, o, fit: NO_FIT };
     colCache.fit = method.fit(s, opts.cutoff, opts.direction, () => s);
     return colCache;
   };
   const columnSummary = (): Summary => column().s;
 
-  const scores = new Float64Array(rowCount).fill(NaN);
+  const scores = new Float64Array(rowCount); // every row is written by scoreRows
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
   const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
@@ -212,6 +215,9 @@ function scoreColumn(
     groupFallbacks[g] = fallbacks;
   }
 
+  groupsDone = true;
+  const whole = column();
+
   // 5. Score every row in row order.
   const flaggedPerGroup = new Int32Array(nGroups);
   const scoredRows = scoreRows(fits, popOf, groupOf, opts.cutoff, opts.direction, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
@@ -228,7 +234,10 @@ function scoreColumn(
     );
   }
 
-  let pooledStats: GroupStats | null = null;
+  const pooled = makeStats(
+    '', WHOLE_COLUMN_LABEL, [], rowCount, nAll, reasonCounts(colCounts, 0), whole.o, whole.fit, logScale, pooledFlagged,
+    [...whole.fit.fallbacks], whole.fit.kind === 'none' ? 'none' : 'column',
+  );
   const col: ColumnScores = {
     column: name,
     method: opts.method,
@@ -242,17 +251,7 @@ function scoreColumn(
     groupOf,
     population,
     groups,
-    /** Computed on first read unless a group already needed the whole-column population. */
-    get pooled(): GroupStats {
-      if (pooledStats === null) {
-        const c = column();
-        pooledStats = makeStats(
-          '', WHOLE_COLUMN_LABEL, [], rowCount, nAll, reasonCounts(colCounts, 0), c.o, c.fit, logScale, pooledFlagged,
-          [...c.fit.fallbacks], c.fit.kind === 'none' ? 'none' : 'column',
-        );
-      }
-      return pooledStats;
-    },
+    pooled,
     excludedCounts: reasonCounts(colCounts, 0),
     scoredRows,
     flaggedRows,
@@ -308,16 +307,10 @@ function parseColumn(
 }
 
 /** Summary of the original (not log) values of the usable rows, for the descriptive fields on log scale. */
-function summarizeOriginal(
-  values: Float64Array, exclusion: Uint8Array, rows: Int32Array | null, from: number, to: number,
-  buf: Float64Array, dev: Float64Array,
-): Summary {
+function summarizeOriginal(values: Float64Array, exclusion: Uint8Array, buf: Float64Array, dev: Float64Array): Summary {
   let n = 0;
-  for (let i = from; i < to; i++) {
-    const r = rows === null ? i : rows[i];
-    if (exclusion[r] === 0) buf[n++] = values[r];
-  }
-  return n === 0 ? EMPTY_SUMMARY : summarize(buf, n, dev);
+  for (let r = 0; r < values.length; r++) if (exclusion[r] === 0) buf[n++] = values[r];
+  return n === 0 ? EMPTY_SUMMARY : summarize(buf.subarray(0, n), n, dev);
 }
 
 const MAX = Number.MAX_VALUE;
@@ -334,10 +327,12 @@ function scoreRows(
   const n = y.length;
   let count = 0;
   for (let r = 0; r < n; r++) {
-    if (exclusion[r] !== 0) continue;
     const g = groupOf[r];
     const fit = fits[g];
-    if (fit.kind === 'none') continue;
+    if (exclusion[r] !== 0 || fit.kind === 'none') {
+      scores[r] = NaN;
+      continue;
+    }
     count++;
     population[r] = popOf[g];
     const v = y[r] / fit.unit;

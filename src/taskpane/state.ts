@@ -49,6 +49,8 @@ export interface PaneState {
   readonly checked: readonly number[];
   readonly statusDraft: string;
   readonly noteDraft: string;
+  /** The reviewer has edited the drafts since they were loaded: a refresh must not overwrite them. */
+  readonly draftDirty: boolean;
   readonly error: PaneError | null;
   readonly notice: string | null;
   readonly confirmRemove: boolean;
@@ -72,6 +74,7 @@ export const initialState: PaneState = {
   checked: [],
   statusDraft: '',
   noteDraft: '',
+  draftDirty: false,
   error: null,
   notice: null,
   confirmRemove: false,
@@ -122,7 +125,7 @@ export function valueCandidates(table: DetectedTable): readonly DetectedColumn[]
 
 /** Columns offered as group columns: keys and short text. */
 export function groupCandidates(table: DetectedTable): readonly DetectedColumn[] {
-  return table.columns.filter((c) => c.guess !== 'empty' && c.guess !== 'amount' && c.guess !== 'date');
+  return table.columns.filter((c) => c.guess !== 'empty' && c.guess !== 'amount' && c.guess !== 'date' && c.guess !== 'id');
 }
 
 /** True when every column a saved setting names is present in the table. */
@@ -219,9 +222,9 @@ function clampIndex(i: number, n: number): number {
   return ((i % n) + n) % n;
 }
 
-function draftsFor(list: readonly Exception[], index: number): { statusDraft: string; noteDraft: string } {
+function draftsFor(list: readonly Exception[], index: number): { statusDraft: string; noteDraft: string; draftDirty: false } {
   const e = list[index];
-  return { statusDraft: e ? e.status : '', noteDraft: e ? e.note : '' };
+  return { statusDraft: e ? e.status : '', noteDraft: e ? e.note : '', draftDirty: false };
 }
 
 export function reducer(state: PaneState, action: Action): PaneState {
@@ -289,7 +292,9 @@ export function reducer(state: PaneState, action: Action): PaneState {
         if (at >= 0) current = at;
       }
       const rows = new Set(list.map((e) => e.row));
-      return { ...state, exceptions: list, current, checked: state.checked.filter((r) => rows.has(r)), ...draftsFor(list, current) };
+      const sameClaim = list[current]?.row === state.exceptions[state.current]?.row;
+      const drafts = state.draftDirty && sameClaim ? {} : draftsFor(list, current);
+      return { ...state, exceptions: list, current, checked: state.checked.filter((r) => rows.has(r)), ...drafts };
     }
     case 'move': {
       if (state.exceptions.length === 0) return state;
@@ -314,9 +319,10 @@ export function reducer(state: PaneState, action: Action): PaneState {
         ...state,
         statusDraft: action.status !== undefined ? action.status : state.statusDraft,
         noteDraft: action.note !== undefined ? action.note : state.noteDraft,
+        draftDirty: true,
       };
     case 'marked':
-      return { ...state, busy: null, checked: [], notice: `Saved the mark on ${action.count} claim${action.count === 1 ? '' : 's'}.` };
+      return { ...state, busy: null, checked: [], draftDirty: false, notice: `Saved the mark on ${action.count} claim${action.count === 1 ? '' : 's'}.` };
     case 'confirm-remove':
       return { ...state, confirmRemove: action.open };
     case 'removed':

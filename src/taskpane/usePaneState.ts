@@ -101,6 +101,18 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     };
   }, [layer, detect]);
 
+  // Back from the sheet (the pane's window regains focus): statuses may have been edited there.
+  useEffect(() => {
+    const onFocus = () => {
+      const st = stateRef.current;
+      if (st.busy === null && st.table?.hasResults) {
+        loadExceptions(st.exceptions[st.current]?.row ?? null).catch((error: unknown) => dispatch({ type: 'failed', error }));
+      }
+    };
+    window.addEventListener('focus', onFocus);
+    return () => window.removeEventListener('focus', onFocus);
+  }, [loadExceptions]);
+
   // Read the chosen columns for the live preview whenever they change.
   const key = state.table && state.settings ? previewKey(state.table, state.settings) : null;
   useEffect(() => {

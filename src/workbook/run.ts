@@ -377,7 +377,6 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
   const logA1 = res.logSheet.isNullObject ? null : res.logSheet.getRange('A1');
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
-  const widthRanges = placement.pristine.map((i) => res.sheet.getRangeByIndexes(0, placement.columns[i], 1, 1));
   const tableRange = res.table ? res.table.getRange() : null;
   await readRows(
     sync,
@@ -403,7 +402,6 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
         logA1?.load('values');
         logUsed?.load(['rowIndex', 'rowCount']);
         for (const cf of customRules) cf.custom.rule.load('formula');
-        for (const r of widthRanges) r.format.load('columnWidth');
         tableRange?.load(['rowCount', 'columnCount']);
       },
     },
@@ -428,7 +426,6 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
     );
   }
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
-  const widths = widthRanges.map((r) => r.format.columnWidth);
   if (signal?.aborted) throw cancelled();
 
   // ---- values to write: merge review marks ----
@@ -474,10 +471,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
     firstColumn: res.spanStart,
     rowCount: res.rows,
     blockColumn: placement.blockColumn,
-    columns: placement.block.map((b) => {
-      const pi = placement.pristine.indexOf(plan.columns.findIndex((c) => c.header === b.header));
-      return pi >= 0 ? { ...b, width: widths[pi] } : b;
-    }),
+    columns: placement.block,
     notesSheet: plan.notes.name,
   };
   try {
@@ -559,7 +553,9 @@ async function writeAll(
   }
   for (let i = 0; i < k; i++) {
     const w = plan.columns[i].width;
-    if (placement.fresh[i] && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
+    // Widths only on columns we inserted (deleting them restores the sheet exactly); an empty
+    // column we wrote into keeps its width, because an explicit width cannot be un-set.
+    if (placement.fresh[i] && placement.block[i].inserted && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
   }
   // Rows the table or block no longer has (the data shrank): clear our cells below.
   if (!res.table && (res.state?.rowCount ?? 0) > rows) {

@@ -22,6 +22,8 @@ export const CHROMIUM_ARGS = [
 
 /** Runs `webpack --mode production` into test-output/dist-web; throws with webpack's output on failure. */
 export function buildWeb(outDir = OUT_DIR): void {
+  // While iterating on the tests only: TAILMARK_E2E_REUSE_BUILD=1 reuses the last build.
+  if (process.env.TAILMARK_E2E_REUSE_BUILD === '1' && existsSync(path.join(outDir, 'preview.html'))) return;
   mkdirSync(path.dirname(outDir), { recursive: true });
   const cli = path.join(ROOT, 'node_modules', 'webpack-cli', 'bin', 'cli.js');
   const r = spawnSync(process.execPath, [cli, '--mode', 'production', '--output-path', outDir], {

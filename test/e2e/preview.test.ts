@@ -48,20 +48,6 @@ async function ready(page: Page): Promise<void> {
   await page.getByTestId('preview-flagged').waitFor({ timeout: 30_000 });
 }
 
-type Hook = {
-  snapshot(): string;
-  highlightAt(sheet: string, row: number, col: number): { fill: string | null } | null;
-  text(sheet: string, row: number, col: number): string;
-  sheetNames(): string[];
-  select(sheet: string, row: number, col: number): void;
-  headers(sheet: string): string[];
-};
-declare global {
-  interface Window {
-    tailmarkPreview: Hook;
-  }
-}
-
 async function runAndWait(page: Page): Promise<void> {
   await page.getByTestId('run').click();
   await page.getByTestId('summary').waitFor({ timeout: 60_000 });
@@ -88,14 +74,14 @@ describe('preview page with the real task pane', () => {
     await ready(page);
 
     // Live preview: counts match the batch engine at the default and at a changed cutoff, nothing written.
-    const before = await page.evaluate(() => window.tailmarkPreview.snapshot());
+    const before = await page.evaluate(() => window.tailmarkPreview!.snapshot());
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
     await page.getByTestId('cutoff').fill('3');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3)));
     expect(expectedFlags(3)).toBeGreaterThan(expectedFlags(3.5));
     await page.getByTestId('cutoff').fill('3.5');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
-    expect(await page.evaluate(() => window.tailmarkPreview.snapshot())).toBe(before);
+    expect(await page.evaluate(() => window.tailmarkPreview!.snapshot())).toBe(before);
 
     // The chart of the planted masking group shows robust z flagging more than classic z.
     await page.getByTestId('chart-group').selectOption(`${DEMO_GROUPS.masking.costCentre} / ${DEMO_GROUPS.masking.category}`);
@@ -110,7 +96,7 @@ describe('preview page with the real task pane', () => {
     expect(await page.getByTestId('summary-flagged').textContent()).toBe(String(flagged));
     expect(await page.getByTestId('open-count').textContent()).toBe(String(flagged));
     await expect(page.getByTestId('caution').first().textContent()).resolves.toMatch(/not misconduct/);
-    const sheets = await page.evaluate(() => window.tailmarkPreview.sheetNames());
+    const sheets = await page.evaluate(() => window.tailmarkPreview!.sheetNames());
     expect(sheets).toContain(NOTES_SHEET_NAME);
     await expect(page.getByRole('tab', { name: NOTES_SHEET_NAME }).isVisible()).resolves.toBe(true);
 
@@ -127,6 +113,8 @@ describe('preview page with the real task pane', () => {
     const status = page.locator(`select[data-status-row="${rowIndex}"]`);
     await status.selectOption(label('cleared'));
     await expect.poll(() => row.first().getAttribute('data-fill')).toBe(hex(PALETTE.cleared.fill));
+    // The pane learns of edits made in the sheet when the selection moves (as after Enter in Excel).
+    await page.locator(`[data-cell="${rowIndex},1"]`).click();
     await expect.poll(() => page.getByTestId('done-count').textContent()).toBe('1');
 
     // A mark from the pane: note + status on the current claim.
@@ -143,7 +131,7 @@ describe('preview page with the real task pane', () => {
     await expect.poll(() => status.inputValue()).toBe(label('cleared'));
     await expect.poll(() => row.first().getAttribute('data-fill')).toBe(hex(PALETTE.cleared.fill));
     const texts = await page.evaluate(() => {
-      const h = window.tailmarkPreview;
+      const h = window.tailmarkPreview!;
       const sheet = h.sheetNames()[0];
       const headers = h.headers(sheet);
       const noteCol = headers.findIndex((x) => /note/i.test(x) && /tailmark/i.test(x));
@@ -153,7 +141,6 @@ describe('preview page with the real task pane', () => {
     });
     expect(texts).toContain('=receipt requested');
 
-    await shot(page, 'preview-desktop-light.png');
     expect(errors).toEqual([]);
     await page.close();
   });
@@ -161,12 +148,12 @@ describe('preview page with the real task pane', () => {
   it('cancel leaves the workbook as it was', async () => {
     const { page } = await openPage(session, 'preview.html', { query: 'delay=600' });
     await ready(page);
-    const before = await page.evaluate(() => window.tailmarkPreview.snapshot());
+    const before = await page.evaluate(() => window.tailmarkPreview!.snapshot());
     await page.getByTestId('run').click();
     await page.getByTestId('progress').waitFor({ timeout: 20_000 });
     await page.getByTestId('cancel').click();
     await expect.poll(() => page.getByTestId('notice').textContent(), { timeout: 30_000 }).toMatch(/cancelled/i);
-    expect(await page.evaluate(() => window.tailmarkPreview.snapshot())).toBe(before);
+    expect(await page.evaluate(() => window.tailmarkPreview!.snapshot())).toBe(before);
     expect(await page.getByTestId('summary').count()).toBe(0);
     await page.close();
   });
@@ -174,7 +161,7 @@ describe('preview page with the real task pane', () => {
   it('says what to do when the selection is an empty area', async () => {
     const { page } = await openPage(session, 'preview.html');
     await ready(page);
-    await page.evaluate(() => window.tailmarkPreview.select(window.tailmarkPreview.sheetNames()[0], 40, 20));
+    await page.evaluate(() => window.tailmarkPreview!.select(window.tailmarkPreview!.sheetNames()[0], 40, 20));
     const error = page.getByTestId('error');
     await error.waitFor({ timeout: 10_000 });
     await expect(error.textContent()).resolves.toMatch(/Select/);
@@ -213,20 +200,23 @@ describe('preview page with the real task pane', () => {
       const desk = await openPage(session, 'preview.html', { theme, width: 1280, height: 860 });
       await ready(desk.page);
       await runAndWait(desk.page);
-      if (theme === 'dark') await shot(desk.page, 'preview-desktop-dark.png');
-      await desk.page.getByTestId('pane').screenshot({ path: path.join(SCREENSHOT_DIR, `pane-desktop-${theme}.png`) });
+      await desk.page.getByTestId('next').click();
+      await shot(desk.page, `preview-desktop-${theme}.png`);
       await desk.page.close();
 
       const narrow = await openPage(session, 'preview.html', { theme, width: 320, height: 900 });
       await ready(narrow.page);
-      await runAndWait(narrow.page);
-      const pane = narrow.page.getByTestId('pane');
-      // Nothing in the pane is wider than the 320 px viewport.
-      const overflow = await pane.evaluate((el) => el.scrollWidth - el.clientWidth);
-      expect(overflow).toBeLessThanOrEqual(1);
-      await pane.screenshot({ path: path.join(SCREENSHOT_DIR, `pane-320-${theme}.png`) });
       await shot(narrow.page, `preview-320-${theme}.png`);
       await narrow.page.close();
+
+      // The pane alone at 320 px, in page flow, after a run: nothing may be wider than the viewport.
+      const pane = await openPage(session, 'preview.html', { theme, width: 320, height: 900, query: 'view=pane' });
+      await ready(pane.page);
+      await runAndWait(pane.page);
+      const overflow = await pane.page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+      expect(overflow).toBeLessThanOrEqual(0);
+      await shot(pane.page, `pane-320-${theme}.png`, true);
+      await pane.page.close();
     }
   });
 });

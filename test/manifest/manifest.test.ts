@@ -4,21 +4,21 @@
  * from the Office add-in manifest XSDs (TaskPaneAppVersionOverrides / OfficeApp 1.1, as listed in
  * Microsoft's "How to find the proper order of manifest elements").
  */
-import { DOMParser, type Element as XElement } from '@xmldom/xmldom';
-import { ManifestUtil } from '@microsoft/app-manifest';
+import { DOMParser } from '@xmldom/xmldom';
 import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { convert } from 'office-addin-manifest-converter';
-import { REQUIRED_EXCEL_API } from '../../src/workbook/api-members.js';
+import { REQUIRED_EXCEL_API, REQUIRED_EXCEL_API_SET } from '../../src/workbook/api-members.js';
 
+type XElement = Element;
 const root = path.resolve(import.meta.dirname, '..', '..');
 const manifestPath = path.join(root, 'manifest.xml');
 const xml = readFileSync(manifestPath, 'utf8');
 const doc = new DOMParser().parseFromString(xml, 'text/xml');
-const office = doc.documentElement!;
+const office = doc.documentElement as unknown as XElement;
 
 const children = (el: XElement): XElement[] => {
   const out: XElement[] = [];
@@ -144,7 +144,7 @@ describe('manifest.xml structure', () => {
     const sets = all(office).filter((e) => local(e) === 'Set');
     expect(sets.length).toBe(2);
     for (const s of sets) {
-      expect(s.getAttribute('Name')).toBe('ExcelApi');
+      expect(s.getAttribute('Name')).toBe(REQUIRED_EXCEL_API_SET.name);
       expect(s.getAttribute('MinVersion')).toBe(REQUIRED_EXCEL_API);
     }
     const parents = sets.map((s) => local(s.parentNode!.parentNode as XElement));
@@ -172,11 +172,24 @@ describe('manifest conversion (office-addin-manifest-converter, offline) and JSO
   afterAll(() => rmSync(out, { recursive: true, force: true }));
 
   it('validates against the v1.23 schema shipped in @microsoft/app-manifest', async () => {
-    const require = createRequire(import.meta.url);
-    const schemaFile = path.join(path.dirname(require.resolve('@microsoft/app-manifest')), 'json-schemas', 'teams', 'v1.23', 'MicrosoftTeams.schema.json');
-    const schema = JSON.parse(readFileSync(schemaFile, 'utf8'));
-    const errors = await ManifestUtil.validateManifestAgainstSchema(json as never, schema);
-    expect(errors).toEqual([]);
+    // The package's own validator needs fs-extra, which it does not depend on; so validate with the
+    // same ajv (draft-04) + ajv-formats it uses, resolved from the package, against its schema file.
+    const fromRoot = createRequire(import.meta.url);
+    const pkgMain = fromRoot.resolve('@microsoft/app-manifest');
+    const fromPkg = createRequire(pkgMain);
+    const schemaFile = path.join(path.dirname(pkgMain), 'json-schemas', 'teams', 'v1.23', 'MicrosoftTeams.schema.json');
+    const schema = JSON.parse(readFileSync(schemaFile, 'utf8')) as Record<string, unknown>;
+    expect(schema.$schema).toBe('http://json-schema.org/draft-04/schema#');
+    type Validator = ((data: unknown) => boolean) & { errors?: unknown[] | null };
+    type AjvCtor = new (o: Record<string, unknown>) => { compile(schema: unknown): Validator };
+    const AjvDraft04 = (fromPkg('ajv-draft-04') as { default: AjvCtor }).default;
+    const addFormats = (fromPkg('ajv-formats') as { default: (ajv: unknown) => void }).default;
+    const ajv = new AjvDraft04({ allErrors: true, strict: false });
+    addFormats(ajv);
+    const validate = ajv.compile(schema);
+    const ok = validate(json);
+    expect(validate.errors ?? []).toEqual([]);
+    expect(ok).toBe(true);
     expect(json.manifestVersion).toBe('1.23');
   });
 
@@ -186,7 +199,7 @@ describe('manifest conversion (office-addin-manifest-converter, offline) and JSO
     const desc = json.description as { short: string };
     expect(desc.short).not.toMatch(/TRUNCATED/);
     const text = JSON.stringify(json);
-    expect(text).toContain(`"name":"ExcelApi","minVersion":"${REQUIRED_EXCEL_API}"`);
+    expect(text).toContain(`"name":"${REQUIRED_EXCEL_API_SET.name}","minVersion":"${REQUIRED_EXCEL_API}"`);
     expect(text).toContain('"builtInTabId":"TabHome"');
     expect(text).toContain('"page":"https://localhost:3000/taskpane.html"');
   });

@@ -1,0 +1,108 @@
+/**
+ * Full-height benchmark of the workbook layer in the sandbox: 1,048,575 data rows x 10 columns
+ * (an invented claims sheet), detect -> run, then readForPreview. Reports syncs, the largest
+ * request/response (bytes, as the sandbox measures them) and time per phase.
+ * Usage (after `npm run build:node`): node dist/bench/workbook.js [--json] [--rows N]
+ */
+import { SandboxWorkbook } from '../src/sandbox/index.js';
+import { createWorkbookLayer } from '../src/workbook/index.js';
+import type { RunSettings } from '../src/workbook/api.js';
+
+export interface WorkbookBenchResult {
+  rows: number;
+  columns: number;
+  /** Time to fill the sandbox (not part of the layer). */
+  buildMs: number;
+  detect: { syncs: number; ms: number };
+  run: { syncs: number; ms: number; maxRequestBytes: number; maxResponseBytes: number; flagged: number };
+  preview: { syncs: number; ms: number; maxResponseBytes: number };
+}
+
+/** Fill a sheet directly (no syncs): Claim ID, Employee, Cost centre, Category, Amount + 5 more. */
+export function fullHeightSandbox(rows: number): SandboxWorkbook {
+  const sb = new SandboxWorkbook();
+  sb.addSheet('Claims');
+  const header = ['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount', 'Project', 'Vendor', 'Ref', 'Memo', 'Region'];
+  header.forEach((h, c) => sb.setCell('Claims', 0, c, h));
+  let seed = 12345;
+  const rnd = () => {
+    seed = (Math.imul(seed, 1103515245) + 12345) >>> 0;
+    return seed / 4294967296;
+  };
+  const ccs = ['CC-101', 'CC-202', 'CC-303', 'CC-404', 'CC-505'];
+  const cats = ['Travel', 'Meals', 'Lodging', 'Fuel'];
+  for (let i = 0; i < rows; i++) {
+    const r = i + 1;
+    const amount = Math.round((60 + rnd() * 80) * (i % 997 === 5 ? 25 : 1) * 100) / 100;
+    sb.setCell('Claims', r, 0, `CL-${i + 1}`);
+    sb.setCell('Claims', r, 1, `Person ${i % 301}`);
+    sb.setCell('Claims', r, 2, ccs[i % 5]);
+    sb.setCell('Claims', r, 3, cats[(i >> 3) % 4]);
+    sb.setCell('Claims', r, 4, amount);
+    sb.setCell('Claims', r, 5, `P${i % 17}`);
+    sb.setCell('Claims', r, 6, `V${i % 211}`);
+    sb.setCell('Claims', r, 7, i);
+    sb.setCell('Claims', r, 8, `memo ${i % 1000}`);
+    sb.setCell('Claims', r, 9, `R${i % 7}`);
+  }
+  // The whole block is selected (a single-cell selection would go through the sandbox's
+  // getSurroundingRegion, which is quadratic in the block height; Excel's is not).
+  sb.setSelection('Claims', `A1:J${rows + 1}`);
+  return sb;
+}
+
+export const BENCH_SETTINGS: RunSettings = {
+  valueColumns: ['Amount'],
+  groupColumns: ['Cost centre', 'Category'],
+  idColumn: 'Claim ID',
+  method: 'robust',
+  cutoff: 3.5,
+  direction: 'both',
+  logScale: false,
+  minGroupSize: 8,
+  smallGroups: 'pool',
+  decimalComma: false,
+};
+
+export async function benchWorkbook(rows = 1_048_575): Promise<WorkbookBenchResult> {
+  let t0 = performance.now();
+  const sb = fullHeightSandbox(rows);
+  const buildMs = performance.now() - t0;
+  const layer = createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z') });
+  t0 = performance.now();
+  sb.stats.reset();
+  const table = await layer.detect();
+  const detect = { syncs: sb.stats.syncs, ms: performance.now() - t0 };
+  sb.stats.reset();
+  t0 = performance.now();
+  const summary = await layer.run(table, BENCH_SETTINGS);
+  const run = {
+    syncs: sb.stats.syncs,
+    ms: performance.now() - t0,
+    maxRequestBytes: sb.stats.requestBytes.max,
+    maxResponseBytes: sb.stats.responseBytes.max,
+    flagged: summary.flagged,
+  };
+  sb.stats.reset();
+  t0 = performance.now();
+  await layer.readForPreview(table, BENCH_SETTINGS);
+  const preview = { syncs: sb.stats.syncs, ms: performance.now() - t0, maxResponseBytes: sb.stats.responseBytes.max };
+  return { rows, columns: 10, buildMs, detect, run, preview };
+}
+
+const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined && /bench[\\/]workbook\.(js|ts)$/.test(process.argv[1]);
+if (isMain) {
+  const i = process.argv.indexOf('--rows');
+  const rows = i >= 0 ? Number(process.argv[i + 1]) : 1_048_575;
+  benchWorkbook(rows).then((r) => {
+    if (process.argv.includes('--json')) process.stdout.write(JSON.stringify(r) + '\n');
+    else {
+      process.stdout.write(
+        `workbook layer, ${r.rows} rows x ${r.columns} columns (sandbox)\n` +
+          `  detect : ${r.detect.syncs} syncs, ${r.detect.ms.toFixed(0)} ms\n` +
+          `  run    : ${r.run.syncs} syncs, ${(r.run.ms / 1000).toFixed(1)} s, max request ${r.run.maxRequestBytes} B, max response ${r.run.maxResponseBytes} B, ${r.run.flagged} flagged\n` +
+          `  preview: ${r.preview.syncs} syncs, ${(r.preview.ms / 1000).toFixed(1)} s, max response ${r.preview.maxResponseBytes} B\n`,
+      );
+    }
+  });
+}

@@ -1,0 +1,286 @@
+/**
+ * The preview page: a sandbox workbook in a grid, with the REAL task pane beside it driving the
+ * sandbox through `createWorkbookLayer(sandbox.run)`. Offline: nothing here makes a network call.
+ */
+import {
+  Button,
+  Link,
+  MessageBar,
+  MessageBarBody,
+  Tab,
+  TabList,
+  Text,
+  makeStyles,
+  mergeClasses,
+  tokens,
+} from '@fluentui/react-components';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import type { SandboxWorkbook } from '../sandbox/index.js';
+import { TailmarkPane } from '../taskpane/Pane.js';
+import type { ThemeName } from '../taskpane/theme.js';
+import { createWorkbookLayer, type ExcelRunner } from '../workbook/layer.js';
+import { parseCsv } from './csv.js';
+import { Grid } from './Grid.js';
+import { a1, sandboxSource } from './sandboxSource.js';
+
+const useStyles = makeStyles({
+  page: {
+    display: 'flex',
+    flexDirection: 'column',
+    height: '100vh',
+    backgroundColor: tokens.colorNeutralBackground2,
+    color: tokens.colorNeutralForeground1,
+    boxSizing: 'border-box',
+  },
+  banner: {
+    display: 'flex',
+    flexWrap: 'wrap',
+    alignItems: 'center',
+    gap: tokens.spacingHorizontalM,
+    padding: `${tokens.spacingVerticalS} ${tokens.spacingHorizontalM}`,
+    backgroundColor: tokens.colorNeutralBackground4,
+    borderBottom: `${tokens.strokeWidthThick} dashed ${tokens.colorPaletteMarigoldBorderActive}`,
+  },
+  badge: {
+    fontWeight: tokens.fontWeightBold,
+    fontSize: tokens.fontSizeBase400,
+    color: tokens.colorNeutralForeground1,
+    padding: `${tokens.spacingVerticalXXS} ${tokens.spacingHorizontalS}`,
+    border: `${tokens.strokeWidthThick} solid ${tokens.colorPaletteMarigoldBorderActive}`,
+    borderRadius: tokens.borderRadiusMedium,
+  },
+  body: { display: 'flex', flexGrow: 1, minHeight: 0, '@media (max-width: 720px)': { flexDirection: 'column', overflowY: 'auto' } },
+  book: {
+    display: 'flex',
+    flexDirection: 'column',
+    flexGrow: 1,
+    minWidth: 0,
+    minHeight: '320px',
+    padding: tokens.spacingHorizontalS,
+    gap: tokens.spacingVerticalXS,
+    '@media (max-width: 720px)': { height: '60vh', flexShrink: 0 },
+  },
+  pane: {
+    width: '360px',
+    flexShrink: 0,
+    overflowY: 'auto',
+    borderLeft: `${tokens.strokeWidthThin} solid ${tokens.colorNeutralStroke1}`,
+    backgroundColor: tokens.colorNeutralBackground1,
+    '@media (max-width: 720px)': { width: '100%', borderLeft: 'none', overflowY: 'visible' },
+  },
+  tools: { display: 'flex', flexWrap: 'wrap', gap: tokens.spacingHorizontalS, alignItems: 'center' },
+  muted: { color: tokens.colorNeutralForeground3, fontSize: tokens.fontSizeBase200 },
+  hidden: { display: 'none' },
+  flow: { height: 'auto', minHeight: '100vh' },
+  paneOnly: { width: '100%', maxWidth: '480px', borderLeft: 'none', overflowY: 'visible' },
+});
+
+export interface PreviewProps {
+  readonly initial: () => SandboxWorkbook;
+  readonly theme: ThemeName;
+  /** Extra wait before every sync, ms (?delay=): makes progress and Cancel visible on small data. */
+  readonly syncDelay: number;
+  /** 'pane' (?view=pane) shows only the task pane, in normal page flow (for narrow screens and screenshots). */
+  readonly view: 'both' | 'pane';
+}
+
+/** Test and devtools hook (the page is offline and holds only what the user opened). */
+export interface PreviewHook {
+  snapshot(): string;
+  highlightAt(sheet: string, row: number, col: number): { fill: string | null } | null;
+  text(sheet: string, row: number, col: number): string;
+  sheetNames(): string[];
+  select(sheet: string, row: number, col: number): void;
+  headers(sheet: string): string[];
+}
+
+declare global {
+  interface Window {
+    tailmarkPreview?: PreviewHook;
+  }
+}
+
+function delayed(sb: SandboxWorkbook, ms: number, bump: () => void): ExcelRunner {
+  return async (batch) => {
+    try {
+      return await sb.run(async (ctx) => {
+        if (ms > 0) {
+          const sync = ctx.sync.bind(ctx);
+          ctx.sync = async <T,>(passThroughValue?: T) => {
+            await new Promise((r) => setTimeout(r, ms));
+            return sync(passThroughValue);
+          };
+        }
+        return batch(ctx);
+      });
+    } finally {
+      bump();
+    }
+  };
+}
+
+export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
+  const s = useStyles();
+  const [book, setBook] = useState<{ id: number; sb: SandboxWorkbook; name: string }>(() => ({ id: 1, sb: initial(), name: 'demo (invented claims)' }));
+  const [version, setVersion] = useState(0);
+  const [sheet, setSheet] = useState(() => book.sb.sheetNames()[0]);
+  const [message, setMessage] = useState<{ intent: 'error' | 'info'; text: string } | null>(null);
+  const [busy, setBusy] = useState(false);
+  const fileRef = useRef<HTMLInputElement>(null);
+  const bump = useCallback(() => setVersion((v) => v + 1), []);
+  const source = useMemo(() => sandboxSource(book.sb), [book]);
+  const layer = useMemo(() => createWorkbookLayer(delayed(book.sb, syncDelay, bump)), [book, syncDelay, bump]);
+
+  // Follow the selection to its sheet when the pane moves it (e.g. Next exception).
+  const selSheet = source.selection()?.sheet ?? null;
+  const lastSel = useRef(selSheet);
+  useEffect(() => {
+    if (selSheet && selSheet !== lastSel.current) setSheet(selSheet);
+    lastSel.current = selSheet;
+  }, [selSheet, version]);
+
+  const names = book.sb.sheetNames();
+  const shown = names.includes(sheet) ? sheet : names[0];
+
+  const select = useCallback(
+    (row: number, col: number, extend: boolean) => {
+      const cur = source.selection();
+      const address = extend && cur && cur.sheet === shown ? a1(cur.row, cur.col, row, col) : a1(row, col);
+      book.sb.userSelect(shown, address);
+      bump();
+    },
+    [book, shown, source, bump],
+  );
+
+  const edit = useCallback(
+    (row: number, col: number, value: string) => {
+      book.sb.setCell(shown, row, col, value === '' ? null : value);
+      bump();
+    },
+    [book, shown, bump],
+  );
+
+  useEffect(() => {
+    const sb = book.sb;
+    window.tailmarkPreview = {
+      snapshot: () => JSON.stringify(sb.snapshot()),
+      highlightAt: (sh, r, c) => sb.highlightAt(sh, r, c),
+      text: (sh, r, c) => String(sb.valueAt(sh, r, c)),
+      sheetNames: () => sb.sheetNames(),
+      select: (sh, r, c) => {
+        sb.userSelect(sh, a1(r, c));
+        bump();
+      },
+      headers: (sh) => {
+        const out: string[] = [];
+        for (let c = 0; c < 200; c++) out.push(String(sb.valueAt(sh, 0, c)));
+        return out;
+      },
+    };
+  }, [book, bump]);
+
+  const open = async (file: File) => {
+    setBusy(true);
+    setMessage(null);
+    try {
+      const { sandboxFromRows } = await import('../sandbox/index.js');
+      let sb: SandboxWorkbook;
+      if (/\.csv$/i.test(file.name) || file.type === 'text/csv') {
+        const rows = parseCsv(await file.text());
+        if (rows.length === 0) throw new Error('The file is empty.');
+        sb = sandboxFromRows(file.name.replace(/\.csv$/i, '').slice(0, 31) || 'Sheet1', rows);
+      } else {
+        const [{ sandboxFromExcelJs }, ExcelJS] = await Promise.all([import('../sandbox/exceljs-bridge.js'), import('exceljs')]);
+        const wb = new ExcelJS.default.Workbook();
+        await wb.xlsx.load(await file.arrayBuffer());
+        sb = sandboxFromExcelJs(wb);
+      }
+      const first = sb.sheetNames()[0];
+      sb.setSelection(first, 'A1');
+      setBook((b) => ({ id: b.id + 1, sb, name: file.name }));
+      setSheet(first);
+      setMessage({ intent: 'info', text: `Opened ${file.name}. It stays in this browser tab; nothing is uploaded.` });
+    } catch (e) {
+      setMessage({ intent: 'error', text: `Could not open ${file.name}: ${e instanceof Error ? e.message : String(e)}. Open an .xlsx or .csv file.` });
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const download = async () => {
+    setBusy(true);
+    try {
+      const [{ sandboxToExcelJs }] = await Promise.all([import('../sandbox/exceljs-bridge.js')]);
+      const wb = sandboxToExcelJs(book.sb);
+      const buf = await wb.xlsx.writeBuffer();
+      const blob = new Blob([buf], { type: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet' });
+      const url = URL.createObjectURL(blob);
+      const a = document.createElement('a');
+      a.href = url;
+      a.download = `${book.name.replace(/\.(xlsx|csv)$/i, '').replace(/[^\w.-]+/g, '-')}-tailmark.xlsx`;
+      a.click();
+      setTimeout(() => URL.revokeObjectURL(url), 10_000);
+    } catch (e) {
+      setMessage({ intent: 'error', text: `Could not build the .xlsx: ${e instanceof Error ? e.message : String(e)}.` });
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const otherTheme = theme === 'dark' ? 'light' : 'dark';
+  const query = (t: string, v: string) => `?theme=${t}${v === 'pane' ? '&view=pane' : ''}`;
+  return (
+    <div className={mergeClasses(s.page, view === 'pane' && s.flow)}>
+      <header className={s.banner} role="banner">
+        <span className={s.badge}>Preview — not Excel</span>
+        <Text className={s.muted}>
+          Tailmark’s real task pane on an in-browser workbook: {book.name}. Nothing leaves this page.
+        </Text>
+        <span style={{ flexGrow: 1 }} />
+        <Link href={query(theme, view === 'pane' ? 'both' : 'pane')}>{view === 'pane' ? 'Show the workbook' : 'Pane only'}</Link>
+        <Link href={query(otherTheme, view)}>{otherTheme === 'dark' ? 'Dark theme' : 'Light theme'}</Link>
+      </header>
+      <div className={s.body}>
+        <section className={mergeClasses(s.book, view === 'pane' && s.hidden)} aria-label="Workbook">
+          <div className={s.tools}>
+            <Button size="small" onClick={() => fileRef.current?.click()} disabled={busy} data-testid="open-file">
+              Open .xlsx or .csv…
+            </Button>
+            <input
+              ref={fileRef}
+              className={s.hidden}
+              type="file"
+              accept=".xlsx,.csv,text/csv,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
+              data-testid="file-input"
+              onChange={(e) => {
+                const f = e.target.files?.[0];
+                e.target.value = '';
+                if (f) void open(f);
+              }}
+            />
+            <Button size="small" onClick={() => void download()} disabled={busy} data-testid="download">
+              Download .xlsx
+            </Button>
+            <Text className={s.muted}>Click a cell to select it; Shift+click selects a block; arrow keys move.</Text>
+          </div>
+          {message && (
+            <MessageBar intent={message.intent} data-testid="preview-message">
+              <MessageBarBody>{message.text}</MessageBarBody>
+            </MessageBar>
+          )}
+          <TabList selectedValue={shown} onTabSelect={(_, d) => setSheet(String(d.value))} size="small" aria-label="Sheets">
+            {names.map((n) => (
+              <Tab key={n} value={n}>
+                {n}
+              </Tab>
+            ))}
+          </TabList>
+          <Grid source={source} sheet={shown} version={version} onSelect={select} onEdit={edit} />
+        </section>
+        <aside className={mergeClasses(s.pane, view === 'pane' && s.paneOnly)} aria-label="Tailmark task pane">
+          <TailmarkPane key={book.id} layer={layer} />
+        </aside>
+      </div>
+    </div>
+  );
+}

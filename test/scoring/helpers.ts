@@ -1,0 +1,44 @@
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+
+export interface RSet {
+  x: number[]; median: number; mad: number; mad1: number; mean: number; sd: number; q1: number; q3: number;
+  meanAbsDevMedian: number; robustZ: (number | null)[]; classicZ: (number | null)[];
+}
+export interface SciPyFixture {
+  norm: { z: number; sf: number; cdf: number }[];
+  ppf: { p: number; ppf: number }[];
+  sets: Record<string, { madNormal: number; madRaw: number; iqr: number }>;
+}
+
+const ref = (name: string): unknown =>
+  JSON.parse(readFileSync(fileURLToPath(new URL(`../reference/${name}`, import.meta.url)), 'utf8'));
+
+/** R 4.2 stats + robustbase fixture, made by test/reference/make-r-fixture.R. */
+export const rStats = (): Record<string, RSet> => {
+  const all = ref('r-stats.json') as Record<string, RSet | string>;
+  return Object.fromEntries(Object.entries(all).filter(([k]) => !k.startsWith('_'))) as Record<string, RSet>;
+};
+/** SciPy fixture, made by test/reference/make-scipy-fixture.py. */
+export const scipy = (): SciPyFixture => ref('scipy.json') as SciPyFixture;
+
+/** Relative closeness check. */
+export const near = (a: number, b: number, rel = 1e-12, abs = 1e-12): boolean => Math.abs(a - b) <= Math.max(abs, rel * Math.abs(b));
+
+/** Deterministic PRNG (mulberry32). */
+export function rng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+export function normalSample(n: number, seed: number): number[] {
+  const r = rng(seed);
+  const out: number[] = [];
+  for (let i = 0; i < n; i++) out.push(Math.sqrt(-2 * Math.log(1 - r())) * Math.cos(2 * Math.PI * r()));
+  return out;
+}

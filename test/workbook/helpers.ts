@@ -1,0 +1,58 @@
+/** Shared fixtures for the workbook-layer tests: an invented claims sheet in the sandbox. */
+import { SandboxWorkbook, sandboxFromRows } from '../../src/sandbox/index.js';
+import { createWorkbookLayer, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
+import type { RunSettings } from '../../src/workbook/api.js';
+
+export const HEADERS = ['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount'] as const;
+
+/** Deterministic pseudo-random generator (mulberry32), so fixtures are the same every run. */
+export function rng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/**
+ * n invented claims: 4 cost centres x 3 categories; amounts around 100 with a few planted large ones
+ * (every 97th row x 20) so that the robust score flags them.
+ */
+export function claimRows(n: number, seed = 7): (string | number)[][] {
+  const r = rng(seed);
+  const ccs = ['CC-101', 'CC-202', 'CC-303', 'CC-404'];
+  const cats = ['Travel', 'Meals', 'Lodging'];
+  const rows: (string | number)[][] = [[...HEADERS]];
+  for (let i = 0; i < n; i++) {
+    const base = 80 + Math.round(r() * 4000) / 100;
+    const amount = i % 97 === 13 ? base * 20 : base;
+    rows.push([`CL-${String(i + 1).padStart(6, '0')}`, `Person ${1 + (i % 37)}`, ccs[i % 4], cats[(i >> 2) % 3], Math.round(amount * 100) / 100]);
+  }
+  return rows;
+}
+
+export function claimsSandbox(n = 200, seed = 7): SandboxWorkbook {
+  const sb = sandboxFromRows('Claims', claimRows(n, seed));
+  sb.setSelection('Claims', 'B3');
+  return sb;
+}
+
+export function layerFor(sb: SandboxWorkbook, options: WorkbookLayerOptions = {}): TailmarkWorkbookLayer {
+  return createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z'), ...options });
+}
+
+export const SETTINGS: RunSettings = {
+  valueColumns: ['Amount'],
+  groupColumns: ['Cost centre', 'Category'],
+  idColumn: 'Claim ID',
+  method: 'robust',
+  cutoff: 3.5,
+  direction: 'both',
+  logScale: false,
+  minGroupSize: 8,
+  smallGroups: 'pool',
+  decimalComma: false,
+};
