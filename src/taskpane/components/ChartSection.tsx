@@ -109,7 +109,8 @@ export function DistributionChart({ chart }: { chart: ChartData }) {
         <strong data-testid="chart-classic">{chart.classic.flagged}</strong>
         {chart.robust.flagged > chart.classic.flagged ? ' — large claims mask each other under classic z.' : ''}
       </figcaption>
-      <table className={s.visuallyHidden}>
+      <div className={s.visuallyHidden}>
+      <table>
         <caption>Bounds in {chart.group}</caption>
         <thead>
           <tr>
@@ -132,6 +133,7 @@ export function DistributionChart({ chart }: { chart: ChartData }) {
           ))}
         </tbody>
       </table>
+      </div>
     </figure>
   );
 }
