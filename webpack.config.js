@@ -17,7 +17,7 @@ const fallback = Object.fromEntries(nodeBuiltins.flatMap((m) => [[m, false], [`n
  * Fails the build when a browser bundle pulls in a Node built-in, src/files or src/cli
  * (ARCHITECTURE.md: a browser bundle never pulls in files or cli).
  */
-class BrowserBoundaryPlugin {
+export class BrowserBoundaryPlugin {
   apply(compiler) {
     const forbiddenDirs = [path.join(root, 'src', 'files') + path.sep, path.join(root, 'src', 'cli') + path.sep];
     const builtinSet = new Set(nodeBuiltins);

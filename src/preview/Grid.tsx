@@ -93,6 +93,18 @@ export function Grid({ source, sheet, version, onSelect, onEdit }: GridProps) {
     return () => ro.disconnect();
   }, []);
 
+  // Keep the active cell in view when something else (the pane's Next / Previous) moves it.
+  const activeRow = active?.row ?? -1;
+  useEffect(() => {
+    const el = ref.current;
+    if (!el || activeRow < 0) return;
+    const top = HEADER_HEIGHT + activeRow * ROW_HEIGHT;
+    if (top < el.scrollTop + HEADER_HEIGHT || top + ROW_HEIGHT > el.scrollTop + el.clientHeight) {
+      el.scrollTop = Math.max(0, top - el.clientHeight / 2);
+      setScrollTop(el.scrollTop);
+    }
+  }, [activeRow, sheet]);
+
   const first = Math.max(0, Math.floor(scrollTop / ROW_HEIGHT) - OVERSCAN);
   const last = Math.min(rows, Math.ceil((scrollTop + height) / ROW_HEIGHT) + OVERSCAN);
 

@@ -30,16 +30,13 @@ import type { SandboxWorkbook } from './workbook.js';
 
 // ---------------------------------------------------------------- helpers
 
+const encoder = new TextEncoder();
+let scratch = new Uint8Array(1 << 16);
+
+/** UTF-8 byte length (TextEncoder exists in browsers and Node; encodeInto reuses one buffer). */
 function utf8Length(s: string): number {
-  let n = 0;
-  for (let i = 0; i < s.length; i++) {
-    const c = s.charCodeAt(i);
-    if (c < 0x80) n += 1;
-    else if (c < 0x800) n += 2;
-    else if (c >= 0xd800 && c <= 0xdbff) { n += 4; i++; }
-    else n += 3;
-  }
-  return n;
+  if (scratch.length < s.length * 3) scratch = new Uint8Array(s.length * 3);
+  return encoder.encodeInto(s, scratch).written;
 }
 
 function jsonBytes(x: unknown): number {

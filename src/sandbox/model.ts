@@ -536,21 +536,37 @@ export class WorkbookModel {
     return rect(rMin, cMin, rMax - rMin + 1, cMax - cMin + 1);
   }
 
-  /** Contiguous non-empty block around a rect (Ctrl+* / Range.getSurroundingRegion). */
+  /**
+   * Contiguous non-empty block around a rect (Ctrl+* / Range.getSurroundingRegion): grow the block
+   * while the row or column just outside it (diagonals included) holds a value. Each direction is
+   * grown as far as it goes before the next, so a tall block costs O(rows x columns), not O(rows^2).
+   */
   surroundingRegion(s: SheetModel, start: Rect): Rect {
     let r0 = start.r0; let c0 = start.c0; let r1 = start.r0 + start.rows - 1; let c1 = start.c0 + start.cols - 1;
-    const nonEmpty = (r: number, c: number) => r >= 0 && c >= 0 && r < MAX_ROWS && c < MAX_COLS && !this.isEmptyCell(s, r, c, true);
-    // Expand while any cell adjacent (including diagonally) to the block is non-empty.
+    const colHas = (c: number, from: number, to: number): boolean => {
+      if (c < 0 || c >= MAX_COLS) return false;
+      const col = s.cols[c];
+      if (!col) return false;
+      for (const a of CONTENT_ATTRS) {
+        const arr = col[a] as unknown[] | undefined;
+        if (!arr) continue;
+        const end = Math.min(to, arr.length - 1);
+        for (let r = Math.max(0, from); r <= end; r++) if (arr[r] !== undefined) return true;
+      }
+      return false;
+    };
+    const rowHas = (r: number, from: number, to: number): boolean => {
+      if (r < 0 || r >= MAX_ROWS) return false;
+      for (let c = Math.max(0, from); c <= Math.min(to, MAX_COLS - 1); c++) if (!this.isEmptyCell(s, r, c, true)) return true;
+      return false;
+    };
     for (let changed = true; changed;) {
       changed = false;
-      const rowHas = (r: number) => { for (let c = c0 - 1; c <= c1 + 1; c++) if (nonEmpty(r, c)) return true; return false; };
-      const colHas = (c: number) => { for (let r = r0 - 1; r <= r1 + 1; r++) if (nonEmpty(r, c)) return true; return false; };
-      if (r0 > 0 && rowHas(r0 - 1)) { r0--; changed = true; }
-      if (r1 < MAX_ROWS - 1 && rowHas(r1 + 1)) { r1++; changed = true; }
-      if (c0 > 0 && colHas(c0 - 1)) { c0--; changed = true; }
-      if (c1 < MAX_COLS - 1 && colHas(c1 + 1)) { c1++; changed = true; }
+      while (r1 < MAX_ROWS - 1 && rowHas(r1 + 1, c0 - 1, c1 + 1)) { r1++; changed = true; }
+      while (r0 > 0 && rowHas(r0 - 1, c0 - 1, c1 + 1)) { r0--; changed = true; }
+      while (c1 < MAX_COLS - 1 && colHas(c1 + 1, r0 - 1, r1 + 1)) { c1++; changed = true; }
+      while (c0 > 0 && colHas(c0 - 1, r0 - 1, r1 + 1)) { c0--; changed = true; }
     }
-    // A lone empty start cell with no neighbours stays itself.
     return rect(r0, c0, r1 - r0 + 1, c1 - c0 + 1);
   }
 

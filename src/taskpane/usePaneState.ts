@@ -16,6 +16,8 @@ import { initialState, previewKey, reducer, rowsToMark, type PaneState } from '.
 
 /** How long a run may take before the progress bar appears, ms. */
 export const PROGRESS_DELAY_MS = 300;
+/** How long after our own selectRow we wait for its selection-changed event, ms. */
+export const OWN_SELECTION_GRACE_MS = 1000;
 
 export interface PaneActions {
   readonly refresh: () => void;
@@ -50,6 +52,8 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   const stateRef = useRef(state);
   stateRef.current = state;
   const abortRef = useRef<AbortController | null>(null);
+  /** Selection-changed events still expected from our own selectRow calls (not the reviewer's). */
+  const ownEvents = useRef(0);
   const mounted = useRef(true);
 
   const loadExceptions = useCallback(
@@ -83,9 +87,14 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     void detect(false);
     layer
       .onSelectionChanged(() => {
+        if (ownEvents.current > 0) {
+          ownEvents.current--;
+          return;
+        }
         if (timer) clearTimeout(timer);
         timer = setTimeout(() => {
-          // While a run or a mark is writing, the selection moves because of us: ignore it.
+          // While a run or a mark is writing, or after we moved to an exception, the selection
+          // moved because of us: ignore it.
           if (stateRef.current.busy === null) void detect(true);
         }, 120);
       })
@@ -191,6 +200,22 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer, loadExceptions],
   );
 
+  const selectRow = useCallback(
+    (row: number) => {
+      ownEvents.current++;
+      layer
+        .selectRow(row)
+        .catch((error: unknown) => dispatch({ type: 'failed', error }))
+        .finally(() => {
+          // If the selection did not actually move, no event comes: stop waiting for it.
+          setTimeout(() => {
+            if (ownEvents.current > 0) ownEvents.current--;
+          }, OWN_SELECTION_GRACE_MS);
+        });
+    },
+    [layer],
+  );
+
   const actions = useMemo<PaneActions>(
     () => ({
       refresh: () => void detect(false),
@@ -238,14 +263,14 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
         const n = st.exceptions.length;
         const next = (((st.current + delta) % n) + n) % n;
         dispatch({ type: 'goto', index: next });
-        layer.selectRow(st.exceptions[next].row).catch((error: unknown) => dispatch({ type: 'failed', error }));
+        selectRow(st.exceptions[next].row);
       },
       goTo: (index) => {
         const st = stateRef.current;
         const e = st.exceptions[index];
         if (!e) return;
         dispatch({ type: 'goto', index });
-        layer.selectRow(e.row).catch((error: unknown) => dispatch({ type: 'failed', error }));
+        selectRow(e.row);
       },
       check: (row, on) => dispatch({ type: 'check', row, on }),
       setDrafts: (d) => dispatch({ type: 'drafts', ...d }),
@@ -273,7 +298,7 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
       },
       dismiss: () => dispatch({ type: 'dismiss' }),
     }),
-    [layer, detect, runWith, loadExceptions, scored],
+    [layer, detect, runWith, loadExceptions, scored, selectRow],
   );
 
   return { state, preview, chart, chartGroups, actions };

@@ -48,6 +48,7 @@ export async function detectTable(sync: Syncer): Promise<DetectedTable> {
   sel.load(['address', 'rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
   const sheet = sel.worksheet;
   sheet.load('name');
+  // The region is needed for a single selected cell only (and for a table, whose range we load next).
   const region = sel.getSurroundingRegion();
   region.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
   const tables = sel.getTables(false);

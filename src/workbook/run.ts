@@ -697,7 +697,10 @@ async function compensate(
   try {
     if (!placement.rerun) {
       if (res.table) {
-        for (const name of placement.addNames) res.table.columns.getItemOrNullObject(name).delete();
+        const added = placement.addNames.map((name) => res.table!.columns.getItemOrNullObject(name));
+        for (const c of added) c.load('name');
+        await sync.sync();
+        for (const c of added) if (!c.isNullObject) c.delete();
       } else {
         for (let i = plan.columns.length - 1; i >= 0; i--) {
           const c = placement.columns[i];
@@ -725,8 +728,12 @@ async function compensate(
       const n = res.sheet.getRangeByIndexes(firstDataRow, placement.oldNote, res.rows, 1);
       n.values = oldNote.map((x) => [x]);
     }
-    if (createdNotes) wb.worksheets.getItemOrNullObject(plan.notes.name).delete();
-    if (createdLog) wb.worksheets.getItemOrNullObject(LOG_SHEET_NAME).delete();
+    const made = [createdNotes ? plan.notes.name : null, createdLog ? LOG_SHEET_NAME : null]
+      .filter((n): n is string => n !== null)
+      .map((n) => wb.worksheets.getItemOrNullObject(n));
+    for (const m of made) m.load('name');
+    await sync.sync();
+    for (const m of made) if (!m.isNullObject) m.delete();
     await sync.sync();
   } catch (e) {
     const msg = original instanceof Error ? original.message : String(original);

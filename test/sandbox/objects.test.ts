@@ -260,3 +260,64 @@ describe('snapshots', () => {
     expect(sb.snapshot().sheets[0].cells.A1.value).toBe('Id');
   });
 });
+
+describe('more members', () => {
+  it('unprotect lifts AccessDenied; protect with a password needs it', async () => {
+    const sb = sandboxFromRows('S', rows);
+    await sb.run(async (context) => {
+      const ws = context.workbook.worksheets.getItem('S');
+      ws.protection.protect(undefined, 'pw');
+      ws.getRange('A1').values = [['x']];
+      expect(await codeOf(context.sync())).toBe('AccessDenied');
+      ws.protection.protect(undefined, 'pw');
+      await context.sync();
+      ws.protection.unprotect('wrong');
+      expect(await codeOf(context.sync())).toBe('InvalidArgument');
+      ws.protection.unprotect('pw');
+      ws.getRange('A1').values = [['x']];
+      await context.sync();
+    });
+    expect(sb.valueAt('S', 0, 0)).toBe('x');
+  });
+
+  it('table rows.add appends inside the table; Table.delete removes table and contents', async () => {
+    const sb = sandboxFromRows('S', rows);
+    sb.addTable('S', 'A1:C5', 'Claims');
+    await sb.run(async (context) => {
+      const t = context.workbook.tables.getItem('Claims');
+      t.rows.add(undefined, [['C5', 50, 1]]);
+      const r = t.getRange().load('address');
+      await context.sync();
+      expect(r.address).toBe('S!A1:C6');
+      t.delete();
+      await context.sync();
+    });
+    expect(sb.snapshot().sheets[0].tables).toEqual([]);
+    expect(sb.valueAt('S', 5, 0)).toBe('');
+  });
+
+  it('highlightAt refuses to guess on a rule it cannot evaluate', () => {
+    const sb = sandboxFromRows('S', rows);
+    sb.addConditionalFormat('S', 'B2:B5', '=B2>AVERAGE($B$2:$B$5)', { fill: '#101010' });
+    expect(() => sb.highlightAt('S', 1, 1)).toThrow(/AVERAGE|range/);
+  });
+
+  it('stats count syncs, statements and bytes, and reset', async () => {
+    const sb = sandboxFromRows('S', rows);
+    sb.stats.reset();
+    await sb.run(async (context) => {
+      const r = context.workbook.worksheets.getItem('S').getRange('A1:C5').load('values');
+      await context.sync();
+      r.values = r.values;
+      await context.sync();
+    });
+    expect(sb.stats.runs).toBe(1);
+    expect(sb.stats.syncs).toBe(2);
+    expect(sb.stats.requests).toBe(2);
+    // The response carries the 5x3 values as JSON.
+    expect(sb.stats.responseBytes.max).toBeGreaterThan(JSON.stringify(rows).length);
+    expect(sb.stats.requestBytes.total).toBeGreaterThan(JSON.stringify(rows).length);
+    sb.stats.reset();
+    expect([sb.stats.syncs, sb.stats.requestBytes.max, sb.stats.responseBytes.total]).toEqual([0, 0, 0]);
+  });
+});

@@ -142,6 +142,17 @@ describe('reducer', () => {
     expect(st.current).toBe(2);
   });
 
+  it('keeps what the reviewer is typing when the list refreshes under it', () => {
+    let st = reducer(ready(), { type: 'exceptions', list });
+    st = reducer(st, { type: 'drafts', note: 'half-typed' });
+    st = reducer(st, { type: 'exceptions', list, keepRow: 10 });
+    expect(st.noteDraft).toBe('half-typed');
+    // Moving on loads the next claim's own note.
+    st = reducer(st, { type: 'move', delta: 2 });
+    expect(st.noteDraft).toBe('asked for receipt');
+    expect(st.draftDirty).toBe(false);
+  });
+
   it('marks the ticked claims, else the current one', () => {
     let st = reducer(ready(), { type: 'exceptions', list });
     expect(rowsToMark(st)).toEqual([10]);

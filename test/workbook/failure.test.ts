@@ -1,0 +1,67 @@
+import { describe, expect, it } from 'vitest';
+import { diffSnapshots, type SandboxWorkbook } from '../../src/sandbox/index.js';
+import { createWorkbookLayer, type ExcelRunner } from '../../src/workbook/index.js';
+import { claimsSandbox, SETTINGS } from './helpers.js';
+
+/**
+ * A runner around the sandbox whose sync number `failAt` (counted across the whole run) fails the
+ * way Excel does when a sheet becomes protected mid-batch (AccessDenied, nothing of that sync applied).
+ */
+function failingRunner(sb: SandboxWorkbook, failAt: number): ExcelRunner {
+  let n = 0;
+  return (batch) =>
+    sb.run((context) => {
+      const original = context.sync.bind(context);
+      context.sync = (async () => {
+        n++;
+        if (n !== failAt) return original();
+        sb.setProtected('Claims', true);
+        try {
+          return await original();
+        } finally {
+          sb.setProtected('Claims', false);
+        }
+      }) as typeof context.sync;
+      return batch(context);
+    });
+}
+
+const LIMIT = { payloadLimit: 120_000, now: () => new Date('2025-03-31T09:00:00Z') };
+
+async function syncsOfRun(rows: number, rerun: boolean): Promise<number> {
+  const sb = claimsSandbox(rows);
+  const layer = createWorkbookLayer(sb.run, LIMIT);
+  if (rerun) await layer.run(await layer.detect(), SETTINGS);
+  const t = await layer.detect();
+  await layer.run(t, SETTINGS);
+  return layer.lastStats!.syncs;
+}
+
+describe('a write phase that fails part-way is undone', () => {
+  it('first run: the workbook is as before', async () => {
+    const total = await syncsOfRun(1500, false);
+    expect(total).toBeGreaterThan(6); // several write syncs under the small budget
+    for (const failAt of [total - 1, total - 3]) {
+      const sb = claimsSandbox(1500);
+      const t = await createWorkbookLayer(sb.run, LIMIT).detect();
+      const before = sb.snapshot();
+      const layer = createWorkbookLayer(failingRunner(sb, failAt), LIMIT);
+      await expect(layer.run(t, SETTINGS)).rejects.toThrow(/protected/);
+      expect(diffSnapshots(before, sb.snapshot())).toEqual([]);
+    }
+  });
+
+  it('re-run: review marks are back where they were', async () => {
+    const sb = claimsSandbox(1500);
+    const ok = createWorkbookLayer(sb.run, LIMIT);
+    await ok.run(await ok.detect(), SETTINGS);
+    const ex = await ok.listExceptions();
+    await ok.mark([ex[0].row], 'Cleared', 'receipt seen');
+    const t = await ok.detect();
+    const total = await syncsOfRun(1500, true);
+    const layer = createWorkbookLayer(failingRunner(sb, total - 2), LIMIT);
+    await expect(layer.run(t, { ...SETTINGS, cutoff: 3 })).rejects.toThrow(/protected/);
+    const after = await ok.listExceptions();
+    expect(after.find((e) => e.row === ex[0].row)).toMatchObject({ status: 'Cleared', note: 'receipt seen' });
+  });
+});

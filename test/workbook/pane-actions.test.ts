@@ -1,0 +1,84 @@
+import { describe, expect, it } from 'vitest';
+import { diffSnapshots, sandboxFromRows } from '../../src/sandbox/index.js';
+import { countUserCellsChanged } from '../../src/cli/sandbox-command.js';
+import { TailmarkError } from '../../src/workbook/api.js';
+import { claimsSandbox, layerFor, SETTINGS } from './helpers.js';
+
+describe('pane actions', () => {
+  it('selectRow selects the sheet row of a data row and fires selection handlers until unsubscribed', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    let calls = 0;
+    const off = await layer.onSelectionChanged(() => {
+      calls++;
+    });
+    expect(sb.selectionListenerCount).toBe(1);
+    await layer.selectRow(13);
+    await sb.flushEvents();
+    expect(sb.selection()).toEqual(['Claims!A15:J15']);
+    expect(calls).toBe(1);
+    sb.userSelect('Claims', 'C4');
+    await sb.flushEvents();
+    expect(calls).toBe(2);
+    off();
+    await new Promise((r) => setTimeout(r, 10));
+    expect(sb.selectionListenerCount).toBe(0);
+    sb.userSelect('Claims', 'C5');
+    await sb.flushEvents();
+    expect(calls).toBe(2);
+  });
+
+  it('mark validates statuses and rows; listExceptions lists flagged and marked rows', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await expect(layer.listExceptions()).resolves.toEqual([]);
+    await expect(layer.mark([1], 'Cleared', null)).rejects.toBeInstanceOf(TailmarkError);
+    const summary = await layer.run(await layer.detect(), SETTINGS);
+    const ex = await layer.listExceptions();
+    expect(ex).toHaveLength(summary.flagged);
+    expect(ex[0]).toMatchObject({ row: 13, claimId: 'CL-000014', group: 'CC-202 / Travel', status: 'To look at', note: '' });
+    expect(ex[0].value).toBeCloseTo(Number(sb.valueAt('Claims', 14, 4)), 10);
+    await expect(layer.mark([5], 'Approved', null)).rejects.toThrow(/not a review status/);
+    await expect(layer.mark([100], 'Cleared', null)).rejects.toThrow(/outside the data/);
+    await layer.mark([2], null, 'asked for receipt');
+    const again = await layer.listExceptions();
+    expect(again.find((e) => e.row === 2)).toMatchObject({ status: '', note: 'asked for receipt' });
+  });
+
+  it('a run and a re-run change no user cell, format, rule or validation', async () => {
+    const sb = claimsSandbox(150);
+    sb.setCell('Claims', 2, 4, { value: 99.5, numberFormat: '#,##0.00', fill: '#EEEEEE' });
+    sb.addConditionalFormat('Claims', 'A2:E151', '=$E2>1500', { fill: '#202020' });
+    sb.addListValidation('Claims', 'B2:B151', 'x,y');
+    const before = sb.snapshot();
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    const cols = layer.lastRun!.resultColumns.map((c) => c.charCodeAt(0) - 65);
+    const afterRun = sb.snapshot();
+    expect(countUserCellsChanged(before, afterRun, 'Claims', cols)).toBe(0);
+    await layer.mark([13], 'Cleared', 'fine');
+    await layer.run(await layer.detect(), { ...SETTINGS, cutoff: 4 });
+    const afterRerun = sb.snapshot();
+    expect(countUserCellsChanged(before, afterRerun, 'Claims', cols)).toBe(0);
+    for (const snap of [afterRun, afterRerun]) {
+      const s = snap.sheets.find((x) => x.name === 'Claims')!;
+      const b = before.sheets.find((x) => x.name === 'Claims')!;
+      expect(s.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])).toEqual(expect.arrayContaining(b.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])));
+      expect(s.validations).toEqual(expect.arrayContaining(b.validations));
+    }
+    // the diff mentions only our columns (F..J), our sheets and our settings
+    const foreign = diffSnapshots(before, afterRerun).filter(
+      (d) => !/^Claims![F-J]\d+ /.test(d) && !/^sheet Tailmark (notes|log) added$/.test(d) && !/^setting tailmark\./.test(d) && !/^Claims (conditionalFormats|validations) added/.test(d),
+    );
+    expect(foreign).toEqual([]);
+  });
+
+  it('loadSettings is null before the first run and survives a workbook without our state', async () => {
+    const sb = sandboxFromRows('S', [['Amount'], [1], [2]]);
+    const layer = layerFor(sb);
+    expect(await layer.loadSettings()).toBeNull();
+    sb.setSetting('tailmark.settings', '{"not":"settings"}');
+    expect(await layer.loadSettings()).toBeNull();
+  });
+});

@@ -1,0 +1,75 @@
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { mkdtempSync, rmSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import ExcelJS from 'exceljs';
+import { runSandboxCommand } from '../../src/cli/sandbox-command.js';
+import { claimRows } from './helpers.js';
+
+let dir: string;
+let input: string;
+
+beforeAll(async () => {
+  dir = mkdtempSync(path.join(tmpdir(), 'tm-sandbox-'));
+  input = path.join(dir, 'claims.xlsx');
+  const wb = new ExcelJS.Workbook();
+  const ws = wb.addWorksheet('Claims');
+  for (const r of claimRows(400)) ws.addRow(r);
+  ws.getCell('H1').value = 'Reviewer memo';
+  ws.getCell('H3').value = 'keep';
+  await wb.xlsx.writeFile(input);
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+async function capture(argv: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '';
+  let err = '';
+  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s) => ((out += String(s)), true));
+  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((err += String(s)), true));
+  try {
+    const code = await runSandboxCommand(argv);
+    return { code, out, err };
+  } finally {
+    o.mockRestore();
+    e.mockRestore();
+  }
+}
+
+describe('tailmark sandbox', () => {
+  it('runs detect -> run on the file, reports JSON and writes the result', async () => {
+    const out = path.join(dir, 'scored.xlsx');
+    const r = await capture([input, '--group', 'Cost centre', '--group', 'Category', '--id', 'Claim ID', '--rerun', '--out', out, '--json']);
+    expect(r.err).toBe('');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.syncs).toBeLessThanOrEqual(8);
+    expect(j.maxRequestBytes).toBeLessThan(5 * 1024 * 1024);
+    expect(j.userCellsChanged).toBe(0);
+    expect(j.resultColumns.map((c: { column: string }) => c.column)).toEqual(['F', 'G', 'H', 'I', 'J']);
+    expect(j.highlightedRows).toBe(j.flagged);
+    expect(j.flagged).toBeGreaterThan(0);
+    expect(j.notesSheet).toBe('Tailmark notes');
+    expect(j.reviewMarksKept).toBe(true);
+    expect(j.reviewMarks.marked).toBe(3);
+    const wb = new ExcelJS.Workbook();
+    await wb.xlsx.readFile(out);
+    const ws = wb.getWorksheet('Claims')!;
+    expect(ws.getCell('M3').value).toBe('keep'); // the user's column H moved right past our 5 columns
+    expect(wb.getWorksheet('Tailmark notes')).toBeDefined();
+  });
+
+  it('exits 2 with one line on bad input', async () => {
+    const missing = await capture([path.join(dir, 'nope.xlsx')]);
+    expect(missing.code).toBe(2);
+    expect(missing.err).toMatch(/^tailmark: input file not found: .*nope\.xlsx\n$/);
+    const badOpt = await capture([input, '--colour', 'red']);
+    expect(badOpt.code).toBe(2);
+    expect(badOpt.err).toBe('tailmark: unknown option --colour for "sandbox" (see tailmark --help)\n');
+    const badCol = await capture([input, '--value', 'Amnt']);
+    expect(badCol.code).toBe(2);
+    expect(badCol.err).toMatch(/no value column "Amnt"/);
+    const exists = await capture([input, '--out', input]);
+    expect(exists.code).toBe(2);
+    expect(existsSync(input)).toBe(true);
+  });
+});
