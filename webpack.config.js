@@ -6,6 +6,7 @@ import { builtinModules } from 'node:module';
 import { fileURLToPath } from 'node:url';
 import HtmlWebpackPlugin from 'html-webpack-plugin';
 import CopyWebpackPlugin from 'copy-webpack-plugin';
+import webpack from 'webpack';
 
 const root = path.dirname(fileURLToPath(import.meta.url));
 const nodeBuiltins = builtinModules.filter((m) => !m.startsWith('_'));
@@ -99,6 +100,10 @@ export default (env = {}, argv = {}) => {
     },
     performance: { hints: false },
     plugins: [
+      // "node:fs" -> "fs", so the fallbacks above apply and BrowserBoundaryPlugin names the import.
+      new webpack.NormalModuleReplacementPlugin(/^node:/, (resource) => {
+        resource.request = resource.request.replace(/^node:/, '');
+      }),
       new BrowserBoundaryPlugin(),
       ...page('taskpane', { template: './src/taskpane/taskpane.html', chunks: ['taskpane'], scriptLoading: 'defer' }),
       ...page('preview', { template: './src/preview/preview.html', chunks: ['preview'], scriptLoading: 'defer' }),

@@ -31,7 +31,20 @@ export type ReadTable = SourceTable & {
   readonly workbook?: unknown;
   /** The CSV records as read (csv), so a writer can lay them out on a sheet. */
   readonly csvRecords?: readonly (readonly string[])[];
+  /** Set when the table was read row by row (readTableStreaming); see StreamedInfo. */
+  readonly streamed?: StreamedInfo;
 };
+
+/** What a streaming read learnt that the streaming writer needs (it cannot look at the sheet again). */
+export interface StreamedInfo {
+  readonly kind: 'xlsx' | 'csv';
+  /** Per table column: true when its cells were kept; columns not kept have empty cell arrays. */
+  readonly kept: readonly boolean[];
+  /** 0-based sheet columns right of the table holding a value between the header row and the last data row. */
+  readonly busyColumns: readonly number[];
+  /** The workbook's sheet names in workbook order (xlsx; empty for csv). */
+  readonly sheetNames: readonly string[];
+}
 
 /** 0-based column index -> letters ("A", "Z", "AA"). */
 export function columnLetter(index: number): string {
@@ -53,7 +66,7 @@ export function fileKind(path: string): 'xlsx' | 'csv' | null {
 }
 
 /** Make header names usable as keys: empty ones get the column letter, repeats get " (2)", " (3)"... */
-function cleanHeaders(raw: readonly string[], firstColumn: number): string[] {
+export function cleanHeaders(raw: readonly string[], firstColumn: number): string[] {
   const seen = new Map<string, number>();
   return raw.map((h, i) => {
     let name = h.trim() === '' ? `Column ${columnLetter(firstColumn + i)}` : h.trim();
@@ -64,7 +77,7 @@ function cleanHeaders(raw: readonly string[], firstColumn: number): string[] {
   });
 }
 
-function isEmpty(v: RawCell): boolean {
+export function isEmpty(v: RawCell): boolean {
   return v === null || v === undefined || (typeof v === 'string' && v.trim() === '');
 }
 
@@ -87,7 +100,7 @@ export function fromExcelValue(value: unknown): RawCell {
   return String(value);
 }
 
-function describe(path: string, sheet: string | null, firstCol: number, headerRow: number, width: number, rows: number): string {
+export function describe(path: string, sheet: string | null, firstCol: number, headerRow: number, width: number, rows: number): string {
   const range = `${columnLetter(firstCol)}${headerRow}:${columnLetter(firstCol + Math.max(width, 1) - 1)}${headerRow + rows}`;
   return sheet ? `${basename(path)}, sheet ${sheet}, ${range}` : `${basename(path)}, ${range}`;
 }

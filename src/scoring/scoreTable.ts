@@ -2,10 +2,11 @@ import { maxAttainableZ } from './methods/classic.js';
 import { getMethod } from './methods/index.js';
 import type { Fit, ScoringMethod } from './methods/method.js';
 import { NO_FIT } from './methods/method.js';
-import { MAD_NORMAL_CONSTANT } from './mad.js';
 import { groupRows, type Grouping } from './groups.js';
+import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
-import { EMPTY_SUMMARY, real, summarize, type Summary } from './summary.js';
+import { summarizeFor } from './summarizeFor.js';
+import { real, type Summary } from './summary.js';
 import {
   type ColumnScores,
   DEFAULT_OPTIONS,
@@ -73,22 +74,31 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
 /**
  * Scores every value column of a table per peer group.
  *
- * Pipeline (no per-row object allocation on the hot path):
- * 1. group once per table (`groupRows`: one Map lookup per row, group sizes -> counting-sort
- *    offsets), shared by every value column;
- * 2. per value column, parse each cell once into a Float64Array (`parseCell`; plain numbers take a
- *    fast path), with an exclusion code per row;
- * 3. counting sort: scatter the usable values into one group-ordered Float64Array scratch;
- * 4. per group, summarise its slice of that scratch (median, Q1, Q3 and MAD by quickselect;
- *    mean, SD, mean absolute deviation by passes) — O(n) per group — and let the method fit
- *    centre / scale / bounds;
- * 5. score and flag every row in row order.
+ * Pipeline (no per-row object or string allocation on the hot path):
+ * 1. group once per table (`groupRows`: key columns coded to small integers, several combined
+ *    into one numeric code; group sizes -> counting-sort offsets), shared by every value column;
+ * 2. per value column, parse each cell once into a Float64Array (plain finite numbers take a
+ *    fast path without `parseCell`), with an exclusion code per row;
+ * 3. counting sort: scatter the usable values into one group-ordered Float64Array, kept for the
+ *    lazy statistics below;
+ * 4. per group, compute only what the method scores with (`summarizeFor`: robust median and MAD,
+ *    classic mean and SD, IQR quartiles; quickselect on one reused scratch array) — O(n) per
+ *    group — and let the method fit centre / scale / bounds;
+ * 5. score and flag every row in one pass in row order (per-group fits flattened to typed arrays).
  * Groups with fewer than `minGroupSize` usable values are compared with the whole column
- * ('pool') or left unscored ('skip'). The whole column is also summarised as one population
- * (`ColumnScores.pooled`).
+ * ('pool') or left unscored ('skip').
  *
- * Cost: O(rows x (key columns + value columns)) expected time; memory about 26 bytes per row per
- * value column plus 16 bytes per row of scratch and grouping.
+ * Laziness: the other descriptive fields of each `GroupStats` (e.g. mean and SD under robust,
+ * median, MAD and quartiles under classic; all of them on log scale, where they are in original
+ * units) are computed on first read and cached (see `lazyStats.ts`); they are own enumerable
+ * accessor properties, so JSON, spread and `in` see them. `ColumnScores.pooled` (the whole
+ * column as one population) is likewise built on first read, unless scoring needed it (a pooled
+ * small group, or an IQR group borrowing the column's IQR), in which case its fit is computed
+ * while scoring. A read never changes a score or flag.
+ *
+ * Cost: O(rows x (key columns + value columns)) expected time; memory about 34 bytes per row per
+ * value column (8 more on log scale) plus 4 bytes per row of grouping and a scratch as large as
+ * the largest group.
  *
  * Throws (with a message naming the column or option) when columns differ in length or an
  * option is invalid. Never mutates the input.
@@ -103,15 +113,38 @@ export function scoreTable(input: ScoreInput, options: ScoreOptions): ScoreResul
     }
   }
   const grouping = groupRows(input.groupColumns, rowCount);
-  const buf = new Float64Array(rowCount);
-  const dev = new Float64Array(rowCount);
-  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method, buf, dev));
+  let largest = 0;
+  for (let g = 0; g < grouping.keys.length; g++) largest = Math.max(largest, grouping.start[g + 1] - grouping.start[g]);
+  const shared: Shared = {
+    scratch: new Float64Array(largest),
+    logOrdered: opts.logScale && input.valueColumns.length > 0 ? new Float64Array(rowCount) : null,
+  };
+  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method, shared));
   return { options: opts, rowCount, groupColumns: input.groupColumns.map((c) => c.name), columns };
+}
+
+/** Scratch shared by the value columns of one table. */
+interface Shared {
+  /** As long as the largest group: quickselect scratch. */
+  readonly scratch: Float64Array;
+  /** Log scale: ln of the usable values in group order (the ordered buffer keeps original units). */
+  readonly logOrdered: Float64Array | null;
 }
 
 function reasonCounts(counts: Int32Array, offset: number): Record<ExclusionReason, number> {
   const out = {} as Record<ExclusionReason, number>;
   for (let i = 0; i < NREASONS; i++) out[EXCLUSION_REASONS[i]] = counts[offset + i];
+  return out;
+}
+
+const KIND_NONE = 0;
+const KIND_Z = 1;
+const KIND_FENCE = 2;
+const POP_NAMES: readonly Population[] = ['none', 'group', 'column'];
+
+function dedupe(fallbacks: readonly Fallback[]): Fallback[] {
+  const out: Fallback[] = [];
+  for (const f of fallbacks) if (!out.includes(f)) out.push(f);
   return out;
 }
 
@@ -121,8 +154,7 @@ function scoreColumn(
   grouping: Grouping,
   opts: Required<ScoreOptions>,
   method: ScoringMethod,
-  buf: Float64Array,
-  dev: Float64Array,
+  shared: Shared,
 ): ColumnScores {
   const rowCount = cells.length;
   const values = new Float64Array(rowCount);
@@ -133,112 +165,157 @@ function scoreColumn(
   // 1. Parse once.
   parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
 
-  // 2. The whole column as one population: counted now, summarised only when needed (a pooled
-  //    small group, an IQR group borrowing the column's IQR, or the first read of `pooled`).
+  // 2. Scatter usable values into group order (one sequential pass; one write cursor per group)
+  //    and count exclusions per group. `ordered` (original units) is kept for the lazy statistics;
+  //    on log scale the scoring scale (ln) goes to the shared `logOrdered` too.
+  const { start, groupOf } = grouping;
+  const nGroups = grouping.keys.length;
+  const ordered = new Float64Array(rowCount);
+  const yOrdered = shared.logOrdered ?? ordered;
+  const cursor = start.slice(0, nGroups);
+  const gCounts = new Int32Array(nGroups * NREASONS);
+  if (logScale) {
+    for (let r = 0; r < rowCount; r++) {
+      const g = groupOf[r];
+      const e = exclusion[r];
+      if (e === 0) {
+        const at = cursor[g]++;
+        ordered[at] = values[r];
+        yOrdered[at] = y[r];
+      } else gCounts[g * NREASONS + e - 1]++;
+    }
+  } else {
+    for (let r = 0; r < rowCount; r++) {
+      const g = groupOf[r];
+      const e = exclusion[r];
+      if (e === 0) ordered[cursor[g]++] = values[r];
+      else gCounts[g * NREASONS + e - 1]++;
+    }
+  }
+  const count = new Int32Array(nGroups);
   const colCounts = new Int32Array(NREASONS);
   let nAll = 0;
-  for (let r = 0; r < rowCount; r++) {
-    const e = exclusion[r];
-    if (e === 0) nAll++;
-    else colCounts[e - 1]++;
+  for (let g = 0; g < nGroups; g++) {
+    count[g] = cursor[g] - start[g];
+    nAll += count[g];
+    for (let i = 0; i < NREASONS; i++) colCounts[i] += gCounts[g * NREASONS + i];
   }
-  // Summarised when a group first needs it (a pooled small group, an IQR group borrowing the
-  // column's IQR), else once the groups are done; either way it reuses the `dev` scratch and a
-  // scratch of its own only while `buf` is still in use by the groups.
-  let colCache: { s: Summary; o: Summary; fit: Fit } | null = null;
-  let groupsDone = false;
-  const column = (): { s: Summary; o: Summary; fit: Fit } => {
-    if (colCache !== null) return colCache;
-    const b = groupsDone ? buf : new Float64Array(nAll);
-    let k = 0;
-    for (let r = 0; r < rowCount; r++) if (exclusion[r] === 0) b[k++] = y[r];
-    const s = summarize(b.subarray(0, nAll), nAll, dev);
-    const o = logScale ? summarizeOriginal(values, exclusion, b, dev) : s;
-    colCache = { s, o, fit: NO_FIT };
-    colCache.fit = method.fit(s, opts.cutoff, opts.direction, () => s);
-    return colCache;
+  const store = new DescriptiveStore(ordered, start, count, nAll);
+
+  // The whole column's fit: computed while scoring when a group needs it, else on the first read
+  // of `pooled`. Its values come from `yOrdered` while this column is being scored, and from
+  // `ordered` (ln applied again on log scale: the same values) afterwards.
+  let colFit: { s: Summary; fit: Fit } | null = null;
+  let scoring = true;
+  const column = (): { s: Summary; fit: Fit } => {
+    if (colFit !== null) return colFit;
+    let all: Float64Array;
+    if (!logScale) all = store.gather();
+    else if (scoring) {
+      all = new Float64Array(nAll);
+      let k = 0;
+      for (let g = 0; g < nGroups; g++) {
+        all.set(yOrdered.subarray(start[g], start[g] + count[g]), k);
+        k += count[g];
+      }
+    } else all = store.gather(Math.log);
+    const s = summarizeFor(method.id, all, 0, nAll, all);
+    colFit = { s, fit: method.fit(s, opts.cutoff, opts.direction, () => s) };
+    return colFit;
   };
   const columnSummary = (): Summary => column().s;
 
+  // 3. Fit each group on what its method needs.
+  const fits: Fit[] = new Array(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
+  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const kind = new Uint8Array(nGroups);
+  const popOf = new Uint8Array(nGroups);
+  const fUnit = new Float64Array(nGroups);
+  const fCenter = new Float64Array(nGroups);
+  const fScale = new Float64Array(nGroups);
+  const fQ1 = new Float64Array(nGroups);
+  const fQ3 = new Float64Array(nGroups);
+  const scratch = shared.scratch;
+  for (let g = 0; g < nGroups; g++) {
+    const n = count[g];
+    let fit: Fit;
+    let popCode: number;
+    let fallbacks: Fallback[];
+    let s: Summary | null = null;
+    if (n >= opts.minGroupSize) {
+      s = summarizeFor(method.id, yOrdered, start[g], n, scratch);
+      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
+      popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
+      fallbacks = dedupe(fit.fallbacks);
+    } else if (opts.smallGroups === 'pool' && n > 0) {
+      fit = column().fit;
+      popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;
+      fallbacks = dedupe(['small-pooled', ...fit.fallbacks]);
+    } else {
+      fit = NO_FIT;
+      popCode = POP_NONE;
+      fallbacks = n > 0 ? [opts.smallGroups === 'pool' ? 'small-pooled' : 'small-skipped'] : [];
+    }
+    fits[g] = fit;
+    scoringSummaries[g] = logScale ? null : s;
+    groupFallbacks[g] = fallbacks;
+    popOf[g] = popCode;
+    kind[g] = fit.kind === 'z' ? KIND_Z : fit.kind === 'fence' ? KIND_FENCE : KIND_NONE;
+    fUnit[g] = fit.unit;
+    fCenter[g] = fit.center;
+    fScale[g] = fit.scale;
+    fQ1[g] = fit.q1;
+    fQ3[g] = fit.q3;
+  }
+  scoring = false;
+
+  // 4. Score every row in row order.
   const scores = new Float64Array(rowCount); // every row is written by scoreRows
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
   const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
-  const { start, groupOf } = grouping;
-  const nGroups = grouping.keys.length;
-
-  // 3. Scatter usable values into group order (one sequential pass; writes go to one cursor per
-  //    group, which stays cache-friendly where a per-group gather of random rows would not).
-  const cursor = start.slice(0, nGroups);
-  const gCounts = new Int32Array(nGroups * NREASONS);
-  const orig = logScale ? new Float64Array(rowCount) : null;
-  for (let r = 0; r < rowCount; r++) {
-    const g = groupOf[r];
-    const e = exclusion[r];
-    if (e === 0) {
-      const at = cursor[g]++;
-      buf[at] = y[r];
-      if (orig !== null) orig[at] = values[r];
-    } else gCounts[g * NREASONS + e - 1]++;
-  }
-
-  // 4. Summarise and fit each group.
-  const fits: Fit[] = new Array(nGroups);
-  const popOf = new Uint8Array(nGroups);
-  const groupN = new Int32Array(nGroups);
-  const groupSummaries: Summary[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
-  for (let g = 0; g < nGroups; g++) {
-    const from = start[g];
-    const n = cursor[g] - from;
-    groupN[g] = n;
-    const s = summarize(buf.subarray(from, from + n), n, dev);
-    groupSummaries[g] = logScale && orig !== null ? summarize(orig.subarray(from, from + n), n, dev) : s;
-    let fit: Fit;
-    let popCode: number;
-    const fallbacks: Fallback[] = [];
-    if (n >= opts.minGroupSize) {
-      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
-      popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
-      fallbacks.push(...fit.fallbacks);
-    } else if (opts.smallGroups === 'pool' && n > 0) {
-      fit = column().fit;
-      popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;
-      fallbacks.push('small-pooled', ...fit.fallbacks);
-    } else {
-      fit = NO_FIT;
-      popCode = POP_NONE;
-      if (n > 0) fallbacks.push(opts.smallGroups === 'pool' ? 'small-pooled' : 'small-skipped');
-    }
-    fits[g] = fit;
-    popOf[g] = popCode;
-    groupFallbacks[g] = fallbacks;
-  }
-
-  groupsDone = true;
-  const whole = column();
-
-  // 5. Score every row in row order.
   const flaggedPerGroup = new Int32Array(nGroups);
-  const scoredRows = scoreRows(fits, popOf, groupOf, opts.cutoff, opts.direction, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
+  const scoredRows = scoreRows(
+    { kind, popOf, unit: fUnit, center: fCenter, scale: fScale, q1: fQ1, q3: fQ3 }, groupOf, opts.cutoff, opts.direction,
+    exclusion, y, scores, flagged, population, reach, flaggedPerGroup,
+  );
+
+  // 5. Per-group results (descriptive fields lazy).
   let flaggedRows = 0;
   let pooledFlagged = 0;
   const groups: GroupStats[] = new Array(nGroups);
-  const popNames: Population[] = ['none', 'group', 'column'];
+  const bits = SCORING_FIELDS[method.id];
   for (let g = 0; g < nGroups; g++) {
-    flaggedRows += flaggedPerGroup[g];
-    if (popOf[g] === POP_COLUMN) pooledFlagged += flaggedPerGroup[g];
-    groups[g] = makeStats(
-      grouping.keys[g], grouping.labels[g], grouping.keyParts[g], start[g + 1] - start[g], groupN[g],
-      reasonCounts(gCounts, g * NREASONS), groupSummaries[g], fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], popNames[popOf[g]],
+    const f = flaggedPerGroup[g];
+    flaggedRows += f;
+    if (popOf[g] === POP_COLUMN) pooledFlagged += f;
+    const n = count[g];
+    groups[g] = lazyGroupStats(
+      { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
+      store, g, scoringSummaries[g], bits,
+      { ...fitFields(fits[g], logScale), flagged: f, fallbacks: groupFallbacks[g], population: POP_NAMES[popOf[g]], maxAttainableZ: n >= 2 ? maxAttainableZ(n) : null },
     );
   }
 
-  const pooled = makeStats(
-    '', WHOLE_COLUMN_LABEL, [], rowCount, nAll, reasonCounts(colCounts, 0), whole.o, whole.fit, logScale, pooledFlagged,
-    [...whole.fit.fallbacks], whole.fit.kind === 'none' ? 'none' : 'column',
-  );
-  const col: ColumnScores = {
+  // The whole column as one population, built on first read (its fit is computed then if scoring
+  // did not need it).
+  let pooled: GroupStats | null = null;
+  const pooledStats = (): GroupStats => {
+    if (pooled !== null) return pooled;
+    const whole = column();
+    pooled = lazyGroupStats(
+      { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
+      store, -1, logScale ? null : whole.s, bits,
+      {
+        ...fitFields(whole.fit, logScale), flagged: pooledFlagged, fallbacks: dedupe(whole.fit.fallbacks),
+        population: whole.fit.kind === 'none' ? 'none' : 'column', maxAttainableZ: nAll >= 2 ? maxAttainableZ(nAll) : null,
+      },
+    );
+    return pooled;
+  };
+
+  const col: Record<string, unknown> = {
     column: name,
     method: opts.method,
     cutoff: opts.cutoff,
@@ -251,13 +328,24 @@ function scoreColumn(
     groupOf,
     population,
     groups,
-    pooled,
-    excludedCounts: reasonCounts(colCounts, 0),
-    scoredRows,
-    flaggedRows,
-    ...(reach !== undefined ? { fenceMultiple: reach } : {}),
   };
-  return col;
+  Object.defineProperty(col, 'pooled', { enumerable: true, configurable: true, get: pooledStats });
+  col.excludedCounts = reasonCounts(colCounts, 0);
+  col.scoredRows = scoredRows;
+  col.flaggedRows = flaggedRows;
+  if (reach !== undefined) col.fenceMultiple = reach;
+  return col as unknown as ColumnScores;
+}
+
+/** centre, scale and bounds of a fit in real (and, for bounds, original) units. */
+function fitFields(fit: Fit, logScale: boolean): { center: number | null; scale: number | null; lower: number | null; upper: number | null } {
+  const scored = fit.kind !== 'none';
+  return {
+    center: scored ? real(fit.center, fit.unit) : null,
+    scale: scored && fit.scale > 0 ? real(fit.scale, fit.unit) : null,
+    lower: scored ? bound(fit.lower, fit.unit, logScale) : null,
+    upper: scored ? bound(fit.upper, fit.unit, logScale) : null,
+  };
 }
 
 /**
@@ -306,52 +394,61 @@ function parseColumn(
   }
 }
 
-/** Summary of the original (not log) values of the usable rows, for the descriptive fields on log scale. */
-function summarizeOriginal(values: Float64Array, exclusion: Uint8Array, buf: Float64Array, dev: Float64Array): Summary {
-  let n = 0;
-  for (let r = 0; r < values.length; r++) if (exclusion[r] === 0) buf[n++] = values[r];
-  return n === 0 ? EMPTY_SUMMARY : summarize(buf.subarray(0, n), n, dev);
-}
-
 const MAX = Number.MAX_VALUE;
-const clamp = (x: number): number => (x > MAX ? MAX : x < -MAX ? -MAX : x);
+
+/** Per-group fits as typed arrays, so the row pass reads numbers, not objects. */
+interface FlatFits {
+  readonly kind: Uint8Array;
+  readonly popOf: Uint8Array;
+  readonly unit: Float64Array;
+  readonly center: Float64Array;
+  readonly scale: Float64Array;
+  readonly q1: Float64Array;
+  readonly q3: Float64Array;
+}
 
 /** Scores every usable row against its group's fit, in row order; returns how many were scored. */
 function scoreRows(
-  fits: readonly Fit[], popOf: Uint8Array, groupOf: Int32Array, cutoff: number, direction: Direction,
+  fits: FlatFits, groupOf: Int32Array, cutoff: number, direction: Direction,
   exclusion: Uint8Array, y: Float64Array, scores: Float64Array, flagged: Uint8Array, population: Uint8Array,
   reach: Float64Array | undefined, flaggedPerGroup: Int32Array,
 ): number {
   const hi = direction !== 'low';
   const lo = direction !== 'high';
+  const { kind, popOf, unit, center, scale, q1, q3 } = fits;
   const n = y.length;
   let count = 0;
   for (let r = 0; r < n; r++) {
     const g = groupOf[r];
-    const fit = fits[g];
-    if (exclusion[r] !== 0 || fit.kind === 'none') {
+    const k = kind[g];
+    if (exclusion[r] !== 0 || k === KIND_NONE) {
       scores[r] = NaN;
       continue;
     }
     count++;
     population[r] = popOf[g];
-    const v = y[r] / fit.unit;
-    if (fit.kind === 'z') {
-      const scale = fit.scale;
-      if (!(scale > 0)) {
+    const v = y[r] / unit[g];
+    const sc = scale[g];
+    if (k === KIND_Z) {
+      if (!(sc > 0)) {
         scores[r] = 0;
         continue;
       }
-      const z = clamp((v - fit.center) / scale);
+      let z = (v - center[g]) / sc;
+      if (z > MAX) z = MAX;
+      else if (z < -MAX) z = -MAX;
       scores[r] = z;
       if ((hi && z > cutoff) || (lo && z < -cutoff)) {
         flagged[r] = 1;
         flaggedPerGroup[g]++;
       }
     } else {
-      const iqr = fit.scale;
-      const tHigh = clamp((v - fit.q3) / iqr);
-      const tLow = clamp((fit.q1 - v) / iqr);
+      let tHigh = (v - q3[g]) / sc;
+      if (tHigh > MAX) tHigh = MAX;
+      else if (tHigh < -MAX) tHigh = -MAX;
+      let tLow = (q1[g] - v) / sc;
+      if (tLow > MAX) tLow = MAX;
+      else if (tLow < -MAX) tLow = -MAX;
       let score = 0;
       if (tHigh > cutoff) score = tHigh - cutoff;
       else if (tLow > cutoff) score = -(tLow - cutoff);
@@ -372,39 +469,4 @@ function bound(x: number, unit: number, logScale: boolean): number | null {
   const v = x * unit;
   const b = logScale ? Math.exp(v) : v;
   return Number.isFinite(b) ? b : null;
-}
-
-function makeStats(
-  key: string, label: string, keyParts: readonly string[], rows: number, n: number,
-  excluded: Record<ExclusionReason, number>, o: Summary, fit: Fit, logScale: boolean, flagged: number,
-  fallbacks: Fallback[], population: Population,
-): GroupStats {
-  const u = o.unit;
-  const mad = n > 0 ? real(o.mad, u) : null;
-  const scaledMad = mad === null ? null : Number.isFinite(MAD_NORMAL_CONSTANT * mad) ? MAD_NORMAL_CONSTANT * mad : null;
-  const scored = fit.kind !== 'none';
-  return {
-    key,
-    label,
-    keyParts,
-    rows,
-    n,
-    excluded,
-    median: n > 0 ? real(o.median, u) : null,
-    mad,
-    scaledMad,
-    meanAbsDev: n > 0 ? real(o.meanAbsDev, u) : null,
-    mean: n > 0 ? real(o.mean, u) : null,
-    sd: n > 1 ? real(o.sd, u) : null,
-    q1: n > 0 ? real(o.q1, u) : null,
-    q3: n > 0 ? real(o.q3, u) : null,
-    center: scored ? real(fit.center, fit.unit) : null,
-    scale: scored && fit.scale > 0 ? real(fit.scale, fit.unit) : null,
-    lower: scored ? bound(fit.lower, fit.unit, logScale) : null,
-    upper: scored ? bound(fit.upper, fit.unit, logScale) : null,
-    flagged,
-    fallbacks: [...new Set(fallbacks)],
-    population,
-    maxAttainableZ: n >= 2 ? maxAttainableZ(n) : null,
-  };
 }

@@ -88,7 +88,7 @@ export function summarize(buf: Float64Array, n: number, dev: Float64Array): Summ
  * Type-7 quantile p of buf[0..n-1] when its order-statistic positions lie within [left, right] and
  * that range already holds exactly the elements of those ranks (left of it smaller, right larger).
  */
-function typeSevenWithin(buf: Float64Array, n: number, p: number, left: number, right: number): number {
+export function typeSevenWithin(buf: Float64Array, n: number, p: number, left: number, right: number): number {
   const h = (n - 1) * p;
   const lo = Math.floor(h);
   quickselect(buf, lo, left, right);

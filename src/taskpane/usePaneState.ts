@@ -82,28 +82,32 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   // First detection and following the selection.
   useEffect(() => {
     mounted.current = true;
+    let active = true;
     let unsubscribe: (() => void) | null = null;
     let timer: ReturnType<typeof setTimeout> | null = null;
     void detect(false);
     layer
       .onSelectionChanged(() => {
+        if (!active) return;
         if (ownEvents.current > 0) {
           ownEvents.current--;
           return;
         }
         if (timer) clearTimeout(timer);
         timer = setTimeout(() => {
-          // While a run or a mark is writing, or after we moved to an exception, the selection
-          // moved because of us: ignore it.
-          if (stateRef.current.busy === null) void detect(true);
+          // While a run or a mark is writing, the selection moves because of us: ignore it.
+          if (active && stateRef.current.busy === null) void detect(true);
         }, 120);
       })
       .then((off) => {
-        if (mounted.current) unsubscribe = off;
+        if (active) unsubscribe = off;
         else off();
       })
-      .catch((error: unknown) => dispatch({ type: 'failed', error }));
+      .catch((error: unknown) => {
+        if (active) dispatch({ type: 'failed', error });
+      });
     return () => {
+      active = false;
       mounted.current = false;
       if (timer) clearTimeout(timer);
       unsubscribe?.();

@@ -160,7 +160,9 @@ function buildDetected(sheetName: string, block: Rect, tableName: string | null,
   const names = headerNames(first, block.column, true);
   // Our own result columns (from a previous run) are not data.
   const ours = first.map((c) => isOurHeader(cellText(c)));
-  const userIdx = ours.map((o, i) => (o ? -1 : i)).filter((i) => i >= 0);
+  // On a plain range our block ends the data: columns the user added right of it are not data.
+  const firstOurs = tableName === null ? ours.indexOf(true) : -1;
+  const userIdx = ours.map((o, i) => (o || (firstOurs >= 0 && i > firstOurs) ? -1 : i)).filter((i) => i >= 0);
   if (userIdx.length === 0) throw new TailmarkError('no-numbers', `The block ${where} holds only Tailmark's result columns. Select a cell in your claims data.`);
   const spanStart = userIdx[0];
   const spanEnd = userIdx[userIdx.length - 1] + 1;

@@ -10,7 +10,7 @@
  *  - key:    text with few distinct values (at most half the non-blank cells, and at most 500);
  *  - text:   anything else.
  */
-import { parseCell } from '../scoring/parseCell.js';
+import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
 import type { ColumnGuess, DetectedColumn } from './api.js';
 import { columnLetters } from './a1.js';

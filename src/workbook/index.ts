@@ -112,16 +112,32 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('mark', (s) => markRows(s, rows, status, note));
     },
     async onSelectionChanged(handler: () => void): Promise<() => void> {
-      const registration = await run(async (context) => {
-        const result = context.workbook.onSelectionChanged.add(async () => {
-          handler();
-        });
-        await context.sync();
-        return result;
+      // The registration lives in an Excel.run that stays open until unsubscribe: the handler is
+      // removed, and synced, through the same context that added it (as Office.js requires).
+      let release: () => void = () => undefined;
+      const released = new Promise<void>((r) => {
+        release = r;
       });
+      await new Promise<void>((registered, failed) => {
+        run(async (context) => {
+          const result = context.workbook.onSelectionChanged.add(async () => {
+            handler();
+          });
+          await context.sync();
+          registered();
+          await released;
+          result.remove();
+          await context.sync();
+        }).catch((e: unknown) => {
+          failed(e);
+          options.onBackgroundError?.(e);
+        });
+      });
+      let done = false;
       return () => {
-        registration.remove();
-        registration.context.sync().catch((e: unknown) => options.onBackgroundError?.(e));
+        if (done) return;
+        done = true;
+        release();
       };
     },
   };

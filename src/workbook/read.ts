@@ -124,7 +124,7 @@ export async function readRows(
         const valueTypes = l.props === 'typed' ? (l.range.valueTypes as string[][]) : null;
         const numberFormat = l.props === 'typed' ? (l.range.numberFormat as string[][]) : null;
         bytes += jsonBytes(values) + (valueTypes ? jsonBytes(valueTypes) : 0) + (numberFormat ? jsonBytes(numberFormat) : 0);
-        consume(l.span, l.offset - 0, { values, valueTypes, numberFormat });
+        consume(l.span, l.offset, { values, valueTypes, numberFormat });
       }
       sync.noteResponse(bytes);
       bytesPerRow = Math.max(1, bytes / rows);

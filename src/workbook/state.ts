@@ -4,7 +4,7 @@
  * them). Values are stored as JSON text and validated on the way back in.
  */
 import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
-import { NOTE_HEADER, STATUS_HEADER } from '../report/index.js';
+import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../report/index.js';
 import type { RunSettings } from './api.js';
 
 export const SETTINGS_KEY = 'tailmark.settings';
@@ -111,13 +111,12 @@ export function parseState(value: unknown): LayerState | null {
   };
 }
 
-/** True for a header text we write (result, status and note columns). */
+const SUFFIXES = (() => {
+  const h = resultHeaders('');
+  return [h.score, h.flag, h.reason];
+})();
+
+/** True for a header text we write (result, status and note columns; see resultHeaders in src/report). */
 export function isOurHeader(text: string): boolean {
-  return (
-    text === STATUS_HEADER ||
-    text === NOTE_HEADER ||
-    text.endsWith(' · tail score') ||
-    text.endsWith(' · tail flag') ||
-    text.endsWith(' · why')
-  );
+  return text === STATUS_HEADER || text === NOTE_HEADER || SUFFIXES.some((s) => text.length > s.length && text.endsWith(s));
 }

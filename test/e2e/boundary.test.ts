@@ -21,7 +21,7 @@ function compile(source: string): Promise<string[]> {
     ...base,
     entry: { probe: path.join(dir, name) },
     output: { path: path.join(dir, 'out'), filename: '[name].js' },
-    plugins: [new BrowserBoundaryPlugin()],
+    plugins: [...(base.plugins ?? []).filter((p) => p?.constructor?.name === 'NormalModuleReplacementPlugin'), new BrowserBoundaryPlugin()],
     devtool: false,
   };
   return new Promise((resolve, reject) => {
@@ -36,6 +36,8 @@ describe('browser bundle boundary', () => {
   it('fails the build when a Node built-in is imported', async () => {
     const errors = await compile(`import { readFileSync } from 'node:fs';\nexport const x = readFileSync;\n`);
     expect(errors.join('\n')).toMatch(/Node built-in "node:fs"/);
+    const bare = await compile(`import path from 'path';\nexport const x = path;\n`);
+    expect(bare.join('\n')).toMatch(/Node built-in "path"/);
   });
 
   it('fails the build when src/files is imported', async () => {

@@ -5,14 +5,15 @@
  */
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
+import ExcelJS from 'exceljs';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pageSize, PANE_GZIP_LIMIT } from '../../scripts/bundle-size.mjs';
 import { DEMO_GROUPS, demoClaims } from '../../src/demo/claims.js';
-import { NOTES_SHEET_NAME, PALETTE, REVIEW_STATUSES } from '../../src/report/style.js';
+import { NOTES_SHEET_NAME, PALETTE, resultHeaders, REVIEW_STATUSES, STATUS_HEADER } from '../../src/report/style.js';
 import { scoreTable } from '../../src/scoring/index.js';
 import type { RawCell } from '../../src/scoring/types.js';
-import { buildWeb, OUT_DIR, openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
+import { buildWeb, OUT_DIR, openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 /** What the batch engine flags on the demo data with the pane's default choices (robust z, both sides). */
 function expectedFlags(cutoff: number): number {
@@ -142,6 +143,38 @@ describe('preview page with the real task pane', () => {
     expect(texts).toContain('=receipt requested');
 
     expect(errors).toEqual([]);
+    await page.close();
+  });
+
+  it('downloads the result as .xlsx and opens .xlsx and .csv files in the browser', async () => {
+    const { page, requests } = await openPage(session, 'preview.html');
+    await ready(page);
+    await runAndWait(page);
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('download').click()]);
+    expect(download.suggestedFilename()).toMatch(/tailmark\.xlsx$/);
+    const file = path.join(ROOT, 'test-output', 'preview-download.xlsx');
+    await download.saveAs(file);
+    const wb = new ExcelJS.Workbook();
+    await wb.xlsx.readFile(file);
+    expect(wb.worksheets.map((w) => w.name)).toContain(NOTES_SHEET_NAME);
+    const header = (wb.getWorksheet('Claims')!.getRow(1).values as unknown[]).map(String);
+    expect(header).toContain(resultHeaders('Amount').score);
+    expect(header).toContain(STATUS_HEADER);
+
+    // Open that .xlsx again: the pane sees the earlier results.
+    await page.getByTestId('file-input').setInputFiles(file);
+    await expect.poll(() => page.getByTestId('preview-message').textContent(), { timeout: 20_000 }).toMatch(/Opened preview-download\.xlsx/);
+    await expect.poll(() => page.getByTestId('table-info').textContent(), { timeout: 20_000 }).toMatch(/has earlier results/);
+
+    // A CSV of our own: 30 invented rows, one group.
+    const lines = ['Ref,Unit,Cost'];
+    for (let i = 0; i < 30; i++) lines.push(`R${i},U-1,${i === 29 ? '9,999.00' : 100 + (i % 7)}`);
+    lines[30] = 'R29,U-1,"9,999.00"';
+    await page.getByTestId('file-input').setInputFiles({ name: 'mine.csv', mimeType: 'text/csv', buffer: Buffer.from(lines.join('\r\n')) });
+    await expect.poll(() => page.getByTestId('row-count').textContent(), { timeout: 20_000 }).toBe('30');
+    await expect(page.getByRole('tab', { name: 'mine' }).isVisible()).resolves.toBe(true);
+    // Nothing was fetched for any of it.
+    for (const u of requests) expect(u.startsWith(session.url), u).toBe(true);
     await page.close();
   });
 

@@ -306,3 +306,19 @@ describe('refusals leave the workbook unchanged', () => {
     expect(diffSnapshots(before, sb.snapshot())).toEqual([]);
   });
 });
+
+describe('re-run with a user column added right of our block', () => {
+  it('updates our columns in place and leaves the user column alone', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    sb.setCell('Claims', 0, 10, 'Follow-up');
+    sb.setCell('Claims', 14, 10, 'call Tue');
+    const t = await layer.detect();
+    expect(t.address).toBe('Claims!A1:E101');
+    expect(t.hasResults).toBe(true);
+    await layer.run(t, { ...SETTINGS, cutoff: 3 });
+    expect(sb.valuesOf('Claims', 'F1:K1')[0]).toEqual([H.score, H.flag, H.reason, STATUS_HEADER, NOTE_HEADER, 'Follow-up']);
+    expect(sb.valueAt('Claims', 14, 10)).toBe('call Tue');
+  });
+});

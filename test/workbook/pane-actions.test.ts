@@ -37,8 +37,10 @@ describe('pane actions', () => {
     const summary = await layer.run(await layer.detect(), SETTINGS);
     const ex = await layer.listExceptions();
     expect(ex).toHaveLength(summary.flagged);
-    expect(ex[0]).toMatchObject({ row: 13, claimId: 'CL-000014', group: 'CC-202 / Travel', status: 'To look at', note: '' });
-    expect(ex[0].value).toBeCloseTo(Number(sb.valueAt('Claims', 14, 4)), 10);
+    const planted = ex.find((e) => e.row === 13)!;
+    expect(planted).toMatchObject({ claimId: 'CL-000014', group: 'CC-202 / Travel', status: 'To look at', note: '' });
+    expect(planted.value).toBeCloseTo(Number(sb.valueAt('Claims', 14, 4)), 10);
+    expect(planted.score).toBeGreaterThan(3.5);
     await expect(layer.mark([5], 'Approved', null)).rejects.toThrow(/not a review status/);
     await expect(layer.mark([100], 'Cleared', null)).rejects.toThrow(/outside the data/);
     await layer.mark([2], null, 'asked for receipt');
@@ -67,8 +69,11 @@ describe('pane actions', () => {
       expect(s.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])).toEqual(expect.arrayContaining(b.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])));
       expect(s.validations).toEqual(expect.arrayContaining(b.validations));
     }
-    // the diff mentions only our columns (F..J), our sheets and our settings
-    const foreign = diffSnapshots(before, afterRerun).filter(
+    // The diff mentions only our columns (F..J), our sheets, our settings and our rules. Our rules
+    // are added on top (Excel gives a new rule priority 0), so the user's rule moves down in number
+    // but keeps its place relative to the user's other rules: compare the user's rules without it.
+    const noPriority = (x: typeof before) => ({ ...x, sheets: x.sheets.map((s) => ({ ...s, conditionalFormats: s.conditionalFormats.map((c) => ({ ...c, priority: 0 })) })) });
+    const foreign = diffSnapshots(noPriority(before), noPriority(afterRerun)).filter(
       (d) => !/^Claims![F-J]\d+ /.test(d) && !/^sheet Tailmark (notes|log) added$/.test(d) && !/^setting tailmark\./.test(d) && !/^Claims (conditionalFormats|validations) added/.test(d),
     );
     expect(foreign).toEqual([]);

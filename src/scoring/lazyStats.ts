@@ -1,0 +1,178 @@
+import { MAD_NORMAL_CONSTANT } from './mad.js';
+import { EMPTY_SUMMARY, real, summarize, type Summary } from './summary.js';
+import type { ExclusionReason, Fallback, GroupStats, MethodId, Population } from './types.js';
+
+/**
+ * Descriptive statistics computed on first read (engine internal).
+ *
+ * Scoring needs only a few statistics per group (robust: median and MAD; classic: mean and SD;
+ * IQR: the quartiles); the other descriptive fields of `GroupStats` (median, mad, scaledMad,
+ * meanAbsDev, mean, sd, q1, q3) are computed when first read, from a group-ordered copy of the
+ * column's usable values (original units) that the column keeps, then cached. They are own,
+ * enumerable accessor properties, so `JSON.stringify`, object spread, `Object.keys/values/entries`
+ * and `in` see them as ordinary fields; the values are exactly those `summarize` gives (the fields
+ * the method computed while scoring are returned as computed, and equal `summarize` to the last
+ * bit for order statistics, within rounding for sums).
+ *
+ * Cost of the first read of a group's field: O(n) expected for that group (one copy and the
+ * quickselects and passes of `summarize`); later reads O(1). Reading every field of every group
+ * costs what computing them all eagerly did.
+ */
+
+/** Fields of `Summary` a descriptive field is read from. */
+type SummaryField = 'median' | 'mad' | 'meanAbsDev' | 'mean' | 'sd' | 'q1' | 'q3';
+/** Descriptive fields of `GroupStats`, in declaration order. */
+export const DESCRIPTIVE_FIELDS = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
+type DescriptiveField = (typeof DESCRIPTIVE_FIELDS)[number];
+
+const BIT: Record<SummaryField, number> = { median: 1, mad: 2, meanAbsDev: 4, mean: 8, sd: 16, q1: 32, q3: 64 };
+/** Which fields each method's scoring summary (`summarizeFor`) holds, as bits of `BIT`. */
+export const SCORING_FIELDS: Readonly<Record<MethodId, number>> = {
+  robust: BIT.median | BIT.mad | BIT.meanAbsDev,
+  classic: BIT.mean | BIT.sd,
+  iqr: BIT.median | BIT.q1 | BIT.q3,
+};
+
+/**
+ * The retained values of one column: group g's usable values (original units) at
+ * `ordered[start[g] .. start[g] + count[g] - 1]`. Summaries are computed on a scratch copy, so
+ * `ordered` is never changed.
+ */
+export class DescriptiveStore {
+  private readonly cache: (Summary | undefined)[];
+  private wholeCache: Summary | undefined;
+  private scratch: Float64Array | null = null;
+  private dev: Float64Array | null = null;
+
+  constructor(
+    private readonly ordered: Float64Array,
+    private readonly start: Int32Array,
+    private readonly count: Int32Array,
+    /** Usable values in the whole column (sum of count). */
+    readonly total: number,
+  ) {
+    this.cache = new Array<Summary | undefined>(count.length);
+  }
+
+  /** Full summary of group g (cached). */
+  group(g: number): Summary {
+    const cached = this.cache[g];
+    if (cached !== undefined) return cached;
+    const n = this.count[g];
+    let s = EMPTY_SUMMARY;
+    if (n > 0) {
+      if (this.scratch === null || this.dev === null) {
+        let max = 0;
+        for (let i = 0; i < this.count.length; i++) if (this.count[i] > max) max = this.count[i];
+        this.scratch = new Float64Array(max);
+        this.dev = new Float64Array(max);
+      }
+      const from = this.start[g];
+      this.scratch.set(this.ordered.subarray(from, from + n));
+      s = summarize(this.scratch, n, this.dev);
+    }
+    this.cache[g] = s;
+    return s;
+  }
+
+  /** Full summary of the whole column (cached; uses two temporary arrays of `total` values). */
+  whole(): Summary {
+    if (this.wholeCache !== undefined) return this.wholeCache;
+    const n = this.total;
+    this.wholeCache = n === 0 ? EMPTY_SUMMARY : summarize(this.gather(), n, new Float64Array(n));
+    return this.wholeCache;
+  }
+
+  /** A fresh array of every usable value of the column, group by group (optionally mapped, e.g. Math.log). */
+  gather(map?: (x: number) => number): Float64Array {
+    const out = new Float64Array(this.total);
+    let k = 0;
+    for (let g = 0; g < this.count.length; g++) {
+      const from = this.start[g];
+      const n = this.count[g];
+      if (map === undefined) out.set(this.ordered.subarray(from, from + n), k);
+      else for (let i = 0; i < n; i++) out[k + i] = map(this.ordered[from + i]);
+      k += n;
+    }
+    return out;
+  }
+}
+
+/** Where a GroupStats object's descriptive fields come from. */
+interface LazyRef {
+  readonly store: DescriptiveStore;
+  /** Group index, or -1 for the whole column. */
+  readonly g: number;
+  readonly n: number;
+  /** The summary computed while scoring, in original units (null on log scale or when not computed). */
+  readonly scoring: Summary | null;
+  /** Which of its fields hold values (bits of `BIT`). */
+  readonly scoringBits: number;
+}
+
+const REFS = new WeakMap<object, LazyRef>();
+
+function refOf(o: object): LazyRef {
+  for (let t: object | null = o; t !== null; t = Object.getPrototypeOf(t) as object | null) {
+    const r = REFS.get(t);
+    if (r !== undefined) return r;
+  }
+  throw new Error('GroupStats field read on an object that is not a GroupStats.');
+}
+
+function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
+  const n = ref.n;
+  if (n === 0 || (f === 'sd' && n < 2)) return null;
+  const sf: SummaryField = f === 'scaledMad' ? 'mad' : f;
+  const s = ref.scoring !== null && (ref.scoringBits & BIT[sf]) !== 0 ? ref.scoring : ref.g < 0 ? ref.store.whole() : ref.store.group(ref.g);
+  const v = real(s[sf], s.unit);
+  if (f !== 'scaledMad' || v === null) return v;
+  const scaled = MAD_NORMAL_CONSTANT * v;
+  return Number.isFinite(scaled) ? scaled : null;
+}
+
+/** One shared descriptor per field; the getter finds its group through `REFS`. */
+const DESCRIPTORS: PropertyDescriptorMap = Object.fromEntries(
+  DESCRIPTIVE_FIELDS.map((f) => [f, { enumerable: true, configurable: true, get(this: object) { return fieldValue(refOf(this), f); } }]),
+);
+
+export interface StatsHead {
+  readonly key: string;
+  readonly label: string;
+  readonly keyParts: readonly string[];
+  readonly rows: number;
+  readonly n: number;
+  readonly excluded: Readonly<Record<ExclusionReason, number>>;
+}
+
+export interface StatsTail {
+  readonly center: number | null;
+  readonly scale: number | null;
+  readonly lower: number | null;
+  readonly upper: number | null;
+  readonly flagged: number;
+  readonly fallbacks: readonly Fallback[];
+  readonly population: Population;
+  readonly maxAttainableZ: number | null;
+}
+
+/**
+ * A GroupStats whose descriptive fields are lazy (see the top of this file), fields in the
+ * declaration order of `GroupStats`. `g` = group index in `store`, -1 = the whole column.
+ */
+export function lazyGroupStats(head: StatsHead, store: DescriptiveStore, g: number, scoring: Summary | null, scoringBits: number, tail: StatsTail): GroupStats {
+  const o: Record<string, unknown> = {
+    key: head.key, label: head.label, keyParts: head.keyParts, rows: head.rows, n: head.n, excluded: head.excluded,
+  };
+  Object.defineProperties(o, DESCRIPTORS);
+  REFS.set(o, { store, g, n: head.n, scoring, scoringBits });
+  o.center = tail.center;
+  o.scale = tail.scale;
+  o.lower = tail.lower;
+  o.upper = tail.upper;
+  o.flagged = tail.flagged;
+  o.fallbacks = tail.fallbacks;
+  o.population = tail.population;
+  o.maxAttainableZ = tail.maxAttainableZ;
+  return o as unknown as GroupStats;
+}

@@ -1,0 +1,95 @@
+import { medianInPlace } from './median.js';
+import { minOfRange, quickselect } from './quickselect.js';
+import { EMPTY_SUMMARY, type Summary, typeSevenWithin } from './summary.js';
+import type { MethodId } from './types.js';
+
+const BIG = 2 ** 500;
+const SMALL = 2 ** -500;
+
+/**
+ * The statistics one method needs to score a population, and no others (engine internal, the
+ * hot path of `scoreTable`); the fields a method does not need are NaN here and are computed on
+ * demand by `summarize` (see `lazyStats.ts`):
+ * - robust: median and MAD, and the mean absolute deviation around the median (its sum comes
+ *   free with the deviation pass the MAD needs; the method uses it only when MAD = 0);
+ * - classic: mean and sample SD (corrected two-pass, Chan, Golub & LeVeque 1983), no copy;
+ * - iqr: median, Q1 and Q3 (type 7, Hyndman & Fan 1996).
+ *
+ * Reads `src[from .. from+n-1]` (finite numbers) without changing it; `scratch` (length >= n) is
+ * overwritten. `scratch` may be `src` itself when `from` = 0 and the caller does not need `src`
+ * afterwards. Same units convention as `summarize` (a power-of-two `unit` for extreme magnitudes,
+ * so no digit changes). Every value equals what `summarize` gives for the same figure.
+ *
+ * Cost: O(n) expected. robust: one copy, two quickselects (median, then MAD on the deviations);
+ * classic: two passes; iqr: one copy, three quickselects within shrinking ranges.
+ * Degenerate input: n = 0 -> EMPTY_SUMMARY; all values equal -> every field exact (spread 0).
+ */
+export function summarizeFor(method: MethodId, src: Float64Array, from: number, n: number, scratch: Float64Array): Summary {
+  if (n === 0) return EMPTY_SUMMARY;
+  const to = from + n;
+  let min = src[from];
+  let max = min;
+  let sum = 0;
+  for (let i = from; i < to; i++) {
+    const v = src[i];
+    if (v < min) min = v;
+    else if (v > max) max = v;
+    sum += v;
+  }
+  if (min === max) {
+    return { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
+  }
+  let unit = 1;
+  const maxAbs = Math.max(Math.abs(min), Math.abs(max));
+  if (maxAbs > BIG || maxAbs < SMALL) {
+    unit = 2 ** Math.floor(Math.log2(maxAbs));
+    if (!Number.isFinite(unit) || unit === 0) unit = 1;
+  }
+  if (method === 'classic') {
+    let a = src;
+    let lo = from;
+    if (unit !== 1) {
+      sum = 0;
+      for (let i = 0; i < n; i++) sum += (scratch[i] = src[from + i] / unit);
+      a = scratch;
+      lo = 0;
+    }
+    const m0 = sum / n;
+    let ss = 0;
+    let c = 0;
+    const hi = lo + n;
+    for (let i = lo; i < hi; i++) {
+      const d = a[i] - m0;
+      ss += d * d;
+      c += d;
+    }
+    const mean = m0 + c / n;
+    const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
+    const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
+    return { n, unit, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN };
+  }
+  if (unit === 1) {
+    if (scratch !== src) scratch.set(src.subarray(from, to));
+  } else {
+    for (let i = 0; i < n; i++) scratch[i] = src[from + i] / unit;
+  }
+  const k = (n - 1) >> 1;
+  quickselect(scratch, k, 0, n - 1);
+  const xk = scratch[k];
+  const median = n % 2 === 1 ? xk : xk + (minOfRange(scratch, k + 1, n - 1) - xk) / 2;
+  if (method === 'iqr') {
+    const q1 = typeSevenWithin(scratch, n, 0.25, 0, k);
+    const q3 = typeSevenWithin(scratch, n, 0.75, k, n - 1);
+    return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1, q3 };
+  }
+  // robust: deviations from the median (read from the scratch, which holds the same values,
+  // permuted and scaled), then their median.
+  let sad = 0;
+  for (let i = 0; i < n; i++) {
+    const d = Math.abs(scratch[i] - median);
+    scratch[i] = d;
+    sad += d;
+  }
+  const mad = medianInPlace(scratch, n);
+  return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1: NaN, q3: NaN };
+}
