@@ -126,6 +126,6 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   console.log(`Tailmark is served from ${dir}`);
   console.log(`  Preview (offline, not Excel): ${url}/preview.html`);
   console.log(`  Task pane page:               ${url}/taskpane.html`);
-  if (!tls) console.log('  For Excel, serve over HTTPS: npm run serve:https (see README, "Sideloading").');
+  if (!tls) console.log('  For Excel, serve over HTTPS: npm run serve:https (see scripts/README.md).');
   console.log('Press Ctrl+C to stop.');
 }

@@ -27,6 +27,8 @@ export interface ScoreArgs {
   readonly out: string | undefined;
   readonly force: boolean;
   readonly json: boolean;
+  /** Force large-file mode (read and write row by row) whatever the size. */
+  readonly stream: boolean;
 }
 
 export interface DemoArgs {
@@ -89,7 +91,7 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     {
       value: 'list', group: 'list', id: 'value', method: 'value', cutoff: 'value', direction: 'value',
       'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', sheet: 'value',
-      out: 'value', force: 'flag', json: 'flag',
+      out: 'value', force: 'flag', json: 'flag', stream: 'flag',
     },
     'score',
   );
@@ -130,6 +132,7 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     out: one('out'),
     force: opts.has('force'),
     json: opts.has('json'),
+    stream: opts.has('stream'),
   };
 }
 
@@ -162,6 +165,9 @@ score options:
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)
   --json                  print results as JSON on stdout; writes a workbook only when --out is given
+  --stream                large-file mode whatever the size: read and write row by row (used on its own
+                          for CSV input and for sheets above 50,000 rows, or TAILMARK_STREAM_ROWS);
+                          keeps values, formulas, formats and rules; the notes sheet lists anything left out
 
 demo writes an invented claims workbook and its scored copy (default out/demo-claims.xlsx and
 out/demo-claims-scored.xlsx).

@@ -12,12 +12,25 @@ import { EXCLUSION_LABELS, EXCLUSION_REASONS, POPULATIONS, type RawCell, type Sc
 import { buildPlan } from '../report/plan.js';
 import { CAUTION } from '../report/style.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
-import { InputFileError, readTable, type ReadTable } from '../files/read.js';
+import { fileKind, InputFileError, readTable, type ReadTable } from '../files/read.js';
+import { readTableStreaming } from '../files/stream-read.js';
+import { writeScoredWorkbookStreaming } from '../files/stream-write.js';
 import { OutputFileError, writeScoredWorkbook } from '../files/write.js';
+import { checkOutPath } from '../files/layout.js';
 import { writeDemoWorkbook } from '../files/demo.js';
 import { HELP, parseDemoArgs, parseScoreArgs, UsageError, type ScoreArgs } from './args.js';
 
 const LARGE_ROWS = 50_000;
+/** Sheets with more data rows than this are written row by row (large-file mode). */
+export const DEFAULT_STREAM_ROWS = 50_000;
+
+/** The large-file threshold: TAILMARK_STREAM_ROWS when set (a whole number >= 0), else the default. */
+export function streamThreshold(env: NodeJS.ProcessEnv = process.env): number {
+  const raw = env.TAILMARK_STREAM_ROWS;
+  if (raw === undefined || raw.trim() === '') return DEFAULT_STREAM_ROWS;
+  if (!/^\d+$/.test(raw.trim())) throw new UsageError(`TAILMARK_STREAM_ROWS must be a whole number of rows; got "${raw}"`);
+  return Number(raw.trim());
+}
 
 interface Io {
   out: (s: string) => void;
@@ -32,18 +45,34 @@ const defaultIo = (): Io => ({
 });
 
 /** Find a header by exact name, then ignoring case and surrounding spaces. */
-function findHeader(table: ReadTable, name: string, what: string): number {
-  let i = table.headers.indexOf(name);
+function findHeader(headers: readonly string[], where: string, name: string, what: string): number {
+  let i = headers.indexOf(name);
   if (i < 0) {
     const want = name.trim().toLowerCase();
-    i = table.headers.findIndex((h) => h.trim().toLowerCase() === want);
+    i = headers.findIndex((h) => h.trim().toLowerCase() === want);
   }
   if (i < 0) {
-    throw new UsageError(
-      `${what} column "${name}" not found in ${table.source}; headers are: ${table.headers.map((h) => `"${h}"`).join(', ')}`,
-    );
+    throw new UsageError(`${what} column "${name}" not found in ${where}; headers are: ${headers.map((h) => `"${h}"`).join(', ')}`);
   }
   return i;
+}
+
+interface Columns {
+  valueIdx: number[];
+  groupIdx: number[];
+  idIndex: number | null;
+}
+
+/** Resolve the --value / --group / --id headers to column indices, with the checks on them. */
+function resolveColumns(args: ScoreArgs, headers: readonly string[], where: string): Columns {
+  const valueIdx = args.values.map((v) => findHeader(headers, where, v, 'value'));
+  const groupIdx = args.groups.map((g) => findHeader(headers, where, g, 'group'));
+  const idIndex = args.id !== null ? findHeader(headers, where, args.id, 'id') : null;
+  for (const v of valueIdx) {
+    if (groupIdx.includes(v)) throw new UsageError(`"${headers[v]}" is given both as --value and as --group`);
+  }
+  if (new Set(valueIdx).size !== valueIdx.length) throw new UsageError('the same --value column is given twice');
+  return { valueIdx, groupIdx, idIndex };
 }
 
 function defaultOut(input: string): string {
@@ -103,23 +132,35 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     if (io.progress) io.err(`\r${msg}\x1b[K`);
   };
   let big = false;
+  let found = false;
   try {
     big = (await stat(args.input)).size > 5_000_000;
+    found = true;
   } catch {
-    /* readTable reports a missing file */
+    /* the reader reports a missing file */
   }
+  const threshold = streamThreshold();
+  const wantWorkbook = !args.json || args.out !== undefined;
+  // A bad --out is reported before a long read, not after it.
+  if (wantWorkbook && found && fileKind(args.input) !== null) await checkOutPath(args.input, args.out ?? outDefault ?? defaultOut(args.input), args.force);
   if (big) progress(`reading ${basename(args.input)}…`);
-  const table = await readTable(args.input, args.sheet !== undefined ? { sheet: args.sheet } : {});
-  if (table.rowCount === 0) throw new InputFileError(`${table.source} has a header row but no data rows`);
+  // First pass, row by row: only the columns this run needs are kept, so any size fits in memory.
+  let cols: Columns | null = null;
+  const where = args.sheet !== undefined ? `${basename(args.input)}, sheet ${args.sheet}` : basename(args.input);
+  const streamedTable = await readTableStreaming(args.input, {
+    ...(args.sheet !== undefined ? { sheet: args.sheet } : {}),
+    keep: (headers) => {
+      cols = resolveColumns(args, headers, where);
+      return [...cols.valueIdx, ...cols.groupIdx, ...(cols.idIndex !== null ? [cols.idIndex] : [])];
+    },
+  });
+  if (streamedTable.rowCount === 0) throw new InputFileError(`${streamedTable.source} has a header row but no data rows`);
+  const { valueIdx, groupIdx, idIndex } = cols ?? resolveColumns(args, streamedTable.headers, streamedTable.source);
+  const streaming = args.stream || fileKind(args.input) === 'csv' || streamedTable.rowCount > threshold;
+  // Below the threshold an .xlsx is written from the whole workbook in memory, which keeps everything
+  // in it (hyperlinks, comments, pictures...); the table is read that way too, as before.
+  const table: ReadTable = !streaming && wantWorkbook ? await readTable(args.input, { sheet: streamedTable.sheetName }) : streamedTable;
   const large = table.rowCount >= LARGE_ROWS;
-
-  const valueIdx = args.values.map((v) => findHeader(table, v, 'value'));
-  const groupIdx = args.groups.map((g) => findHeader(table, g, 'group'));
-  const idIndex = args.id !== null ? findHeader(table, args.id, 'id') : null;
-  for (const v of valueIdx) {
-    if (groupIdx.includes(v)) throw new UsageError(`"${table.headers[v]}" is given both as --value and as --group`);
-  }
-  if (new Set(valueIdx).size !== valueIdx.length) throw new UsageError('the same --value column is given twice');
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
   let result: ScoreResult;
@@ -152,8 +193,8 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     }
   }
 
-  const wantWorkbook = !args.json || args.out !== undefined;
   let outPath: string | null = null;
+  let notCarried: readonly string[] | null = null;
   if (wantWorkbook) {
     outPath = args.out ?? outDefault ?? defaultOut(args.input);
     const plan = buildPlan(result, {
@@ -163,18 +204,26 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       idColumn: idIndex !== null ? table.headers[idIndex] : null,
     });
     if (large) progress('writing…');
-    await writeScoredWorkbook(args.input, table, plan, outPath, {
-      force: args.force,
-      workbook: table.workbook,
-      onProgress: large ? (phase, f) => progress(`${phase} ${Math.round(f * 100)}%`) : undefined,
-    });
+    const onProgress = large ? (phase: string, f: number) => progress(`${phase} ${Math.round(f * 100)}%`) : undefined;
+    if (streaming) {
+      const summary = await writeScoredWorkbookStreaming(args.input, table, plan, outPath, { force: args.force, onProgress });
+      notCarried = summary.notCarried;
+    } else {
+      await writeScoredWorkbook(args.input, table, plan, outPath, { force: args.force, workbook: table.workbook, onProgress });
+    }
     if (large) progress('');
     if (io.progress && large) io.err('\n');
   }
 
+  const modeLine =
+    notCarried === null
+      ? ''
+      : `Large-file mode (written row by row). ${
+          notCarried.length ? `Not carried over from the input: ${notCarried.join('; ')}.` : 'Nothing in the input was left out.'
+        }\n`;
   if (args.json) {
     io.out(`${JSON.stringify(toJson(result, table, idIndex), null, 2)}\n`);
-    if (outPath) io.err(`wrote ${outPath}\n`);
+    if (outPath) io.err(`wrote ${outPath}\n${modeLine}`);
   } else {
     const flagged = new Set<number>();
     for (const col of result.columns) for (let r = 0; r < result.rowCount; r++) if (col.flagged[r]) flagged.add(r);
@@ -183,7 +232,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
-        `Wrote ${outPath}\n${CAUTION}\n`,
+        `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
   return { outPath, result };
@@ -223,6 +272,7 @@ async function runDemo(argv: readonly string[], io: Io): Promise<number> {
       out: scoredPath,
       force: true,
       json: false,
+      stream: false,
     },
     { ...io, out: () => {} },
   );

@@ -114,6 +114,10 @@ export interface SheetTail {
   /** Data validations by range (as written in the file, not expanded to cells). */
   readonly dataValidations: readonly { readonly ranges: readonly string[]; readonly validation: ExcelJS.DataValidation }[];
   readonly autoFilter?: string;
+  /** Page setup and margins (ExcelJS PageSetup fields), when the sheet has them. */
+  readonly pageSetup?: Partial<ExcelJS.PageSetup>;
+  /** Print headers and footers (ExcelJS HeaderFooter fields), when the sheet has them. */
+  readonly headerFooter?: Partial<ExcelJS.HeaderFooter>;
   /** Parts of the sheet this reader does not carry over, with how many were found. */
   readonly notCarried: ReadonlyMap<string, number>;
 }
@@ -133,8 +137,7 @@ const NOT_CARRIED: Record<string, string> = {
   tablePart: 'Excel tables (the cells are kept, the table object is not)',
   extLst: 'extended rules (newer conditional-format or validation features stored as extensions)',
   sheetProtection: 'sheet protection',
-  pageSetup: 'page setup and print settings',
-  headerFooter: 'print headers and footers',
+  printOptions: 'print options (gridlines, headings, centring on the page)',
   rowBreaks: 'page breaks',
   colBreaks: 'page breaks',
   picture: 'sheet background picture',
@@ -185,6 +188,11 @@ export class XlsxStream {
   /** Sheet names in workbook order (known once the first sheet has been reached). */
   get sheetNames(): string[] {
     return (this.reader.model?.sheets ?? []).map((s) => s.name);
+  }
+
+  /** Number of defined names (named ranges) in the workbook. */
+  get definedNameCount(): number {
+    return (this.reader.model?.definedNames ?? []).length;
   }
 
   get date1904(): boolean {
@@ -249,6 +257,10 @@ export class XlsxStream {
     const dataValidations: { ranges: string[]; validation: ExcelJS.DataValidation }[] = [];
     let autoFilter: string | undefined;
     let extDepth = 0;
+    let pageSetup: Record<string, unknown> | undefined;
+    let headerFooter: Record<string, unknown> | undefined;
+    let hfPart: string | null = null;
+    const num = (v: string | undefined): number | undefined => (v === undefined || v === '' || !Number.isFinite(Number(v)) ? undefined : Number(v));
 
     // Shared formulas: si -> master formula and address.
     const shared = new Map<string, { formula: string; address: string }>();
@@ -432,6 +444,46 @@ export class XlsxStream {
         case 'autoFilter':
           if (a.ref) autoFilter = a.ref;
           return;
+        case 'pageSetUpPr':
+          if (a.fitToPage === '1' || a.fitToPage === 'true') (pageSetup ??= {}).fitToPage = true;
+          return;
+        case 'pageMargins': {
+          const m: Record<string, number> = {};
+          for (const k of ['left', 'right', 'top', 'bottom', 'header', 'footer']) {
+            const v = num(a[k]);
+            if (v !== undefined) m[k] = v;
+          }
+          (pageSetup ??= {}).margins = m;
+          return;
+        }
+        case 'pageSetup': {
+          const ps = (pageSetup ??= {});
+          if (a.orientation === 'landscape' || a.orientation === 'portrait') ps.orientation = a.orientation;
+          for (const k of ['paperSize', 'scale', 'fitToWidth', 'fitToHeight', 'horizontalDpi', 'verticalDpi', 'firstPageNumber']) {
+            const v = num(a[k]);
+            if (v !== undefined) ps[k] = v;
+          }
+          if (a.pageOrder === 'overThenDown' || a.pageOrder === 'downThenOver') ps.pageOrder = a.pageOrder;
+          if (a.blackAndWhite === '1') ps.blackAndWhite = true;
+          if (a.draft === '1') ps.draft = true;
+          return;
+        }
+        case 'headerFooter':
+          headerFooter = {};
+          if (a.differentFirst === '1') headerFooter.differentFirst = true;
+          if (a.differentOddEven === '1') headerFooter.differentOddEven = true;
+          return;
+        case 'oddHeader':
+        case 'oddFooter':
+        case 'evenHeader':
+        case 'evenFooter':
+        case 'firstHeader':
+        case 'firstFooter':
+          if (headerFooter) {
+            hfPart = node.name;
+            headerFooter[hfPart] = '';
+          }
+          return;
         case 'extLst':
           extDepth = 1;
           notCarried.set('extLst', (notCarried.get('extLst') ?? 0) + 1);
@@ -449,6 +501,10 @@ export class XlsxStream {
       }
       if (inDv) {
         dvXform.parseText(text);
+        return;
+      }
+      if (hfPart !== null && headerFooter) {
+        headerFooter[hfPart] += text;
         return;
       }
       if (textTarget === 'v') vText += text;
@@ -502,6 +558,14 @@ export class XlsxStream {
         case 'sheetData':
           inData = false;
           return true;
+        case 'oddHeader':
+        case 'oddFooter':
+        case 'evenHeader':
+        case 'evenFooter':
+        case 'firstHeader':
+        case 'firstFooter':
+          hfPart = null;
+          return true;
         default:
           return true;
       }
@@ -521,7 +585,15 @@ export class XlsxStream {
     sendHead();
     const cfs = cfXform.model as ExcelJS.ConditionalFormattingOptions[];
     cfXform.reconcile?.(cfs, { styles });
-    return { merges, conditionalFormattings: cfs, dataValidations, autoFilter, notCarried };
+    return {
+      merges,
+      conditionalFormattings: cfs,
+      dataValidations,
+      autoFilter,
+      notCarried,
+      ...(pageSetup ? { pageSetup: pageSetup as Partial<ExcelJS.PageSetup> } : {}),
+      ...(headerFooter ? { headerFooter: headerFooter as Partial<ExcelJS.HeaderFooter> } : {}),
+    };
   }
 }
 

@@ -49,7 +49,8 @@ const useStyles = makeStyles({
     cursor: 'default',
   },
   selected: { outline: `${tokens.strokeWidthThick} solid ${tokens.colorBrandStroke1}`, outlineOffset: '-2px' },
-  inArea: { boxShadow: `inset 0 0 0 999px ${tokens.colorBrandBackground2}` },
+  // A selected block is framed top and bottom (not filled), so highlight colours stay readable.
+  inArea: { boxShadow: `inset 0 2px 0 ${tokens.colorBrandStroke1}, inset 0 -2px 0 ${tokens.colorBrandStroke1}` },
   select: {
     width: '100%',
     height: `${ROW_HEIGHT - 4}px`,

@@ -40,7 +40,7 @@ export function toSandboxRows(headers: readonly string[], rows: readonly (readon
 export function demoSandbox(): SandboxWorkbook {
   const demo = demoClaims();
   const sb = sandboxFromRows(DEMO_SHEET, toSandboxRows(demo.headers, demo.rows));
-  const widths: Record<string, number> = { A: 70, B: 120, C: 70, D: 100, E: 80, F: 70, G: 130 };
+  const widths: Record<string, number> = { A: 62, B: 92, C: 52, D: 64, E: 62, F: 56, G: 104 };
   for (const [col, w] of Object.entries(widths)) sb.setColumnWidth(DEMO_SHEET, col, w);
   sb.setSelection(DEMO_SHEET, 'A1');
   return sb;

@@ -110,14 +110,13 @@ interface LazyRef {
   readonly scoringBits: number;
 }
 
-const REFS = new WeakMap<object, LazyRef>();
+/** Non-enumerable own property holding an object's LazyRef (invisible to JSON, spread and Object.keys). */
+const REF: unique symbol = Symbol('GroupStats source');
 
 function refOf(o: object): LazyRef {
-  for (let t: object | null = o; t !== null; t = Object.getPrototypeOf(t) as object | null) {
-    const r = REFS.get(t);
-    if (r !== undefined) return r;
-  }
-  throw new Error('GroupStats field read on an object that is not a GroupStats.');
+  const r = (o as { [REF]?: LazyRef })[REF];
+  if (r === undefined) throw new Error('GroupStats field read on an object that is not a GroupStats.');
+  return r;
 }
 
 function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
@@ -131,10 +130,13 @@ function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
   return Number.isFinite(scaled) ? scaled : null;
 }
 
-/** One shared descriptor per field; the getter finds its group through `REFS`. */
-const DESCRIPTORS: PropertyDescriptorMap = Object.fromEntries(
-  DESCRIPTIVE_FIELDS.map((f) => [f, { enumerable: true, configurable: true, get(this: object) { return fieldValue(refOf(this), f); } }]),
-);
+/** The source slot plus one shared accessor per descriptive field (the getter finds its group through `REF`). */
+const DESCRIPTORS: PropertyDescriptorMap = {
+  [REF]: { value: undefined, writable: true, enumerable: false, configurable: false },
+  ...Object.fromEntries(
+    DESCRIPTIVE_FIELDS.map((f) => [f, { enumerable: true, configurable: true, get(this: object) { return fieldValue(refOf(this), f); } }]),
+  ),
+};
 
 export interface StatsHead {
   readonly key: string;
@@ -161,11 +163,11 @@ export interface StatsTail {
  * declaration order of `GroupStats`. `g` = group index in `store`, -1 = the whole column.
  */
 export function lazyGroupStats(head: StatsHead, store: DescriptiveStore, g: number, scoring: Summary | null, scoringBits: number, tail: StatsTail): GroupStats {
-  const o: Record<string, unknown> = {
+  const o: Record<string | symbol, unknown> = {
     key: head.key, label: head.label, keyParts: head.keyParts, rows: head.rows, n: head.n, excluded: head.excluded,
   };
   Object.defineProperties(o, DESCRIPTORS);
-  REFS.set(o, { store, g, n: head.n, scoring, scoringBits });
+  o[REF] = { store, g, n: head.n, scoring, scoringBits };
   o.center = tail.center;
   o.scale = tail.scale;
   o.lower = tail.lower;

@@ -3,7 +3,7 @@ import { getMethod } from './methods/index.js';
 import type { Fit, ScoringMethod } from './methods/method.js';
 import { NO_FIT } from './methods/method.js';
 import { groupRows, type Grouping } from './groups.js';
-import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS } from './lazyStats.js';
+import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
 import { summarizeFor } from './summarizeFor.js';
 import { real, type Summary } from './summary.js';
@@ -131,10 +131,22 @@ interface Shared {
   readonly logOrdered: Float64Array | null;
 }
 
+const R = (reason: ExclusionReason): number => EXCLUSION_REASONS.indexOf(reason);
+const [R_BLANK, R_ERROR, R_BOOLEAN, R_DATE, R_TEXT, R_NON_FINITE, R_LOG] = [
+  R('blank'), R('error'), R('boolean'), R('date'), R('text'), R('non-finite'), R('not-positive-for-log'),
+];
+
+/** Exclusion counts by reason (one object literal: built once per group, so kept cheap). */
 function reasonCounts(counts: Int32Array, offset: number): Record<ExclusionReason, number> {
-  const out = {} as Record<ExclusionReason, number>;
-  for (let i = 0; i < NREASONS; i++) out[EXCLUSION_REASONS[i]] = counts[offset + i];
-  return out;
+  return {
+    blank: counts[offset + R_BLANK],
+    error: counts[offset + R_ERROR],
+    boolean: counts[offset + R_BOOLEAN],
+    date: counts[offset + R_DATE],
+    text: counts[offset + R_TEXT],
+    'non-finite': counts[offset + R_NON_FINITE],
+    'not-positive-for-log': counts[offset + R_LOG],
+  };
 }
 
 const KIND_NONE = 0;
@@ -174,24 +186,7 @@ function scoreColumn(
   const yOrdered = shared.logOrdered ?? ordered;
   const cursor = start.slice(0, nGroups);
   const gCounts = new Int32Array(nGroups * NREASONS);
-  if (logScale) {
-    for (let r = 0; r < rowCount; r++) {
-      const g = groupOf[r];
-      const e = exclusion[r];
-      if (e === 0) {
-        const at = cursor[g]++;
-        ordered[at] = values[r];
-        yOrdered[at] = y[r];
-      } else gCounts[g * NREASONS + e - 1]++;
-    }
-  } else {
-    for (let r = 0; r < rowCount; r++) {
-      const g = groupOf[r];
-      const e = exclusion[r];
-      if (e === 0) ordered[cursor[g]++] = values[r];
-      else gCounts[g * NREASONS + e - 1]++;
-    }
-  }
+  scatter(groupOf, exclusion, values, y, ordered, yOrdered, cursor, gCounts);
   const count = new Int32Array(nGroups);
   const colCounts = new Int32Array(NREASONS);
   let nAll = 0;
@@ -223,51 +218,10 @@ function scoreColumn(
     colFit = { s, fit: method.fit(s, opts.cutoff, opts.direction, () => s) };
     return colFit;
   };
-  const columnSummary = (): Summary => column().s;
 
   // 3. Fit each group on what its method needs.
-  const fits: Fit[] = new Array(nGroups);
-  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
-  const kind = new Uint8Array(nGroups);
-  const popOf = new Uint8Array(nGroups);
-  const fUnit = new Float64Array(nGroups);
-  const fCenter = new Float64Array(nGroups);
-  const fScale = new Float64Array(nGroups);
-  const fQ1 = new Float64Array(nGroups);
-  const fQ3 = new Float64Array(nGroups);
-  const scratch = shared.scratch;
-  for (let g = 0; g < nGroups; g++) {
-    const n = count[g];
-    let fit: Fit;
-    let popCode: number;
-    let fallbacks: Fallback[];
-    let s: Summary | null = null;
-    if (n >= opts.minGroupSize) {
-      s = summarizeFor(method.id, yOrdered, start[g], n, scratch);
-      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
-      popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
-      fallbacks = dedupe(fit.fallbacks);
-    } else if (opts.smallGroups === 'pool' && n > 0) {
-      fit = column().fit;
-      popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;
-      fallbacks = dedupe(['small-pooled', ...fit.fallbacks]);
-    } else {
-      fit = NO_FIT;
-      popCode = POP_NONE;
-      fallbacks = n > 0 ? [opts.smallGroups === 'pool' ? 'small-pooled' : 'small-skipped'] : [];
-    }
-    fits[g] = fit;
-    scoringSummaries[g] = logScale ? null : s;
-    groupFallbacks[g] = fallbacks;
-    popOf[g] = popCode;
-    kind[g] = fit.kind === 'z' ? KIND_Z : fit.kind === 'fence' ? KIND_FENCE : KIND_NONE;
-    fUnit[g] = fit.unit;
-    fCenter[g] = fit.center;
-    fScale[g] = fit.scale;
-    fQ1[g] = fit.q1;
-    fQ3[g] = fit.q3;
-  }
+  const { fits, scoringSummaries, groupFallbacks, flat } = fitGroups(method, opts, yOrdered, start, count, shared.scratch, column);
+  const popOf = flat.popOf;
   scoring = false;
 
   // 4. Score every row in row order.
@@ -277,25 +231,18 @@ function scoreColumn(
   const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
   const flaggedPerGroup = new Int32Array(nGroups);
   const scoredRows = scoreRows(
-    { kind, popOf, unit: fUnit, center: fCenter, scale: fScale, q1: fQ1, q3: fQ3 }, groupOf, opts.cutoff, opts.direction,
+    flat, groupOf, opts.cutoff, opts.direction,
     exclusion, y, scores, flagged, population, reach, flaggedPerGroup,
   );
 
   // 5. Per-group results (descriptive fields lazy).
+  const bits = SCORING_FIELDS[method.id];
+  const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, groupFallbacks, popOf);
   let flaggedRows = 0;
   let pooledFlagged = 0;
-  const groups: GroupStats[] = new Array(nGroups);
-  const bits = SCORING_FIELDS[method.id];
   for (let g = 0; g < nGroups; g++) {
-    const f = flaggedPerGroup[g];
-    flaggedRows += f;
-    if (popOf[g] === POP_COLUMN) pooledFlagged += f;
-    const n = count[g];
-    groups[g] = lazyGroupStats(
-      { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
-      store, g, scoringSummaries[g], bits,
-      { ...fitFields(fits[g], logScale), flagged: f, fallbacks: groupFallbacks[g], population: POP_NAMES[popOf[g]], maxAttainableZ: n >= 2 ? maxAttainableZ(n) : null },
-    );
+    flaggedRows += flaggedPerGroup[g];
+    if (popOf[g] === POP_COLUMN) pooledFlagged += flaggedPerGroup[g];
   }
 
   // The whole column as one population, built on first read (its fit is computed then if scoring
@@ -307,10 +254,7 @@ function scoreColumn(
     pooled = lazyGroupStats(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
       store, -1, logScale ? null : whole.s, bits,
-      {
-        ...fitFields(whole.fit, logScale), flagged: pooledFlagged, fallbacks: dedupe(whole.fit.fallbacks),
-        population: whole.fit.kind === 'none' ? 'none' : 'column', maxAttainableZ: nAll >= 2 ? maxAttainableZ(nAll) : null,
-      },
+      statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll),
     );
     return pooled;
   };
@@ -337,14 +281,120 @@ function scoreColumn(
   return col as unknown as ColumnScores;
 }
 
-/** centre, scale and bounds of a fit in real (and, for bounds, original) units. */
-function fitFields(fit: Fit, logScale: boolean): { center: number | null; scale: number | null; lower: number | null; upper: number | null } {
+/**
+ * Fits every group on the statistics its method needs (`summarizeFor` on the group's slice of
+ * `yOrdered`, with one reused scratch); small groups take the whole column's fit ('pool') or none
+ * ('skip'). Returns the fits, flattened to typed arrays for the row pass as well.
+ */
+function fitGroups(
+  method: ScoringMethod, opts: Required<ScoreOptions>, yOrdered: Float64Array, start: Int32Array, count: Int32Array,
+  scratch: Float64Array, column: () => { s: Summary; fit: Fit },
+): { fits: Fit[]; scoringSummaries: (Summary | null)[]; groupFallbacks: Fallback[][]; flat: FlatFits } {
+  const nGroups = count.length;
+  const fits: Fit[] = new Array(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
+  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const flat: FlatFits = {
+    kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups), unit: new Float64Array(nGroups), center: new Float64Array(nGroups),
+    scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
+  };
+  const columnSummary = (): Summary => column().s;
+  for (let g = 0; g < nGroups; g++) {
+    const n = count[g];
+    let fit: Fit;
+    let popCode: number;
+    let fallbacks: Fallback[];
+    let s: Summary | null = null;
+    if (n >= opts.minGroupSize) {
+      s = summarizeFor(method.id, yOrdered, start[g], n, scratch);
+      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
+      popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
+      fallbacks = dedupe(fit.fallbacks);
+    } else if (opts.smallGroups === 'pool' && n > 0) {
+      fit = column().fit;
+      popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;
+      fallbacks = dedupe(['small-pooled', ...fit.fallbacks]);
+    } else {
+      fit = NO_FIT;
+      popCode = POP_NONE;
+      fallbacks = n > 0 ? [opts.smallGroups === 'pool' ? 'small-pooled' : 'small-skipped'] : [];
+    }
+    fits[g] = fit;
+    scoringSummaries[g] = opts.logScale ? null : s;
+    groupFallbacks[g] = fallbacks;
+    flat.popOf[g] = popCode;
+    flat.kind[g] = fit.kind === 'z' ? KIND_Z : fit.kind === 'fence' ? KIND_FENCE : KIND_NONE;
+    flat.unit[g] = fit.unit;
+    flat.center[g] = fit.center;
+    flat.scale[g] = fit.scale;
+    flat.q1[g] = fit.q1;
+    flat.q3[g] = fit.q3;
+  }
+  return { fits, scoringSummaries, groupFallbacks, flat };
+}
+
+/** One GroupStats per group, descriptive fields lazy (see lazyStats.ts). */
+function buildGroups(
+  grouping: Grouping, count: Int32Array, gCounts: Int32Array, store: DescriptiveStore, scoringSummaries: readonly (Summary | null)[],
+  bits: number, fits: readonly Fit[], logScale: boolean, flaggedPerGroup: Int32Array, groupFallbacks: readonly Fallback[][], popOf: Uint8Array,
+): GroupStats[] {
+  const nGroups = count.length;
+  const { start } = grouping;
+  const groups: GroupStats[] = new Array(nGroups);
+  for (let g = 0; g < nGroups; g++) {
+    const n = count[g];
+    groups[g] = lazyGroupStats(
+      { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
+      store, g, scoringSummaries[g], bits,
+      statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n),
+    );
+  }
+  return groups;
+}
+
+/**
+ * Counting-sort scatter: usable value of row r goes to `ordered[cursor[g]++]` (and its scoring
+ * value to `yOrdered`, when that is a separate array, i.e. on log scale); excluded rows are counted
+ * per group and reason in `gCounts`. One sequential pass. Kept a function of its own so that the
+ * JIT optimizes it as a whole.
+ */
+function scatter(
+  groupOf: Int32Array, exclusion: Uint8Array, values: Float64Array, y: Float64Array,
+  ordered: Float64Array, yOrdered: Float64Array, cursor: Int32Array, gCounts: Int32Array,
+): void {
+  const n = values.length;
+  if (yOrdered !== ordered) {
+    for (let r = 0; r < n; r++) {
+      const g = groupOf[r];
+      const e = exclusion[r];
+      if (e === 0) {
+        const at = cursor[g]++;
+        ordered[at] = values[r];
+        yOrdered[at] = y[r];
+      } else gCounts[g * NREASONS + e - 1]++;
+    }
+  } else {
+    for (let r = 0; r < n; r++) {
+      const g = groupOf[r];
+      const e = exclusion[r];
+      if (e === 0) ordered[cursor[g]++] = values[r];
+      else gCounts[g * NREASONS + e - 1]++;
+    }
+  }
+}
+
+/** The fit-derived fields of a GroupStats: centre, scale and bounds in real (bounds: original) units, and the rest. */
+function statsTail(fit: Fit, logScale: boolean, flagged: number, fallbacks: readonly Fallback[], population: Population, n: number): StatsTail {
   const scored = fit.kind !== 'none';
   return {
     center: scored ? real(fit.center, fit.unit) : null,
     scale: scored && fit.scale > 0 ? real(fit.scale, fit.unit) : null,
     lower: scored ? bound(fit.lower, fit.unit, logScale) : null,
     upper: scored ? bound(fit.upper, fit.unit, logScale) : null,
+    flagged,
+    fallbacks,
+    population,
+    maxAttainableZ: n >= 2 ? maxAttainableZ(n) : null,
   };
 }
 
@@ -407,14 +457,18 @@ interface FlatFits {
   readonly q3: Float64Array;
 }
 
-/** Scores every usable row against its group's fit, in row order; returns how many were scored. */
+/**
+ * Scores every usable row against its group's fit, in row order; returns how many were scored.
+ * The flag test is branch-free (comparison results combined as 0/1 integers and written for
+ * every row), since a flag depends on the data and would otherwise be a mispredicted branch.
+ */
 function scoreRows(
   fits: FlatFits, groupOf: Int32Array, cutoff: number, direction: Direction,
   exclusion: Uint8Array, y: Float64Array, scores: Float64Array, flagged: Uint8Array, population: Uint8Array,
   reach: Float64Array | undefined, flaggedPerGroup: Int32Array,
 ): number {
-  const hi = direction !== 'low';
-  const lo = direction !== 'high';
+  const hi = direction !== 'low' ? 1 : 0;
+  const lo = direction !== 'high' ? 1 : 0;
   const { kind, popOf, unit, center, scale, q1, q3 } = fits;
   const n = y.length;
   let count = 0;
@@ -438,10 +492,9 @@ function scoreRows(
       if (z > MAX) z = MAX;
       else if (z < -MAX) z = -MAX;
       scores[r] = z;
-      if ((hi && z > cutoff) || (lo && z < -cutoff)) {
-        flagged[r] = 1;
-        flaggedPerGroup[g]++;
-      }
+      const f = (hi & +(z > cutoff)) | (lo & +(z < -cutoff));
+      flagged[r] = f;
+      flaggedPerGroup[g] += f;
     } else {
       let tHigh = (v - q3[g]) / sc;
       if (tHigh > MAX) tHigh = MAX;
@@ -453,12 +506,11 @@ function scoreRows(
       if (tHigh > cutoff) score = tHigh - cutoff;
       else if (tLow > cutoff) score = -(tLow - cutoff);
       scores[r] = score;
-      const t = hi && lo ? Math.max(tHigh, tLow) : hi ? tHigh : tLow;
+      const t = hi === 1 && lo === 1 ? Math.max(tHigh, tLow) : hi === 1 ? tHigh : tLow;
       if (reach !== undefined) reach[r] = t;
-      if (t > cutoff) {
-        flagged[r] = 1;
-        flaggedPerGroup[g]++;
-      }
+      const f = +(t > cutoff);
+      flagged[r] = f;
+      flaggedPerGroup[g] += f;
     }
   }
   return count;

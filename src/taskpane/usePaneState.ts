@@ -2,7 +2,7 @@
  * The one hook that owns the task pane's state. It talks to the workbook only through the
  * injected `WorkbookLayer`; components receive `PaneModel` and only render it.
  */
-import { useCallback, useEffect, useMemo, useReducer, useRef } from 'react';
+import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef } from 'react';
 import type { RunSettings, WorkbookLayer } from '../workbook/api.js';
 import {
   budgetCutoff,
@@ -147,7 +147,8 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     };
   }, [key, layer]);
 
-  const settings = state.settings;
+  // Scoring follows the settings a moment later on big tables, so typing and sliding stay responsive.
+  const settings = useDeferredValue(state.settings);
   const data = state.preview && state.preview.key === key ? state.preview.data : null;
 
   const scored = useMemo(() => {

@@ -80,6 +80,13 @@ describe('preview page with the real task pane', () => {
     await page.getByTestId('cutoff').fill('3');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3)));
     expect(expectedFlags(3)).toBeGreaterThan(expectedFlags(3.5));
+    // "I can review 10 claims" sets a cutoff that flags at most 10, as the batch engine counts them.
+    await page.getByTestId('budget').fill('10');
+    await page.getByTestId('apply-budget').click();
+    await expect.poll(async () => Number(await page.getByTestId('cutoff').inputValue())).toBeGreaterThan(3);
+    const budgetCut = Number(await page.getByTestId('cutoff').inputValue());
+    expect(expectedFlags(budgetCut)).toBeLessThanOrEqual(10);
+    await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(budgetCut)));
     await page.getByTestId('cutoff').fill('3.5');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
     expect(await page.evaluate(() => window.tailmarkPreview!.snapshot())).toBe(before);
