@@ -1,5 +1,5 @@
 /** Ranges longer than this take a Floyd-Rivest sample pivot. */
-const SAMPLE_ABOVE = 600;
+const SAMPLE_ABOVE = 1200;
 
 /**
  * In-place selection: rearranges `a[left..right]` so that `a[k]` holds the value it would have if
@@ -12,8 +12,10 @@ const SAMPLE_ABOVE = 600;
  * 1975), as simple-statistics also does. Partition: a branch-free Lomuto partition (the
  * comparison result is added to the write index instead of branching on it, which avoids
  * mispredicted branches on random data: about 2.5x faster than a branching partition here).
- * Ties are safe: when the target lies at or right of the pivot, a second branch-free pass gathers
- * the elements equal to the pivot, so many equal values (the MAD = 0 case) stay linear.
+ * Ties are safe: when nothing in the range is below the pivot (the pivot is the range's minimum,
+ * as with many values tied at it), a second branch-free pass gathers the elements equal to the
+ * pivot, so many equal values (the MAD = 0 case) stay linear; otherwise the range shrinks to the
+ * side holding the target without that pass.
  *
  * Cost: O(n) expected. Worst case is bounded to O(n log n): after 2 log2(n) + 8 rounds without
  * finishing, the remaining range is sorted (native typed-array sort).
@@ -59,6 +61,12 @@ export function quickselect(a: Float64Array, k: number, left = 0, right = a.leng
       right = j - 1;
       continue;
     }
+    if (j > left) {
+      // Progress was made: the target lies in [j, right].
+      left = j;
+      continue;
+    }
+    // Nothing was below the pivot (p is the range's minimum, e.g. many ties at it).
     // Pass 2 on [j, right]: [j, e) == p, [e, right] > p.
     let e = j;
     for (let i = j; i <= right; i++) {
