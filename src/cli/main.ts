@@ -202,6 +202,8 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       when: new Date(),
       table,
       idColumn: idIndex !== null ? table.headers[idIndex] : null,
+      // Row by row, each explanation is worded as its row is written, not all held at once.
+      ...(streaming ? { reasonText: 'on-demand' as const } : {}),
     });
     if (large) progress('writing…');
     const onProgress = large ? (phase: string, f: number) => progress(`${phase} ${Math.round(f * 100)}%`) : undefined;

@@ -170,6 +170,8 @@ export interface CsvStreamOptions {
   readonly delimiter?: CsvDelimiter;
   /** Read size in bytes (default 1 MiB). */
   readonly chunkBytes?: number;
+  /** Awaited after each chunk's records are handled (lets a writer wait for its output to drain). */
+  readonly afterChunk?: () => Promise<void> | void;
 }
 
 /**
@@ -208,6 +210,7 @@ export async function forEachCsvRecord(
         }
       }
       if (stopped) break;
+      if (options.afterChunk) await options.afterChunk();
     }
     if (!stopped) {
       const rest = decoder.end();

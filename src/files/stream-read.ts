@@ -48,6 +48,13 @@ class ColumnCollector {
   }
 }
 
+/** "A" -> 0, "AA" -> 26. */
+function letterIndex(letters: string): number {
+  let n = 0;
+  for (let i = 0; i < letters.length; i++) n = n * 26 + (letters.charCodeAt(i) - 64);
+  return n - 1;
+}
+
 function headerText(v: RawCell): string {
   if (v instanceof Date) return v.toISOString().slice(0, 10);
   if (isEmpty(v)) return '';
@@ -124,6 +131,7 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
   let target: string | null = null;
   let names: string[] = [];
   let found = false;
+  let merges: readonly string[] = [];
   // An error from the caller's `keep` is passed on as it is; any other failure means the file is not
   // a workbook we can read.
   let callerError: unknown = null;
@@ -153,7 +161,7 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
       }
       found = true;
       let haveHeader = false;
-      await x.readSheet(sheet, {
+      const tail = await x.readSheet(sheet, {
         onRow(row) {
           if (!haveHeader) {
             const m = new Map<number, RawCell>();
@@ -164,10 +172,12 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
           for (const c of row.cells) b.cell(row.r, c.col - 1, c.raw);
         },
       });
+      merges = tail.merges;
       break;
     }
   } catch (e) {
     if (e instanceof InputFileError || (callerError !== null && e === callerError)) throw e;
+    if (e instanceof ReferenceError || e instanceof SyntaxError) throw e; // a bug of ours, not the file
     throw new InputFileError(`cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   } finally {
     x.close();
@@ -178,6 +188,18 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
   }
   if (b.first < 0) throw new InputFileError(`sheet "${target}" in ${name} is empty`);
   const { columns, rowCount, busyColumns } = b.finish();
+  // A merged range right of the table is not free either (its cells other than the first hold no value).
+  const busy = new Set(busyColumns);
+  for (const m of merges) {
+    const r = /^\$?([A-Z]+)\$?(\d+)(?::\$?([A-Z]+)\$?(\d+))?$/.exec(m);
+    if (!r) continue;
+    const c1 = letterIndex(r[1]);
+    const c2 = letterIndex(r[3] ?? r[1]);
+    const r1 = Number(r[2]);
+    const r2 = Number(r[4] ?? r[2]);
+    if (r2 < b.headerRow || r1 > b.headerRow + rowCount) continue;
+    for (let c = Math.max(c1, b.last + 1); c <= c2; c++) busy.add(c);
+  }
   return {
     source: describe(path, target, b.first, b.headerRow, b.headers.length, rowCount),
     sheetName: target!,
@@ -186,7 +208,7 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
     rowCount,
     headerRow: b.headerRow,
     firstColumn: b.first,
-    streamed: { kind: 'xlsx', kept: b.kept, busyColumns, sheetNames: names },
+    streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names },
   };
 }
 

@@ -154,6 +154,21 @@ function ourRules(table: ReadTable, plan: Plan, placed: readonly Placed[]): Exce
   };
 }
 
+/** Bytes queued for the zip compressor beyond which the writer waits (the ExcelJS stream has no backpressure). */
+const MAX_QUEUED = 16 << 20;
+
+/**
+ * Wait while the sheet's output queue is long. ExcelJS's streaming sheet buffer writes into the
+ * zip compressor without waiting for it, so a fast reader would otherwise queue the whole sheet in
+ * memory; this keeps the queue under MAX_QUEUED.
+ */
+async function letOutputDrain(ws: WriterSheet | null): Promise<void> {
+  const pipes = (ws as unknown as { stream?: { pipes?: { writableLength?: number }[] } } | null)?.stream?.pipes;
+  if (!pipes || pipes.length === 0) return;
+  const queued = () => pipes.reduce((m, p) => Math.max(m, p.writableLength ?? 0), 0);
+  while (queued() > MAX_QUEUED) await new Promise((r) => setTimeout(r, 2));
+}
+
 interface WriterSheet extends Sheet {
   commit(): void;
   dataValidations: { model: Record<string, ExcelJS.DataValidation> };
@@ -227,13 +242,10 @@ function sheetOptions(head: SheetHead | null, state: string | undefined): Partia
 
 /** The user's rules and validations back on the sheet; ours replace any an earlier run left. */
 function applyTail(ws: WriterSheet, tail: SheetTail, statusColumn: string | null): void {
-  for (const m of tail.merges) {
-    try {
-      ws.mergeCells(m);
-    } catch {
-      /* an overlapping merge in the input: skip it rather than fail */
-    }
-  }
+  // The rows are committed by now, so WorksheetWriter.mergeCells (which touches the cells) cannot be
+  // used; its list of merges is written as text at commit, and the cells were copied as they were.
+  const merges = (ws as unknown as { _merges: string[] })._merges;
+  for (const m of tail.merges) merges.push(m);
   for (const cf of tail.conditionalFormattings) {
     const rules = cf.rules.filter((rule) => !((rule as { formulae?: unknown[] }).formulae ?? []).some((f) => typeof f === 'string' && isTailmarkFormula(f)));
     if (rules.length) ws.addConditionalFormatting({ ...cf, rules });
@@ -328,7 +340,7 @@ export async function writeScoredWorkbookStreaming(
         }
         row.commit();
         progress(rowNo);
-      });
+      }, { afterChunk: () => letOutputDrain(ws) });
       for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
       finishScored(ws, null);
       ws.commit();
@@ -382,6 +394,7 @@ export async function writeScoredWorkbookStreaming(
               } else writeRow(w, row, row.r, x, null);
               return true;
             },
+            afterChunk: () => letOutputDrain(ws),
           });
           if (skip) continue;
           const w = open()!;
@@ -395,6 +408,10 @@ export async function writeScoredWorkbookStreaming(
         }
       } finally {
         x.close();
+      }
+      const order = info.sheetNames.filter((n) => sheetNames.includes(n));
+      if (order.join('\u0000') !== sheetNames.join('\u0000')) {
+        notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
       }
       if (!sawTarget) throw new InputFileError(`sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
       const names = x.definedNameCount;

@@ -127,11 +127,13 @@ export interface SheetHandlers {
   onHead?(head: SheetHead): void;
   /** Each row in order; return false to stop reading this sheet (the rest is skipped). */
   onRow?(row: StreamRow): void | boolean;
+  /** Awaited after each parsed chunk of the sheet's XML (lets a writer wait for its output to drain). */
+  afterChunk?(): Promise<void> | void;
 }
 
 /** Parts we recognise but do not carry over, by element name -> words for the notes. */
 const NOT_CARRIED: Record<string, string> = {
-  hyperlink: 'hyperlink targets (the link text is kept)',
+  hyperlink: 'hyperlink target(s) (the link text is kept)',
   legacyDrawing: 'cell comments / notes',
   drawing: 'pictures, charts or shapes',
   tablePart: 'Excel tables (the cells are kept, the table object is not)',
@@ -141,6 +143,8 @@ const NOT_CARRIED: Record<string, string> = {
   rowBreaks: 'page breaks',
   colBreaks: 'page breaks',
   picture: 'sheet background picture',
+  inlineRichText: 'inline rich-text cell(s): formatting inside them (the text is kept)',
+  sharedRichText: 'rich-text cell(s): RGB colours and strikethrough inside rich-text cells (the text, bold, italic, underline, size, font and theme colours are kept)',
 };
 
 const colLetters = (col: number): string => {
@@ -280,6 +284,7 @@ export class XlsxStream {
     let vText: string | null = null;
     let isText: string | null = null; // inline string text
     let textTarget: 'f' | 'v' | 't' | null = null;
+    let inlineRich = false;
 
     const finishCell = () => {
       if (!row) return;
@@ -292,6 +297,8 @@ export class XlsxStream {
           if (sv === undefined || sv === null) return { raw: null, value: null };
           if (typeof sv === 'string') return { raw: sv === '' ? null : sv, value: sv };
           const text = sv.richText.map((r) => r.text ?? '').join('');
+          // ExcelJS's shared-string reader (4.4.0) drops run colours given as rgb and strikethrough.
+          notCarried.set('sharedRichText', (notCarried.get('sharedRichText') ?? 0) + 1);
           return { raw: text === '' ? null : text, value: sv as ExcelJS.CellRichTextValue };
         }
         if (cT === 'inlineStr') {
@@ -377,6 +384,7 @@ export class XlsxStream {
           vText = null;
           isText = null;
           textTarget = null;
+          inlineRich = false;
           return;
         }
         case 'v':
@@ -387,6 +395,12 @@ export class XlsxStream {
           fText = '';
           fAttrs = a;
           textTarget = 'f';
+          return;
+        case 'r':
+          if (row && cT === 'inlineStr' && !inlineRich) {
+            inlineRich = true;
+            notCarried.set('inlineRichText', (notCarried.get('inlineRichText') ?? 0) + 1);
+          }
           return;
         case 't':
           if (cT === 'inlineStr') {
@@ -581,6 +595,7 @@ export class XlsxStream {
           break;
         }
       }
+      if (handlers.afterChunk) await handlers.afterChunk();
     }
     sendHead();
     const cfs = cfXform.model as ExcelJS.ConditionalFormattingOptions[];
@@ -604,5 +619,5 @@ export function describeNotCarried(counts: ReadonlyMap<string, number>): string[
     const w = NOT_CARRIED[name];
     if (w) words.set(w, (words.get(w) ?? 0) + n);
   }
-  return [...words].map(([w, n]) => (w.startsWith('hyperlink') ? `${n} ${w}` : w));
+  return [...words].map(([w, n]) => (w.startsWith('hyperlink') || w.startsWith('rich-text') || w.startsWith('inline rich-text') ? `${n} ${w}` : w));
 }

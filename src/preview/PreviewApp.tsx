@@ -129,7 +129,7 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
   const fileRef = useRef<HTMLInputElement>(null);
   const bump = useCallback(() => setVersion((v) => v + 1), []);
   const source = useMemo(() => sandboxSource(book.sb), [book]);
-  const layer = useMemo(() => createWorkbookLayer(delayed(book.sb, syncDelay, bump)), [book, syncDelay, bump]);
+  const layer = useMemo(() => createWorkbookLayer(delayed(book.sb, syncDelay, bump), { runInContext: book.sb.run }), [book, syncDelay, bump]);
 
   // Follow the selection to its sheet when the pane moves it (e.g. Next exception).
   const selSheet = source.selection()?.sheet ?? null;

@@ -47,20 +47,18 @@ export function demoSandbox(): SandboxWorkbook {
 }
 
 export function sandboxSource(sb: SandboxWorkbook): GridSource {
-  const sheetOf = (name: string) => sb.model.sheetByName(name);
+  const known = (name: string) => sb.sheetNames().includes(name);
   return {
     sheetNames: () => sb.sheetNames(),
     size(sheet) {
-      const s = sheetOf(sheet);
-      const r = s ? sb.model.usedRect(s, false) : null;
-      return r ? { rows: r.r0 + r.rows, cols: r.c0 + r.cols } : { rows: 0, cols: 0 };
+      return known(sheet) ? sb.usedRange(sheet) : { rows: 0, cols: 0 };
     },
     columnWidths(sheet, cols) {
-      const s = sheetOf(sheet);
+      const has = known(sheet);
       const out: number[] = [];
       for (let c = 0; c < cols; c++) {
-        const w = s?.widths.get(c);
-        out.push(w === undefined ? DEFAULT_WIDTH_PX : Math.round(w * PX_PER_POINT));
+        const w = has ? sb.columnWidth(sheet, c) : null;
+        out.push(w === null ? DEFAULT_WIDTH_PX : Math.round(w * PX_PER_POINT));
       }
       return out;
     },

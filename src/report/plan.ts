@@ -33,6 +33,39 @@ export interface PlanContext {
   readonly when: Date;
   readonly table: SourceTable;
   readonly idColumn?: string | null;
+  /**
+   * (Added, optional.) 'on-demand': the "why" column's values are worded when read, not all at once,
+   * so a full-height sheet does not hold a million sentences (about 1 KB each as built strings) before
+   * a streaming sink writes them one row at a time. Each read words the row afresh. Default 'eager'.
+   */
+  readonly reasonText?: 'eager' | 'on-demand';
+}
+
+/**
+ * A read-only array whose entry r is `at(r)`, computed on each read (no storage beyond the length).
+ * Behaves as an array for indexing, length, iteration, slice and map.
+ */
+function onDemandArray<T>(length: number, at: (r: number) => T): readonly T[] {
+  const target = new Array<T>(length);
+  return new Proxy(target, {
+    get(t, p, receiver) {
+      if (typeof p === 'string') {
+        const c = p.charCodeAt(0);
+        if (c >= 48 && c <= 57) {
+          const r = Number(p);
+          if (Number.isInteger(r) && r >= 0 && r < length) return at(r);
+        }
+      }
+      return Reflect.get(t, p, receiver);
+    },
+    has(t, p) {
+      if (typeof p === 'string' && /^\d+$/.test(p)) return Number(p) < length;
+      return Reflect.has(t, p);
+    },
+    set() {
+      return false;
+    },
+  });
 }
 
 const METHOD_WORDS: Record<MethodId, string> = {
@@ -143,17 +176,19 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     const h = resultHeaders(col.column);
     const score: PlanCell[] = new Array(rows);
     const flag: PlanCell[] = new Array(rows);
-    const reason: PlanCell[] = new Array(rows);
+    const lazy = ctx.reasonText === 'on-demand';
+    const reason: PlanCell[] = lazy ? [] : new Array(rows);
     for (let r = 0; r < rows; r++) {
       score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
-      reason[r] = explainRow(result, col, r);
+      if (!lazy) reason[r] = explainRow(result, col, r);
       if (col.flagged[r]) anyFlag[r] = 1;
       if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
     }
     columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
     columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
-    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reason, width: 60 });
+    const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRow(result, col, r)) : reason;
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 60 });
   });
   const open = statusLabel('open');
   const status: PlanCell[] = new Array(rows);

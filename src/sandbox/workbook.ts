@@ -363,6 +363,21 @@ export class SandboxWorkbook {
     return v === null ? '' : v instanceof CellError ? v.code : v;
   }
 
+  /**
+   * How far the sheet is used, counted from A1: rows through the last used row and columns through
+   * the last used column (values, formulas or formats; `valuesOnly` counts values and formulas
+   * only, as getUsedRange(true) does). { rows: 0, cols: 0 } for an empty sheet.
+   */
+  usedRange(sheet: string, valuesOnly = false): { rows: number; cols: number } {
+    const r = this.model.usedRect(this.sheet(sheet), valuesOnly);
+    return r ? { rows: r.r0 + r.rows, cols: r.c0 + r.cols } : { rows: 0, cols: 0 };
+  }
+
+  /** Width of a 0-based column in points when one was set (setColumnWidth, format.columnWidth, import), else null (the default). */
+  columnWidth(sheet: string, col: number): number | null {
+    return this.sheet(sheet).widths.get(col) ?? null;
+  }
+
   /** Raw stored cell (formula, number format, quote prefix...) or null when nothing is stored. */
   cellAt(sheet: string, row: number, col: number): CellSnapshot | null {
     return cellSnapshot(this.sheet(sheet), row, col);

@@ -49,10 +49,13 @@ const NO_CELL: unique symbol = Symbol('no cell');
  * (about 2.5x faster than a Map on string keys in V8), so each distinct text is trimmed once;
  * numbers, booleans and blanks in a Map on the raw value; Dates and error cells (objects, which a
  * Map would compare by identity) through `keyPart`. Two cells share a code exactly when their key
- * parts are equal ("A", " A" and "A "; the number 1 and the text "1").
+ * parts are equal ("A", " A" and "A "; the number 1 and the text "1"). With `count`, also
+ * returns the rows per code (group sizes, without a second pass; `counts` may be longer than
+ * `parts`, the rest 0).
  * Cost O(rows) expected.
  */
-function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Array): string[] {
+function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Array, count: boolean): { parts: string[]; counts: Int32Array } {
+  let counts: Int32Array<ArrayBuffer> = new Int32Array(count ? 256 : 0);
   const parts: string[] = [];
   const byPart = new Map<string, number>();
   const byText = Object.create(null) as Record<string, number | undefined>;
@@ -72,6 +75,7 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
     const cell = cells[r];
     if (cell === last) {
       out[r] = lastCode;
+      if (count) counts[lastCode]++;
       continue;
     }
     let code: number | undefined;
@@ -91,10 +95,21 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
       }
     }
     out[r] = code;
+    if (count) {
+      if (code >= counts.length) counts = grown(counts);
+      counts[code]++;
+    }
     last = cell;
     lastCode = code;
   }
-  return parts;
+  return { parts, counts };
+}
+
+/** A copy of `a` twice as long (the rest zero). */
+function grown(a: Int32Array<ArrayBuffer>): Int32Array<ArrayBuffer> {
+  const b = new Int32Array(Math.max(256, 2 * a.length));
+  b.set(a);
+  return b;
 }
 
 /**
@@ -102,10 +117,14 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
  * becomes a dense code of the pair, numbered in order of first appearance. The pair is one number
  * acc x count + code (below rows^2 < 2^53, so exact); looked up in a direct table when that is
  * small enough (Int32Array of code + 1, 0 = unseen), else in a Map keyed by that number.
- * Returns the number of distinct pairs and the first row of each. Cost O(rows).
+ * Returns the number of distinct pairs, the first row of each and the rows per pair (`counts`,
+ * possibly longer than the number of pairs). Cost O(rows).
  */
-function combineCodes(acc: Int32Array, accCount: number, codes: Int32Array, count: number, rowCount: number): { count: number; firstRow: number[] } {
+function combineCodes(
+  acc: Int32Array, accCount: number, codes: Int32Array, count: number, rowCount: number,
+): { count: number; firstRow: number[]; counts: Int32Array } {
   const firstRow: number[] = [];
+  let counts: Int32Array<ArrayBuffer> = new Int32Array(256);
   const size = accCount * count;
   if (size <= Math.max(1 << 16, 2 * rowCount)) {
     const table = new Int32Array(size);
@@ -116,8 +135,10 @@ function combineCodes(acc: Int32Array, accCount: number, codes: Int32Array, coun
         g = firstRow.length;
         firstRow.push(r);
         table[pair] = g + 1;
+        if (g >= counts.length) counts = grown(counts);
       }
       acc[r] = g;
+      counts[g]++;
     }
   } else {
     const map = new Map<number, number>();
@@ -128,11 +149,13 @@ function combineCodes(acc: Int32Array, accCount: number, codes: Int32Array, coun
         g = firstRow.length;
         firstRow.push(r);
         map.set(pair, g);
+        if (g >= counts.length) counts = grown(counts);
       }
       acc[r] = g;
+      counts[g]++;
     }
   }
-  return { count: firstRow.length, firstRow };
+  return { count: firstRow.length, firstRow, counts };
 }
 
 /**
@@ -143,7 +166,7 @@ function combineCodes(acc: Int32Array, accCount: number, codes: Int32Array, coun
  * Method (no per-row string or object allocation): each key column is coded to small integers
  * (`codeKeyColumn`); several key columns are combined pairwise into one numeric code per row
  * (`combineCodes`), so no joined key text is built per row; key texts and labels are made once
- * per group. Then an O(rows) count of group sizes gives the counting-sort offsets `start`.
+ * per group. Group sizes are counted on the way and give the counting-sort offsets `start`.
  *
  * Cost: O(rows x key columns) expected time; 4 bytes per row (plus 4 per row of scratch with
  * several key columns).
@@ -158,28 +181,29 @@ export function groupRows(groupColumns: readonly { readonly cells: ArrayLike<Raw
     keyParts.push(parts);
     labels.push(parts.map((p) => (p === '' ? BLANK_KEY_LABEL : p)).join(LABEL_SEPARATOR));
   };
+  // Rows per group, counted while coding.
+  let sizes: Int32Array;
   if (groupColumns.length === 0) {
     addGroup([]);
     labels[0] = ALL_ROWS_LABEL;
+    sizes = Int32Array.of(rowCount);
   } else if (groupColumns.length === 1) {
-    for (const part of codeKeyColumn(groupColumns[0].cells, rowCount, groupOf)) addGroup([part]);
+    const coded = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, true);
+    for (const part of coded.parts) addGroup([part]);
+    sizes = coded.counts;
   } else {
-    let count = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf).length;
+    let count = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, false).parts.length;
     const codes = new Int32Array(rowCount);
     let firstRow: number[] = [];
+    sizes = new Int32Array(0);
     for (let c = 1; c < groupColumns.length; c++) {
-      const k = codeKeyColumn(groupColumns[c].cells, rowCount, codes).length;
-      ({ count, firstRow } = combineCodes(groupOf, count, codes, k, rowCount));
+      const k = codeKeyColumn(groupColumns[c].cells, rowCount, codes, false).parts.length;
+      ({ count, firstRow, counts: sizes } = combineCodes(groupOf, count, codes, k, rowCount));
     }
     for (const r of firstRow) addGroup(groupColumns.map((col) => keyPart(col.cells[r])));
   }
-  return { groupOf, keys, labels, keyParts, start: countingOffsets(groupOf, keys.length) };
-}
-
-/** start[g] = rows in groups before g (length groups + 1). O(rows); a function of its own so the JIT optimizes it whole. */
-function countingOffsets(groupOf: Int32Array, nGroups: number): Int32Array {
+  const nGroups = keys.length;
   const start = new Int32Array(nGroups + 1);
-  for (let r = 0; r < groupOf.length; r++) start[groupOf[r] + 1]++;
-  for (let g = 0; g < nGroups; g++) start[g + 1] += start[g];
-  return start;
+  for (let g = 0; g < nGroups; g++) start[g + 1] = start[g] + sizes[g];
+  return { groupOf, keys, labels, keyParts, start };
 }

@@ -64,7 +64,7 @@ function start(): void {
   void Office.onReady((info) => {
     const background = Office.context?.officeTheme?.bodyBackgroundColor ?? null;
     if (info.host === Office.HostType.Excel) {
-      const layer = createWorkbookLayer(Excel.run);
+      const layer = createWorkbookLayer(Excel.run, { runInContext: Excel.run });
       render(<TailmarkPane layer={layer} />, background);
     } else {
       render(<OutsideOffice />, background);

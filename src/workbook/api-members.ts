@@ -35,6 +35,7 @@ export const EXCEL_MEMBERS: readonly ExcelMember[] = [
   { member: 'ListDataValidation.source', apiSet: 'ExcelApi 1.8' },
   { member: 'OfficeExtension.ClientObject.isNullObject', apiSet: null },
   { member: 'OfficeExtension.ClientRequestContext.sync', apiSet: null },
+  { member: 'OfficeExtension.EventHandlerResult.context', apiSet: null },
   { member: 'OfficeExtension.EventHandlerResult.remove', apiSet: null },
   { member: 'OfficeExtension.EventHandlers.add', apiSet: null },
   { member: 'Range.address', apiSet: 'ExcelApi 1.1' },

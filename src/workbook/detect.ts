@@ -1,17 +1,30 @@
 /**
  * detect(): find the table around the selection, its header row and the role of each column.
  *
+ * Which block the selection means:
+ *  - inside an Excel table (any selection that meets one): the table;
+ *  - one cell, or part of one row (what selectRow selects): the surrounding region of its
+ *    top-left cell; when that cell is in our result columns (which sit next to the data, and
+ *    may be blank around it), the surrounding region of the data's header row instead;
+ *  - entire rows, entire columns or the whole sheet (a click on a row or column header): the
+ *    selection is cut to the used range, and the surrounding region of the first non-blank cell
+ *    of that cut (read row by row from its top) is taken, as for one cell;
+ *  - any other block: the block itself when it has a header row and claims under it, else the
+ *    surrounding region of its top-left cell (a few rows dragged over inside the data).
+ *
  * Syncs: 1 (selection, surrounding region, tables at the selection, used range) + 1 (sample of the
  * block, and the table's range when the selection is inside an Excel table) [+ 1 when the table is
- * not the surrounding region].
+ * not the surrounding region] [+ 1 for a cell in our result columns]. Entire rows / columns: + 1 (the top of the cut and its region)
+ * [+ 1 when its first non-blank cell is not its top-left one]. Another block without a header
+ * row: + 1 (sample of the region).
  */
 import type { RawCell } from '../scoring/types.js';
 import { TailmarkError, type DetectedColumn, type DetectedTable } from './api.js';
-import { MAX_COLUMNS, parseAddress, rectAddress, type GridRect } from './a1.js';
+import { MAX_COLUMNS, MAX_ROWS, parseAddress, rectAddress, type GridRect } from './a1.js';
 import { cellText, toRawCell } from './cells.js';
 import { guessColumn, headerNames, looksLikeHeader } from './guess.js';
 import { readRows } from './read.js';
-import { isOurHeader } from './state.js';
+import { STATE_KEY, isOurHeader, parseState, type LayerState } from './state.js';
 import { errorCode, type Syncer } from './sync.js';
 
 /** What detect learnt that run() can reuse (kept beside the DetectedTable object). */
@@ -24,6 +37,9 @@ export const detectMemo = new WeakMap<DetectedTable, DetectMemo>();
 
 /** Rows sampled for the guesses (plus the header row). */
 export const SAMPLE_ROWS = 2_000;
+
+/** Cells read from the top of an entire-row / entire-column selection to find where the data starts. */
+export const PROBE_CELLS = 10_000;
 
 interface Rect {
   row: number;
@@ -42,19 +58,26 @@ function intersect(a: Rect, b: Rect): Rect | null {
 
 const rectOf = (r: Excel.Range): Rect => ({ row: r.rowIndex, column: r.columnIndex, rowCount: r.rowCount, columnCount: r.columnCount });
 
+const sameRect = (a: Rect, b: Rect): boolean => a.row === b.row && a.column === b.column && a.rowCount === b.rowCount && a.columnCount === b.columnCount;
+
+const isBlank = (v: unknown): boolean => v === null || v === undefined || v === '';
+
 export async function detectTable(sync: Syncer): Promise<DetectedTable> {
   const wb = sync.context.workbook;
   const sel = wb.getSelectedRange();
   sel.load(['address', 'rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
   const sheet = sel.worksheet;
   sheet.load('name');
-  // The region is needed for a single selected cell only (and for a table, whose range we load next).
+  // The region of the selection's top-left cell serves one cell, part of a row, and a block without a header.
   const region = sel.getSurroundingRegion();
   region.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
   const tables = sel.getTables(false);
   tables.load('items/name');
   const used = sheet.getUsedRangeOrNullObject(true);
   used.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
+  // Where our result columns sit (a cell in them may have no values around it: blank notes).
+  const stateSetting = wb.settings.getItemOrNullObject(STATE_KEY);
+  stateSetting.load('value');
   try {
     await sync.sync();
   } catch (e) {
@@ -68,35 +91,98 @@ export async function detectTable(sync: Syncer): Promise<DetectedTable> {
     throw e;
   }
   const sheetName = sheet.name;
-  const single = sel.rowCount === 1 && sel.columnCount === 1;
-  let block: Rect;
-  let table: Excel.Table | null = null;
-  let tableName: string | null = null;
-  let tableRange: Excel.Range | null = null;
+  const selRect = rectOf(sel);
+  const single = selRect.rowCount === 1 && selRect.columnCount === 1;
+  const entire = selRect.rowCount === MAX_ROWS || selRect.columnCount === MAX_COLUMNS;
   if (tables.items.length > 0) {
-    table = tables.items[0];
-    tableName = table.name;
-    tableRange = table.getRange();
+    const table = tables.items[0];
+    const tableRange = table.getRange();
     tableRange.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
-    block = rectOf(region);
-  } else if (single) {
-    block = rectOf(region);
-  } else {
-    const u = used.isNullObject ? null : rectOf(used);
-    const b = u ? intersect(rectOf(sel), u) : null;
-    if (!b) throw emptySelection(sel.address);
-    block = b;
-  }
-
-  let sample = await readSample(sync, sheet, block, tableRange);
-  if (tableRange) {
+    let block = rectOf(region);
+    let sample = await readSample(sync, sheet, block, tableRange);
     const tr = rectOf(tableRange);
-    if (tr.row !== block.row || tr.column !== block.column || tr.rowCount !== block.rowCount || tr.columnCount !== block.columnCount) {
+    if (!sameRect(tr, block)) {
       block = tr;
       sample = await readSample(sync, sheet, block, null);
     }
+    return buildDetected(sheetName, block, table.name, sample, sel.address);
   }
-  return buildDetected(sheetName, block, tableName, sample, sel.address);
+  if (entire) {
+    const u = used.isNullObject ? null : rectOf(used);
+    const cut = u ? intersect(selRect, u) : null;
+    if (!cut) throw emptySelection(sel.address, false);
+    const block = await regionOfFirstValue(sync, sheet, cut, sel.address);
+    return buildDetected(sheetName, block, null, await readSample(sync, sheet, block, null), sel.address);
+  }
+  const state = parseState(stateSetting.isNullObject ? null : stateSetting.value);
+  const inOurs = state !== null && inOurBlock(state, sheetName, selRect.row, selRect.column);
+  /** The region of the selection's top-left cell; for a cell in our columns, the region of the data's header row. */
+  const around = async (): Promise<Rect> => {
+    if (!inOurs || !state) return rectOf(region);
+    const r = sheet.getRangeByIndexes(state.headerRow, state.firstColumn, 1, 1).getSurroundingRegion();
+    r.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
+    await sync.sync();
+    return rectOf(r);
+  };
+  if (single || selRect.rowCount === 1) {
+    const block = await around();
+    return buildDetected(sheetName, block, null, await readSample(sync, sheet, block, null), sel.address);
+  }
+  // A block of several rows: the block itself if it is a table with a header, else the region.
+  const u = used.isNullObject ? null : rectOf(used);
+  const block = u ? intersect(selRect, u) : null;
+  if (!block) throw emptySelection(sel.address, false);
+  try {
+    return buildDetected(sheetName, block, null, await readSample(sync, sheet, block, null), sel.address);
+  } catch (e) {
+    if (!(e instanceof TailmarkError)) throw e;
+    const other = await around();
+    if (sameRect(other, block)) throw e;
+    try {
+      return buildDetected(sheetName, other, null, await readSample(sync, sheet, other, null), sel.address);
+    } catch {
+      throw e; // the selected block's own problem is the one to report
+    }
+  }
+}
+
+/** True when (row, column) lies in our result columns of a plain range (header row included), per the stored state. */
+function inOurBlock(state: LayerState, sheetName: string, row: number, column: number): boolean {
+  return (
+    state.table === null &&
+    state.sheet === sheetName &&
+    row >= state.headerRow &&
+    row <= state.headerRow + state.rowCount &&
+    column >= state.blockColumn &&
+    column < state.blockColumn + state.columns.length
+  );
+}
+
+/**
+ * The surrounding region of the first non-blank cell of `cut` (rows read from its top, at most
+ * PROBE_CELLS cells). The region of the top-left cell is queued with the read, so a cut that
+ * starts with a value costs one sync.
+ */
+async function regionOfFirstValue(sync: Syncer, sheet: Excel.Worksheet, cut: Rect, selAddress: string): Promise<Rect> {
+  const rows = Math.min(cut.rowCount, Math.max(1, Math.floor(PROBE_CELLS / cut.columnCount)));
+  const top = sheet.getRangeByIndexes(cut.row, cut.column, rows, cut.columnCount);
+  top.load('values');
+  const first = sheet.getRangeByIndexes(cut.row, cut.column, 1, 1).getSurroundingRegion();
+  first.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
+  await sync.sync();
+  const values = top.values as unknown[][];
+  sync.noteResponse(JSON.stringify(values).length);
+  for (let r = 0; r < values.length; r++) {
+    for (let c = 0; c < values[r].length; c++) {
+      if (isBlank(values[r][c])) continue;
+      if (r === 0 && c === 0) return rectOf(first);
+      const around = sheet.getRangeByIndexes(cut.row + r, cut.column + c, 1, 1).getSurroundingRegion();
+      around.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
+      await sync.sync();
+      return rectOf(around);
+    }
+  }
+  throw emptySelection(selAddress, false);
 }
 
 interface Sample {
@@ -133,17 +219,19 @@ async function readSample(sync: Syncer, sheet: Excel.Worksheet, block: Rect, als
   return { rows, bytesPerCell: cells > 0 ? bytes / cells : 0 };
 }
 
-function emptySelection(address: string): TailmarkError {
+function emptySelection(address: string, single: boolean): TailmarkError {
   return new TailmarkError(
     'no-selection',
-    `The selected cell ${address} is empty and has no data around it. Click a cell inside your claims table (a header or any claim), then try again.`,
+    single
+      ? `The selected cell ${address} is empty and has no data around it. Click a cell inside your claims table (a header or any claim), then try again.`
+      : `The selection ${address} holds no data near its top. Click a cell inside your claims table (a header or any claim), then try again.`,
   );
 }
 
 function buildDetected(sheetName: string, block: Rect, tableName: string | null, sample: Sample, selAddress: string): DetectedTable {
   const [first, ...rest] = sample.rows;
   const nonBlank = sample.rows.some((r) => r.some((c) => c !== null && c !== undefined && !(typeof c === 'string' && c.trim() === '')));
-  if (!nonBlank) throw emptySelection(selAddress);
+  if (!nonBlank) throw emptySelection(selAddress, !selAddress.includes(':'));
   const where = rectAddress(sheetName, block);
   if (tableName === null && !looksLikeHeader(first, rest)) {
     throw new TailmarkError(

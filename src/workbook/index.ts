@@ -1,6 +1,8 @@
 /**
- * The workbook layer: the only code that touches Excel.*. `createWorkbookLayer(Excel.run)` in the
- * add-in; `createWorkbookLayer(sandbox.run)` in tests, the preview page and `tailmark sandbox`.
+ * The workbook layer: the only code that touches Excel.*.
+ * `createWorkbookLayer(Excel.run, { runInContext: Excel.run })` in the add-in;
+ * `createWorkbookLayer(sandbox.run, { runInContext: sandbox.run })` in tests, the preview page and
+ * `tailmark sandbox` (runInContext is optional: see WorkbookLayerOptions).
  *
  * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
  * that grows with the number of cells only.
@@ -14,6 +16,16 @@ import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
 
 export type ExcelRunner = <T>(batch: (context: Excel.RequestContext) => Promise<T>) => Promise<T>;
 
+/**
+ * Excel.run's overload that runs a batch on an existing context (`Excel.run(context, batch)`), used
+ * to remove an event handler through the context that added it. `Excel.run` itself and the
+ * sandbox's `run` both have this shape.
+ */
+export type ExcelContextRunner = <T>(
+  context: OfficeExtension.ClientRequestContext,
+  batch: (context: Excel.RequestContext) => Promise<T>,
+) => Promise<T>;
+
 export interface WorkbookLayerOptions {
   /** Host request/response limit in bytes (default 5 MB, Excel on the web). */
   readonly payloadLimit?: number;
@@ -21,6 +33,12 @@ export interface WorkbookLayerOptions {
   readonly safety?: number;
   /** Clock for the run log and notes (default: now). */
   readonly now?: () => Date;
+  /**
+   * `Excel.run` again (its `run(context, batch)` form): lets onSelectionChanged register its handler
+   * in one short run and remove it later on the handler's own context, as Microsoft documents.
+   * Without it the registering run stays open until unsubscribe (the fallback).
+   */
+  readonly runInContext?: ExcelContextRunner;
   /** Called with errors of background work (removing a selection handler). */
   readonly onBackgroundError?: (e: unknown) => void;
 }
@@ -112,8 +130,29 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('mark', (s) => markRows(s, rows, status, note));
     },
     async onSelectionChanged(handler: () => void): Promise<() => void> {
-      // The registration lives in an Excel.run that stays open until unsubscribe: the handler is
-      // removed, and synced, through the same context that added it (as Office.js requires).
+      const runIn = options.runInContext;
+      if (runIn) {
+        // Microsoft's pattern ("Work with events using the Excel JavaScript API"): register in one
+        // Excel.run, keep the EventHandlerResult, and later remove it in a batch run on its context.
+        const result = await run(async (context) => {
+          const r = context.workbook.onSelectionChanged.add(async () => {
+            handler();
+          });
+          await context.sync();
+          return r;
+        });
+        let removed = false;
+        return () => {
+          if (removed) return;
+          removed = true;
+          runIn(result.context, async (ctx) => {
+            result.remove();
+            await ctx.sync();
+          }).catch((e: unknown) => options.onBackgroundError?.(e));
+        };
+      }
+      // Fallback when the host gives no way to resume a context: the registration lives in an
+      // Excel.run that stays open until unsubscribe, and is removed, and synced, through it.
       let release: () => void = () => undefined;
       const released = new Promise<void>((r) => {
         release = r;

@@ -1,2 +1,2 @@
 /** Alias entry point (the task pane imports the layer from here). */
-export { createWorkbookLayer, type ExcelRunner, type WorkbookLayerOptions, type TailmarkWorkbookLayer, type OperationStats, type RunDetails } from './index.js';
+export { createWorkbookLayer, type ExcelRunner, type ExcelContextRunner, type WorkbookLayerOptions, type TailmarkWorkbookLayer, type OperationStats, type RunDetails } from './index.js';

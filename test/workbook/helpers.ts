@@ -41,7 +41,7 @@ export function claimsSandbox(n = 200, seed = 7): SandboxWorkbook {
 }
 
 export function layerFor(sb: SandboxWorkbook, options: WorkbookLayerOptions = {}): TailmarkWorkbookLayer {
-  return createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z'), ...options });
+  return createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z'), runInContext: sb.run, ...options });
 }
 
 export const SETTINGS: RunSettings = {
