@@ -27,7 +27,7 @@ import type { GroupStats, RawCell, ScoreOptions } from '../src/scoring/index.js'
 
 const ROWS = 1_048_575;
 const GROUPS = 2_000;
-const REPEATS = 5;
+const REPEATS = 10;
 const ROUNDS = 3;
 const TARGET_RATIO = 1 / 3;
 const TARGET_MB = 400;

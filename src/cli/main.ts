@@ -151,7 +151,8 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     ...(args.sheet !== undefined ? { sheet: args.sheet } : {}),
     keep: (headers) => {
       cols = resolveColumns(args, headers, where);
-      return [...cols.valueIdx, ...cols.groupIdx, ...(cols.idIndex !== null ? [cols.idIndex] : [])];
+      // The id column's cells are only printed with --json; a workbook run needs just its name.
+      return [...cols.valueIdx, ...cols.groupIdx, ...(cols.idIndex !== null && args.json ? [cols.idIndex] : [])];
     },
   });
   if (streamedTable.rowCount === 0) throw new InputFileError(`${streamedTable.source} has a header row but no data rows`);

@@ -144,7 +144,7 @@ const NOT_CARRIED: Record<string, string> = {
   colBreaks: 'page breaks',
   picture: 'sheet background picture',
   inlineRichText: 'inline rich-text cell(s): formatting inside them (the text is kept)',
-  sharedRichText: 'rich-text cell(s): RGB colours and strikethrough inside rich-text cells (the text, bold, italic, underline, size, font and theme colours are kept)',
+  sharedRichText: 'rich-text cell(s): RGB colours and strikethrough of parts of their text (the text, bold, italic, underline, size, font and theme colours are kept)',
 };
 
 const colLetters = (col: number): string => {

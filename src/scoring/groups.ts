@@ -41,22 +41,23 @@ export function keyPart(cell: RawCell): string {
 const NO_CELL: unique symbol = Symbol('no cell');
 
 /**
- * Codes one key column: `out[r]` = index into the returned list of distinct key parts (trimmed
- * text, see `keyPart`), numbered in order of first appearance.
+ * Codes one key column: `out[r]` = index into `parts` (filled here with the distinct key parts,
+ * trimmed text, see `keyPart`), numbered in order of first appearance.
  *
- * Fast paths, none allocating per row: a last-cell cache (sorted sheets repeat the previous key);
+ * Fast paths, none allocating per row: a last-cell cache (sorted sheets repeat the previous key;
+ * used when the first rows show runs of equal keys);
  * text cells are looked up by the raw string in a prototype-free object used as a dictionary
  * (about 2.5x faster than a Map on string keys in V8), so each distinct text is trimmed once;
  * numbers, booleans and blanks in a Map on the raw value; Dates and error cells (objects, which a
  * Map would compare by identity) through `keyPart`. Two cells share a code exactly when their key
- * parts are equal ("A", " A" and "A "; the number 1 and the text "1"). With `count`, also
- * returns the rows per code (group sizes, without a second pass; `counts` may be longer than
- * `parts`, the rest 0).
+ * parts are equal ("A", " A" and "A "; the number 1 and the text "1"). With `count`, returns
+ * the rows per code (group sizes, without a second pass; may be longer than `parts`, the rest 0).
+ * Hot loops here and below end in plain returns: code after a long loop that the optimizing
+ * compiler has no type feedback for makes it deoptimize on every early call.
  * Cost O(rows) expected.
  */
-function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Array, count: boolean): { parts: string[]; counts: Int32Array } {
+function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Array, parts: string[], count: boolean): Int32Array {
   let counts: Int32Array<ArrayBuffer> = new Int32Array(count ? 256 : 0);
-  const parts: string[] = [];
   const byPart = new Map<string, number>();
   const byText = Object.create(null) as Record<string, number | undefined>;
   const byValue = new Map<RawCell, number>();
@@ -69,11 +70,15 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
     }
     return c;
   };
+  // The last-cell cache pays when runs of equal keys are common (sheets sorted by cost centre);
+  // on shuffled keys comparing two different strings costs more than it saves, so it is used
+  // only when the first rows show runs.
+  const useLast = repeatsOften(cells, rowCount);
   let last: RawCell | typeof NO_CELL = NO_CELL;
   let lastCode = 0;
   for (let r = 0; r < rowCount; r++) {
     const cell = cells[r];
-    if (cell === last) {
+    if (useLast && cell === last) {
       out[r] = lastCode;
       if (count) counts[lastCode]++;
       continue;
@@ -102,7 +107,15 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
     last = cell;
     lastCode = code;
   }
-  return { parts, counts };
+  return counts;
+}
+
+/** True when at least a quarter of the first 4,096 rows repeat the key of the row before. */
+function repeatsOften(cells: ArrayLike<RawCell>, rowCount: number): boolean {
+  const m = Math.min(rowCount, 4096);
+  let repeats = 0;
+  for (let r = 1; r < m; r++) if (cells[r] === cells[r - 1]) repeats++;
+  return repeats * 4 >= m;
 }
 
 /** A copy of `a` twice as long (the rest zero). */
@@ -117,13 +130,12 @@ function grown(a: Int32Array<ArrayBuffer>): Int32Array<ArrayBuffer> {
  * becomes a dense code of the pair, numbered in order of first appearance. The pair is one number
  * acc x count + code (below rows^2 < 2^53, so exact); looked up in a direct table when that is
  * small enough (Int32Array of code + 1, 0 = unseen), else in a Map keyed by that number.
- * Returns the number of distinct pairs, the first row of each and the rows per pair (`counts`,
- * possibly longer than the number of pairs). Cost O(rows).
+ * Fills `firstRow` with the first row of each distinct pair and returns the rows per pair
+ * (possibly longer than the number of pairs). Cost O(rows).
  */
 function combineCodes(
-  acc: Int32Array, accCount: number, codes: Int32Array, count: number, rowCount: number,
-): { count: number; firstRow: number[]; counts: Int32Array } {
-  const firstRow: number[] = [];
+  acc: Int32Array, accCount: number, codes: Int32Array, count: number, rowCount: number, firstRow: number[],
+): Int32Array {
   let counts: Int32Array<ArrayBuffer> = new Int32Array(256);
   const size = accCount * count;
   if (size <= Math.max(1 << 16, 2 * rowCount)) {
@@ -155,7 +167,7 @@ function combineCodes(
       counts[g]++;
     }
   }
-  return { count: firstRow.length, firstRow, counts };
+  return counts;
 }
 
 /**
@@ -188,22 +200,35 @@ export function groupRows(groupColumns: readonly { readonly cells: ArrayLike<Raw
     labels[0] = ALL_ROWS_LABEL;
     sizes = Int32Array.of(rowCount);
   } else if (groupColumns.length === 1) {
-    const coded = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, true);
-    for (const part of coded.parts) addGroup([part]);
-    sizes = coded.counts;
+    const parts: string[] = [];
+    sizes = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, parts, true);
+    for (const part of parts) addGroup([part]);
   } else {
-    let count = codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, false).parts.length;
+    let count = 0;
+    {
+      const parts: string[] = [];
+      codeKeyColumn(groupColumns[0].cells, rowCount, groupOf, parts, false);
+      count = parts.length;
+    }
     const codes = new Int32Array(rowCount);
     let firstRow: number[] = [];
     sizes = new Int32Array(0);
     for (let c = 1; c < groupColumns.length; c++) {
-      const k = codeKeyColumn(groupColumns[c].cells, rowCount, codes, false).parts.length;
-      ({ count, firstRow, counts: sizes } = combineCodes(groupOf, count, codes, k, rowCount));
+      const parts: string[] = [];
+      codeKeyColumn(groupColumns[c].cells, rowCount, codes, parts, false);
+      firstRow = [];
+      sizes = combineCodes(groupOf, count, codes, parts.length, rowCount, firstRow);
+      count = firstRow.length;
     }
     for (const r of firstRow) addGroup(groupColumns.map((col) => keyPart(col.cells[r])));
   }
-  const nGroups = keys.length;
+  const start = offsets(sizes, keys.length);
+  return { groupOf, keys, labels, keyParts, start };
+}
+
+/** start[g] = rows in groups before g (length groups + 1). */
+function offsets(sizes: Int32Array, nGroups: number): Int32Array {
   const start = new Int32Array(nGroups + 1);
   for (let g = 0; g < nGroups; g++) start[g + 1] = start[g] + sizes[g];
-  return { groupOf, keys, labels, keyParts, start };
+  return start;
 }

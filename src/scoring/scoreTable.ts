@@ -192,12 +192,7 @@ function scoreColumn(
   }
   const count = new Int32Array(nGroups);
   const colCounts = new Int32Array(NREASONS);
-  let nAll = 0;
-  for (let g = 0; g < nGroups; g++) {
-    count[g] = cursor[g] - start[g];
-    nAll += count[g];
-    for (let i = 0; i < NREASONS; i++) colCounts[i] += gCounts[g * NREASONS + i];
-  }
+  const nAll = tally(cursor, start, gCounts, count, colCounts);
   const store = new DescriptiveStore(ordered, start, count, nAll);
 
   // The whole column's fit: computed while scoring when a group needs it, else on the first read
@@ -223,7 +218,14 @@ function scoreColumn(
   };
 
   // 3. Fit each group on what its method needs.
-  const { fits, scoringSummaries, groupFallbacks, flat } = fitGroups(method, opts, yOrdered, start, count, shared.scratch, column);
+  const fits: Fit[] = new Array(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
+  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const flat: FlatFits = {
+    fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
+    unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
+  };
+  fitGroups(method, opts, yOrdered, start, count, shared.scratch, column, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
   scoring = false;
 
@@ -241,12 +243,8 @@ function scoreColumn(
   // 5. Per-group results (descriptive fields lazy).
   const bits = SCORING_FIELDS[method.id];
   const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, groupFallbacks, popOf);
-  let flaggedRows = 0;
-  let pooledFlagged = 0;
-  for (let g = 0; g < nGroups; g++) {
-    flaggedRows += flaggedPerGroup[g];
-    if (popOf[g] === POP_COLUMN) pooledFlagged += flaggedPerGroup[g];
-  }
+  const flaggedRows = sumOf(flaggedPerGroup, popOf, -1);
+  const pooledFlagged = sumOf(flaggedPerGroup, popOf, POP_COLUMN);
 
   // The whole column as one population, built on first read (its fit is computed then if scoring
   // did not need it).
@@ -287,20 +285,15 @@ function scoreColumn(
 /**
  * Fits every group on the statistics its method needs (`summarizeFor` on the group's slice of
  * `yOrdered`, with one reused scratch); small groups take the whole column's fit ('pool') or none
- * ('skip'). Returns the fits, flattened to typed arrays for the row pass as well.
+ * ('skip'). Writes the fits, and the same flattened to typed arrays for the row pass, into the
+ * arrays given (a plain return after the loop: see `codeKeyColumn` on deoptimization).
  */
 function fitGroups(
   method: ScoringMethod, opts: Required<ScoreOptions>, yOrdered: Float64Array, start: Int32Array, count: Int32Array,
   scratch: Float64Array, column: () => { s: Summary; fit: Fit },
-): { fits: Fit[]; scoringSummaries: (Summary | null)[]; groupFallbacks: Fallback[][]; flat: FlatFits } {
+  fits: Fit[], scoringSummaries: (Summary | null)[], groupFallbacks: Fallback[][], flat: FlatFits,
+): void {
   const nGroups = count.length;
-  const fits: Fit[] = new Array(nGroups);
-  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
-  const flat: FlatFits = {
-    fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups), unit: new Float64Array(nGroups), center: new Float64Array(nGroups),
-    scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
-  };
   const columnSummary = (): Summary => column().s;
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
@@ -337,7 +330,24 @@ function fitGroups(
     flat.cs[2 * g] = fast ? fit.center : NaN;
     flat.cs[2 * g + 1] = fast ? fit.scale : NaN;
   }
-  return { fits, scoringSummaries, groupFallbacks, flat };
+}
+
+/** Usable values per group (count, returned total) and exclusions per reason for the column. */
+function tally(cursor: Int32Array, start: Int32Array, gCounts: Int32Array, count: Int32Array, colCounts: Int32Array): number {
+  let nAll = 0;
+  for (let g = 0; g < count.length; g++) {
+    count[g] = cursor[g] - start[g];
+    nAll += count[g];
+    for (let i = 0; i < NREASONS; i++) colCounts[i] += gCounts[g * NREASONS + i];
+  }
+  return nAll;
+}
+
+/** Sum of `values` over the groups whose population code is `pop` (-1: all groups). */
+function sumOf(values: Int32Array, popOf: Uint8Array, pop: number): number {
+  let sum = 0;
+  for (let g = 0; g < values.length; g++) if (pop < 0 || popOf[g] === pop) sum += values[g];
+  return sum;
 }
 
 /** One GroupStats per group, descriptive fields lazy (see lazyStats.ts). */
@@ -513,17 +523,19 @@ function scoreRows(
 ): number {
   const hi = direction !== 'low' ? 1 : 0;
   const lo = direction !== 'high' ? 1 : 0;
-  let anyFast = false;
-  let anyOther = false;
-  for (let g = 0; g < fits.fast.length; g++) {
-    if (fits.fast[g] === 1) anyFast = true;
-    else if (fits.kind[g] !== KIND_NONE) anyOther = true;
-  }
+  const anyFast = fits.fast.includes(1);
+  const anyOther = hasOther(fits.fast, fits.kind);
   let count = 0;
   if (anyFast) count += scoreFastRows(fits.cs, fits.popOf, groupOf, cutoff, hi, lo, y, scores, flagged, population, flaggedPerGroup);
   else scores.fill(NaN);
   if (anyOther) count += scoreOtherRows(fits, groupOf, cutoff, hi, lo, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
   return count;
+}
+
+/** True when some scored group is not fast. */
+function hasOther(fast: Uint8Array, kind: Uint8Array): boolean {
+  for (let g = 0; g < fast.length; g++) if (fast[g] === 0 && kind[g] !== KIND_NONE) return true;
+  return false;
 }
 
 /**

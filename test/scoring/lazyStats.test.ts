@@ -1,0 +1,144 @@
+import * as ss from 'simple-statistics';
+import { describe, expect, it } from 'vitest';
+import {
+  MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
+} from '../../src/scoring/index.js';
+import { near, rng, rStats } from './helpers.js';
+
+// The descriptive fields of GroupStats that scoring does not need are computed on first read
+// (src/scoring/lazyStats.ts). These tests check them against outside implementations and check
+// that they behave as ordinary fields (JSON, spread, `in`, Object.keys).
+
+const DESCRIPTIVE = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
+const ALL_FIELDS = [
+  'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3',
+  'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'maxAttainableZ',
+];
+const METHODS: MethodId[] = ['robust', 'classic', 'iqr'];
+
+const score = (amounts: RawCell[], keys: RawCell[], method: MethodId, extra: Partial<ScoreOptions> = {}): ColumnScores =>
+  scoreTable(
+    { valueColumns: [{ name: 'Amount', cells: amounts }], groupColumns: [{ name: 'Cost centre', cells: keys }] },
+    { method, direction: 'both', logScale: false, minGroupSize: 5, smallGroups: 'pool', ...extra },
+  ).columns[0];
+
+/** The same statistics from simple-statistics 7.12 (its quantile is type 7, its MAD unscaled). */
+function reference(x: number[]): Record<(typeof DESCRIPTIVE)[number], number | null> {
+  const med = ss.median(x);
+  const rawMad = ss.medianAbsoluteDeviation(x);
+  return {
+    median: med,
+    mad: rawMad,
+    scaledMad: MAD_NORMAL_CONSTANT * rawMad,
+    meanAbsDev: ss.mean(x.map((v) => Math.abs(v - med))),
+    mean: ss.mean(x),
+    sd: x.length >= 2 ? ss.sampleStandardDeviation(x) : null,
+    q1: ss.quantile(x, 0.25),
+    q3: ss.quantile(x, 0.75),
+  };
+}
+
+describe('lazy descriptive fields equal an eager computation (simple-statistics 7.12)', () => {
+  // Invented claims: 6 cost centres of different sizes (one below the minimum, so pooled), skewed amounts.
+  const r = rng(2024);
+  const keys: RawCell[] = [];
+  const amounts: RawCell[] = [];
+  const sizes = [40, 3, 17, 120, 9, 64];
+  sizes.forEach((size, c) => {
+    for (let i = 0; i < size; i++) {
+      keys.push(`CC-${410 + c}`);
+      amounts.push(Math.round(Math.exp(4 + c / 3 + r() * 1.5) * 100) / 100);
+    }
+  });
+  for (const method of METHODS) {
+    it(`${method}: every descriptive field of every group and of the whole column`, () => {
+      const col = score(amounts, keys, method);
+      col.groups.forEach((g, gi) => {
+        const x = amounts.filter((_, i) => keys[i] === `CC-${410 + gi}`) as number[];
+        const want = reference(x);
+        for (const f of DESCRIPTIVE) {
+          const got = g[f];
+          const w = want[f];
+          if (w === null) expect(got).toBeNull();
+          else expect(near(got as number, w, 1e-12)).toBe(true);
+        }
+      });
+      const whole = reference(amounts as number[]);
+      for (const f of DESCRIPTIVE) expect(near(col.pooled[f] as number, whole[f] as number, 1e-12)).toBe(true);
+    });
+  }
+  it('a lazy field read twice gives the same number, and reading it changes no score or flag', () => {
+    const col = score(amounts, keys, 'classic');
+    const scores = Float64Array.from(col.scores);
+    const flags = Uint8Array.from(col.flagged);
+    const first = col.groups.map((g) => g.median);
+    expect(col.groups.map((g) => g.median)).toEqual(first);
+    expect(Array.from(col.scores)).toEqual(Array.from(scores));
+    expect(Array.from(col.flagged)).toEqual(Array.from(flags));
+  });
+});
+
+describe('lazy fields against R 4.2 (test/reference/r-stats.json)', () => {
+  for (const method of METHODS) {
+    it(`${method}: median, MAD, mean, sd, Q1, Q3 and mean abs. deviation of each R set`, () => {
+      for (const d of Object.values(rStats())) {
+        const g = score(d.x, d.x.map(() => 'CC-410'), method, { minGroupSize: 1 }).groups[0];
+        expect(near(g.median!, d.median)).toBe(true);
+        expect(near(g.scaledMad!, d.mad)).toBe(true);
+        expect(near(g.mad!, d.mad1)).toBe(true);
+        expect(near(g.mean!, d.mean, 1e-14)).toBe(true);
+        expect(near(g.sd!, d.sd, 1e-13)).toBe(true);
+        expect(near(g.q1!, d.q1) && near(g.q3!, d.q3)).toBe(true);
+        expect(near(g.meanAbsDev!, d.meanAbsDevMedian, 1e-13)).toBe(true);
+      }
+    });
+  }
+  it('log scale: descriptive fields stay in amounts (R), the centre is on the log scale', () => {
+    const d = rStats().lognormal40;
+    const g = score(d.x, d.x.map(() => 'A'), 'robust', { logScale: true, minGroupSize: 1 }).groups[0];
+    expect(near(g.median!, d.median)).toBe(true);
+    expect(near(g.mean!, d.mean, 1e-14)).toBe(true);
+    expect(near(g.center!, ss.median(d.x.map(Math.log)), 1e-12)).toBe(true); // centre: median of ln amounts (simple-statistics)
+  });
+});
+
+describe('lazy fields behave as ordinary own fields', () => {
+  const col = score([100, 102, 98, 101, 99, 103, 97, 100, 5000, 40, 41], ['A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'B', 'B'], 'robust');
+  const check = (g: GroupStats): void => {
+    const json = JSON.parse(JSON.stringify(g)) as Record<string, unknown>;
+    expect(Object.keys(json)).toEqual(ALL_FIELDS); // declaration order, every field
+    for (const f of DESCRIPTIVE) {
+      expect(f in g).toBe(true);
+      expect(json[f]).toBe(g[f]);
+      const d = Object.getOwnPropertyDescriptor(g, f);
+      expect(d?.enumerable).toBe(true);
+      expect(typeof d?.get).toBe('function');
+    }
+    const spread = { ...g };
+    expect(Object.keys(spread)).toEqual(ALL_FIELDS);
+    expect(spread.mean).toBe(g.mean);
+    expect(Object.getOwnPropertyDescriptor(spread, 'mean')?.value).toBe(g.mean); // a copy holds plain values
+  };
+  it('JSON.stringify, spread, `in` and Object.keys see every field of a group', () => {
+    check(col.groups[0]);
+    check(col.groups[1]); // n = 2 < minimum: pooled, every descriptive field lazy
+  });
+  it('the whole column (`pooled`) too, and `pooled` itself is an own enumerable field of ColumnScores', () => {
+    check(col.pooled);
+    expect(Object.keys(col)).toContain('pooled');
+    expect(JSON.parse(JSON.stringify({ pooled: col.pooled })).pooled.n).toBe(11);
+    expect(col.pooled).toBe(col.pooled); // built once, then cached
+  });
+  it("a small group's pooled rows are scored against the whole column's median and scaled MAD", () => {
+    // R: median(c(100,102,98,101,99,103,97,100,5000,40,41)) = 100; mad(...) = 2.9652 (1.4826 x 2)
+    expect(col.pooled.median).toBe(100);
+    expect(near(col.pooled.scaledMad!, 2.9652, 1e-12)).toBe(true);
+    expect(near(col.scores[9], (40 - 100) / 2.9652, 1e-12)).toBe(true);
+  });
+  it('empty and one-value groups give null, not NaN, for lazy fields', () => {
+    const c = score(['x', 5], ['E', 'S'], 'classic', { minGroupSize: 1 });
+    for (const f of DESCRIPTIVE) expect(c.groups[0][f]).toBeNull();
+    expect(c.groups[1].sd).toBeNull();
+    expect(c.groups[1].median).toBe(5);
+  });
+});
