@@ -19,6 +19,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import ExcelJS from 'exceljs';
+import { mulberry32 } from '../src/demo/random.js';
 
 const SHEET_ROWS = 1_048_576; // rows in a worksheet
 const CSV_ROWS = SHEET_ROWS - 1; // data rows under one header row
@@ -34,17 +35,6 @@ interface ChildResult {
   out: string;
 }
 
-/** mulberry32 (public domain): deterministic invented data. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const CENTRES = Array.from({ length: 40 }, (_, i) => `CC-${100 + i * 7}`);
 const CATEGORIES: [string, number][] = [

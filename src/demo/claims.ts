@@ -16,6 +16,7 @@
  * - notes that begin with "=" or "+", which every sink must write as text.
  */
 import type { CellError, RawCell } from '../scoring/types.js';
+import { mulberry32 } from './random.js';
 
 export const DEMO_COMPANY = 'Oskavel Instruments (an invented company)';
 export const DEMO_SHEET = 'Claims';
@@ -73,17 +74,6 @@ const LAST_B = ['ley', 'ov', 'ard', 'enby', 'ith', 'ask'];
 
 const NOTE_TEXT = ['Client visit', 'Team offsite', 'Trade fair', 'Site survey', 'Supplier audit', 'Training day'];
 
-/** mulberry32: a small, well-mixed 32-bit PRNG (public domain, T. Ettinger). Returns [0, 1). */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function normal(rand: () => number): number {
   // Box-Muller; 1 - u keeps the log argument in (0, 1].

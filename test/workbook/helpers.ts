@@ -2,20 +2,12 @@
 import { SandboxWorkbook, sandboxFromRows } from '../../src/sandbox/index.js';
 import { createWorkbookLayer, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
 import type { RunSettings } from '../../src/workbook/api.js';
+import { mulberry32 } from '../../src/demo/random.js';
 
 export const HEADERS = ['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount'] as const;
 
 /** Deterministic pseudo-random generator (mulberry32), so fixtures are the same every run. */
-export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const rng = mulberry32;
 
 /**
  * n invented claims: 4 cost centres x 3 categories; amounts around 100 with a few planted large ones

@@ -1,0 +1,15 @@
+/**
+ * mulberry32: a small, well-mixed 32-bit pseudo-random generator (public domain, T. Ettinger).
+ * Returns a function yielding numbers in [0, 1). Used for the invented demo data, benchmarks and test
+ * fixtures, so that every run produces the same data.
+ */
+export function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
