@@ -1,7 +1,7 @@
 import * as ss from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import {
-  MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
+  groupRows, KEY_SEPARATOR, keyPart, MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
 } from '../../src/scoring/index.js';
 import { near, rng, rStats } from './helpers.js';
 
@@ -141,4 +141,54 @@ describe('lazy fields behave as ordinary own fields', () => {
     expect(c.groups[1].sd).toBeNull();
     expect(c.groups[1].median).toBe(5);
   });
+});
+
+describe('grouping fast paths give the same groups as joining key texts (reference written here, row by row)', () => {
+  const naive = (cols: RawCell[][], rows: number): { groupOf: number[]; keys: string[] } => {
+    const byKey = new Map<string, number>();
+    const keys: string[] = [];
+    const groupOf: number[] = [];
+    for (let r = 0; r < rows; r++) {
+      const key = cols.map((c) => keyPart(c[r])).join(KEY_SEPARATOR);
+      let g = byKey.get(key);
+      if (g === undefined) {
+        g = keys.length;
+        keys.push(key);
+        byKey.set(key, g);
+      }
+      groupOf.push(g);
+    }
+    return { groupOf, keys };
+  };
+  const r = rng(99);
+  const cell = (i: number): RawCell => {
+    const u = r();
+    if (u < 0.05) return null;
+    if (u < 0.1) return ` K${i} `; // padded text: same group as "K<i>"
+    if (u < 0.2) return i; // a number: same group as the text "<i>"
+    if (u < 0.25) return String(i);
+    return `K${i}`;
+  };
+  for (const [label, columns, distinct, rows] of [
+    ['one key column, shuffled', 1, 50, 3000],
+    ['one key column, sorted runs', 1, 20, 3000],
+    ['two key columns (direct table)', 2, 30, 3000],
+    ['two key columns with many values (Map of pair codes)', 2, 400, 1000],
+    ['three key columns', 3, 12, 3000],
+  ] as const) {
+    it(label, () => {
+      const cols: RawCell[][] = Array.from({ length: columns }, () => []);
+      for (let i = 0; i < rows; i++) {
+        for (let c = 0; c < columns; c++) {
+          const v = label.includes('sorted') ? Math.floor((i * distinct) / rows) : Math.floor(r() * distinct);
+          cols[c].push(cell(v));
+        }
+      }
+      const got = groupRows(cols.map((cells) => ({ cells })), rows);
+      const want = naive(cols, rows);
+      expect(Array.from(got.groupOf)).toEqual(want.groupOf);
+      expect(got.keys).toEqual(want.keys);
+      want.keys.forEach((_, g) => expect(got.start[g + 1] - got.start[g]).toBe(want.groupOf.filter((x) => x === g).length));
+    });
+  }
 });
