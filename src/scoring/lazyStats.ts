@@ -35,23 +35,34 @@ export const SCORING_FIELDS: Readonly<Record<MethodId, number>> = {
 
 /**
  * The retained values of one column: group g's usable values (original units) at
- * `ordered[start[g] .. start[g] + count[g] - 1]`. Summaries are computed on a scratch copy, so
- * `ordered` is never changed.
+ * `ordered[start[g] .. start[g] + count[g] - 1]`, in any order within the group (the slices may
+ * have been permuted by the selections of scoring). `source` is either that buffer or a function
+ * building it, called on the first read that needs it (so a method whose scoring needs no
+ * group-ordered copy never pays for one). Summaries are computed on a scratch copy, so `ordered`
+ * is never changed.
  */
 export class DescriptiveStore {
   private readonly cache: (Summary | undefined)[];
   private wholeCache: Summary | undefined;
   private scratch: Float64Array | null = null;
   private dev: Float64Array | null = null;
+  private source: Float64Array | (() => Float64Array);
 
   constructor(
-    private readonly ordered: Float64Array,
+    source: Float64Array | (() => Float64Array),
     private readonly start: Int32Array,
     private readonly count: Int32Array,
     /** Usable values in the whole column (sum of count). */
     readonly total: number,
   ) {
+    this.source = source;
     this.cache = new Array<Summary | undefined>(count.length);
+  }
+
+  /** The group-ordered values (built on first use when given as a function). */
+  private get ordered(): Float64Array {
+    if (typeof this.source === 'function') this.source = this.source();
+    return this.source;
   }
 
   /** Full summary of group g (cached). */
@@ -68,7 +79,8 @@ export class DescriptiveStore {
         this.dev = new Float64Array(max);
       }
       const from = this.start[g];
-      this.scratch.set(this.ordered.subarray(from, from + n));
+      const ordered = this.ordered;
+      this.scratch.set(ordered.subarray(from, from + n));
       s = summarize(this.scratch, n, this.dev);
     }
     this.cache[g] = s;
@@ -86,12 +98,13 @@ export class DescriptiveStore {
   /** A fresh array of every usable value of the column, group by group (optionally mapped, e.g. Math.log). */
   gather(map?: (x: number) => number): Float64Array {
     const out = new Float64Array(this.total);
+    const ordered = this.ordered;
     let k = 0;
     for (let g = 0; g < this.count.length; g++) {
       const from = this.start[g];
       const n = this.count[g];
-      if (map === undefined) out.set(this.ordered.subarray(from, from + n), k);
-      else for (let i = 0; i < n; i++) out[k + i] = map(this.ordered[from + i]);
+      if (map === undefined) out.set(ordered.subarray(from, from + n), k);
+      else for (let i = 0; i < n; i++) out[k + i] = map(ordered[from + i]);
       k += n;
     }
     return out;
@@ -110,15 +123,6 @@ interface LazyRef {
   readonly scoringBits: number;
 }
 
-/** Non-enumerable own property holding an object's LazyRef (invisible to JSON, spread and Object.keys). */
-const REF: unique symbol = Symbol('GroupStats source');
-
-function refOf(o: object): LazyRef {
-  const r = (o as { [REF]?: LazyRef })[REF];
-  if (r === undefined) throw new Error('GroupStats field read on an object that is not a GroupStats.');
-  return r;
-}
-
 function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
   const n = ref.n;
   if (n === 0 || (f === 'sd' && n < 2)) return null;
@@ -129,14 +133,6 @@ function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
   const scaled = MAD_NORMAL_CONSTANT * v;
   return Number.isFinite(scaled) ? scaled : null;
 }
-
-/** The source slot plus one shared accessor per descriptive field (the getter finds its group through `REF`). */
-const DESCRIPTORS: PropertyDescriptorMap = {
-  [REF]: { value: undefined, writable: true, enumerable: false, configurable: false },
-  ...Object.fromEntries(
-    DESCRIPTIVE_FIELDS.map((f) => [f, { enumerable: true, configurable: true, get(this: object) { return fieldValue(refOf(this), f); } }]),
-  ),
-};
 
 export interface StatsHead {
   readonly key: string;
@@ -161,20 +157,28 @@ export interface StatsTail {
 /**
  * A GroupStats whose descriptive fields are lazy (see the top of this file), fields in the
  * declaration order of `GroupStats`. `g` = group index in `store`, -1 = the whole column.
+ * One object literal with getters (own, enumerable, configurable accessors closing over the
+ * group's source): much cheaper to create than `Object.defineProperties` per object.
  */
 export function lazyGroupStats(head: StatsHead, store: DescriptiveStore, g: number, scoring: Summary | null, scoringBits: number, tail: StatsTail): GroupStats {
-  const o: Record<string | symbol, unknown> = {
+  const ref: LazyRef = { store, g, n: head.n, scoring, scoringBits };
+  return {
     key: head.key, label: head.label, keyParts: head.keyParts, rows: head.rows, n: head.n, excluded: head.excluded,
+    get median() { return fieldValue(ref, 'median'); },
+    get mad() { return fieldValue(ref, 'mad'); },
+    get scaledMad() { return fieldValue(ref, 'scaledMad'); },
+    get meanAbsDev() { return fieldValue(ref, 'meanAbsDev'); },
+    get mean() { return fieldValue(ref, 'mean'); },
+    get sd() { return fieldValue(ref, 'sd'); },
+    get q1() { return fieldValue(ref, 'q1'); },
+    get q3() { return fieldValue(ref, 'q3'); },
+    center: tail.center,
+    scale: tail.scale,
+    lower: tail.lower,
+    upper: tail.upper,
+    flagged: tail.flagged,
+    fallbacks: tail.fallbacks,
+    population: tail.population,
+    maxAttainableZ: tail.maxAttainableZ,
   };
-  Object.defineProperties(o, DESCRIPTORS);
-  o[REF] = { store, g, n: head.n, scoring, scoringBits };
-  o.center = tail.center;
-  o.scale = tail.scale;
-  o.lower = tail.lower;
-  o.upper = tail.upper;
-  o.flagged = tail.flagged;
-  o.fallbacks = tail.fallbacks;
-  o.population = tail.population;
-  o.maxAttainableZ = tail.maxAttainableZ;
-  return o as unknown as GroupStats;
 }

@@ -6,7 +6,7 @@ import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
 import { summarizeFor } from './summarizeFor.js';
-import { real, type Summary } from './summary.js';
+import { EMPTY_SUMMARY, real, type Summary } from './summary.js';
 import {
   type ColumnScores,
   DEFAULT_OPTIONS,
@@ -79,10 +79,12 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  *    into one numeric code; group sizes -> counting-sort offsets), shared by every value column;
  * 2. per value column, parse each cell once into a Float64Array (plain finite numbers take a
  *    fast path without `parseCell`), with an exclusion code per row;
- * 3. counting sort: scatter the usable values into one group-ordered Float64Array, kept for the
- *    lazy statistics below;
+ * 3. classic (no order statistic needed): per-group count, sum, min and max accumulated in row
+ *    order while parsing, then one more row-order pass for the corrected two-pass SD
+ *    (`classicInRowOrder`), with no group-ordered copy. Robust and IQR: counting sort, scattering
+ *    the usable scoring values into group order in one work buffer shared by the value columns;
  * 4. per group, compute only what the method scores with (`summarizeFor`: robust median and MAD,
- *    classic mean and SD, IQR quartiles; quickselect on one reused scratch array) — O(n) per
+ *    IQR quartiles; quickselect in place on the group's slice of the work buffer) — O(n) per
  *    group — and let the method fit centre / scale / bounds;
  * 5. score and flag every row in one pass in row order (per-group fits flattened to typed arrays).
  * Groups with fewer than `minGroupSize` usable values are compared with the whole column
@@ -90,15 +92,17 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  *
  * Laziness: the other descriptive fields of each `GroupStats` (e.g. mean and SD under robust,
  * median, MAD and quartiles under classic; all of them on log scale, where they are in original
- * units) are computed on first read and cached (see `lazyStats.ts`); they are own enumerable
+ * units) are computed on first read and cached (see `lazyStats.ts`) from a group-ordered copy
+ * that is itself built on the first such read from the column's `values`, `exclusion` and
+ * `groupOf` (so callers must not mutate those, see `ColumnScores`); they are own enumerable
  * accessor properties, so JSON, spread and `in` see them. `ColumnScores.pooled` (the whole
  * column as one population) is likewise built on first read, unless scoring needed it (a pooled
  * small group, or an IQR group borrowing the column's IQR), in which case its fit is computed
- * while scoring. A read never changes a score or flag.
+ * while scoring (which builds the copy then). A read never changes a score or flag.
  *
- * Cost: O(rows x (key columns + value columns)) expected time; memory about 34 bytes per row per
- * value column (8 more on log scale) plus 4 bytes per row of grouping and a scratch as large as
- * the largest group.
+ * Cost: O(rows x (key columns + value columns)) expected time; memory about 27 bytes per row per
+ * value column (8 more on log scale), plus 4 bytes per row of grouping, 8 per row of work buffer
+ * (robust, IQR) and, once a lazy field is read, 8 per row of group-ordered copy.
  *
  * Throws (with a message naming the column or option) when columns differ in length or an
  * option is invalid. Never mutates the input.
@@ -113,11 +117,8 @@ export function scoreTable(input: ScoreInput, options: ScoreOptions): ScoreResul
     }
   }
   const grouping = groupRows(input.groupColumns, rowCount);
-  let largest = 0;
-  for (let g = 0; g < grouping.keys.length; g++) largest = Math.max(largest, grouping.start[g + 1] - grouping.start[g]);
   const shared: Shared = {
-    scratch: new Float64Array(largest),
-    logOrdered: opts.logScale && input.valueColumns.length > 0 ? new Float64Array(rowCount) : null,
+    work: method.id !== 'classic' && input.valueColumns.length > 0 ? new Float64Array(rowCount) : null,
   };
   const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method, shared));
   return { options: opts, rowCount, groupColumns: input.groupColumns.map((c) => c.name), columns };
@@ -125,10 +126,11 @@ export function scoreTable(input: ScoreInput, options: ScoreOptions): ScoreResul
 
 /** Scratch shared by the value columns of one table. */
 interface Shared {
-  /** As long as the largest group: quickselect scratch. */
-  readonly scratch: Float64Array;
-  /** Log scale: ln of the usable values in group order (the ordered buffer keeps original units). */
-  readonly logOrdered: Float64Array | null;
+  /**
+   * Methods with order statistics (robust, IQR): the scoring values of the column being scored in
+   * group order, selected in place by the fits (so overwritten); null for classic.
+   */
+  readonly work: Float64Array | null;
 }
 
 const R = (reason: ExclusionReason): number => EXCLUSION_REASONS.indexOf(reason);
@@ -173,45 +175,61 @@ function scoreColumn(
   const exclusion = new Uint8Array(rowCount);
   const logScale = opts.logScale;
   const y = logScale ? new Float64Array(rowCount) : values;
-
-  // 1-2. Parse each cell once and scatter the usable values into group order (counting sort: one
-  //    sequential pass, one write cursor per group), counting exclusions per group. `ordered`
-  //    (original units) is kept for the lazy statistics; on log scale the scoring scale (ln) goes
-  //    to the shared `logOrdered` too. Linear scale does parse and scatter in one pass.
   const { start, groupOf } = grouping;
   const nGroups = grouping.keys.length;
-  const ordered = new Float64Array(rowCount);
-  const yOrdered = shared.logOrdered ?? ordered;
-  const cursor = start.slice(0, nGroups);
   const gCounts = new Int32Array(nGroups * NREASONS);
-  if (logScale) {
-    parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
-    scatter(groupOf, exclusion, values, y, ordered, yOrdered, cursor, gCounts);
-  } else {
-    parseAndScatter(cells, groupOf, values, exclusion, ordered, cursor, gCounts, opts.decimalComma);
-  }
   const count = new Int32Array(nGroups);
   const colCounts = new Int32Array(NREASONS);
-  const nAll = tally(cursor, start, gCounts, count, colCounts);
-  const store = new DescriptiveStore(ordered, start, count, nAll);
+  // Classic needs no order statistic: its mean and SD are accumulated per group in row order
+  // (`classicInRowOrder`), and the group-ordered copy is built only if a lazy field needs it.
+  const rowOrder = method.id === 'classic';
+  let yOrdered: Float64Array | null = null;
+  let pre: Summary[] | null = null;
+  let nAll: number;
+  if (rowOrder) {
+    // 1. Parse each cell once, accumulating per-group count, sum, min and max on the way.
+    const acc = new Float64Array(4 * nGroups);
+    for (let g = 0; g < nGroups; g++) {
+      acc[4 * g + 1] = Infinity;
+      acc[4 * g + 2] = -Infinity;
+    }
+    if (logScale) {
+      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      accumulate(groupOf, exclusion, y, acc, count, gCounts);
+    } else {
+      parseAndAccumulate(cells, groupOf, values, exclusion, acc, count, gCounts, opts.decimalComma);
+    }
+    nAll = tallyCounts(count, gCounts, colCounts);
+    pre = classicInRowOrder(groupOf, exclusion, y, acc, count, start);
+  } else {
+    // 1-2. Parse each cell once and scatter the usable scoring values (ln on log scale) into
+    //    group order in the table's shared work buffer (counting sort: one sequential pass, one
+    //    write cursor per group), counting exclusions per group. Linear scale does parse and
+    //    scatter in one pass. The fits select in place there (destroying it), so the lazy
+    //    statistics build their own copy from the column's results when first read.
+    if (shared.work === null) throw new Error('internal: no work buffer');
+    yOrdered = shared.work;
+    const cursor = start.slice(0, nGroups);
+    if (logScale) {
+      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      scatter(groupOf, exclusion, y, yOrdered, cursor, gCounts);
+    } else {
+      parseAndScatter(cells, groupOf, values, exclusion, yOrdered, cursor, gCounts, opts.decimalComma);
+    }
+    for (let g = 0; g < nGroups; g++) count[g] = cursor[g] - start[g];
+    nAll = tallyCounts(count, gCounts, colCounts);
+  }
+  // The group-ordered copy (original units), from the column's own result arrays, built on first
+  // need (see ColumnScores: result arrays must not be mutated by callers).
+  const store = new DescriptiveStore(() => buildOrdered(values, exclusion, groupOf, start, count), start, count, nAll);
 
   // The whole column's fit: computed while scoring when a group needs it, else on the first read
-  // of `pooled`. Its values come from `yOrdered` while this column is being scored, and from
-  // `ordered` (ln applied again on log scale: the same values) afterwards.
+  // of `pooled`; from the store's group-ordered values (ln applied on log scale: the same values
+  // scored), group by group.
   let colFit: { s: Summary; fit: Fit } | null = null;
-  let scoring = true;
   const column = (): { s: Summary; fit: Fit } => {
     if (colFit !== null) return colFit;
-    let all: Float64Array;
-    if (!logScale) all = store.gather();
-    else if (scoring) {
-      all = new Float64Array(nAll);
-      let k = 0;
-      for (let g = 0; g < nGroups; g++) {
-        all.set(yOrdered.subarray(start[g], start[g] + count[g]), k);
-        k += count[g];
-      }
-    } else all = store.gather(Math.log);
+    const all = logScale ? store.gather(Math.log) : store.gather();
     const s = summarizeFor(method.id, all, 0, nAll, all);
     colFit = { s, fit: method.fit(s, opts.cutoff, opts.direction, () => s) };
     return colFit;
@@ -225,9 +243,8 @@ function scoreColumn(
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
   };
-  fitGroups(method, opts, yOrdered, start, count, shared.scratch, column, fits, scoringSummaries, groupFallbacks, flat);
+  fitGroups(method, opts, yOrdered, pre, start, count, column, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
-  scoring = false;
 
   // 4. Score every row in row order.
   const scores = new Float64Array(rowCount); // every row is written by scoreRows
@@ -283,14 +300,15 @@ function scoreColumn(
 }
 
 /**
- * Fits every group on the statistics its method needs (`summarizeFor` on the group's slice of
- * `yOrdered`, with one reused scratch); small groups take the whole column's fit ('pool') or none
+ * Fits every group on the statistics its method needs (classic: the summaries `pre` computed in
+ * row order; otherwise `summarizeFor` in place on the group's slice of `yOrdered`, which it
+ * permutes and overwrites); small groups take the whole column's fit ('pool') or none
  * ('skip'). Writes the fits, and the same flattened to typed arrays for the row pass, into the
  * arrays given (a plain return after the loop: see `codeKeyColumn` on deoptimization).
  */
 function fitGroups(
-  method: ScoringMethod, opts: Required<ScoreOptions>, yOrdered: Float64Array, start: Int32Array, count: Int32Array,
-  scratch: Float64Array, column: () => { s: Summary; fit: Fit },
+  method: ScoringMethod, opts: Required<ScoreOptions>, yOrdered: Float64Array | null, pre: readonly Summary[] | null,
+  start: Int32Array, count: Int32Array, column: () => { s: Summary; fit: Fit },
   fits: Fit[], scoringSummaries: (Summary | null)[], groupFallbacks: Fallback[][], flat: FlatFits,
 ): void {
   const nGroups = count.length;
@@ -302,7 +320,12 @@ function fitGroups(
     let fallbacks: Fallback[];
     let s: Summary | null = null;
     if (n >= opts.minGroupSize) {
-      s = summarizeFor(method.id, yOrdered, start[g], n, scratch);
+      // In place on the group's slice (no scratch copy): only its order within the slice changes.
+      if (pre !== null) s = pre[g];
+      else if (yOrdered !== null) {
+        const slice = yOrdered.subarray(start[g], start[g] + n);
+        s = summarizeFor(method.id, slice, 0, n, slice);
+      } else throw new Error('internal: no values to fit');
       fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
       popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
       fallbacks = dedupe(fit.fallbacks);
@@ -332,15 +355,155 @@ function fitGroups(
   }
 }
 
-/** Usable values per group (count, returned total) and exclusions per reason for the column. */
-function tally(cursor: Int32Array, start: Int32Array, gCounts: Int32Array, count: Int32Array, colCounts: Int32Array): number {
+/** Sums the exclusions per reason of every group into `colCounts`; returns the usable values of the column. */
+function tallyCounts(count: Int32Array, gCounts: Int32Array, colCounts: Int32Array): number {
   let nAll = 0;
   for (let g = 0; g < count.length; g++) {
-    count[g] = cursor[g] - start[g];
     nAll += count[g];
     for (let i = 0; i < NREASONS; i++) colCounts[i] += gCounts[g * NREASONS + i];
   }
   return nAll;
+}
+
+/**
+ * The usable values of a column (original units, from `values` where `exclusion` is 0) in group
+ * order, each group's in row order (counting sort on `start`; `count` = usable values per group).
+ */
+function buildOrdered(values: Float64Array, exclusion: Uint8Array, groupOf: Int32Array, start: Int32Array, count: Int32Array): Float64Array {
+  let total = 0;
+  for (let g = 0; g < count.length; g++) total += count[g];
+  // Positions are those of `start` (rows, usable or not) so the slices match the store's offsets.
+  const ordered = new Float64Array(total === 0 ? 0 : start[start.length - 1]);
+  const cursor = start.slice(0, count.length);
+  const n = values.length;
+  for (let r = 0; r < n; r++) if (exclusion[r] === 0) ordered[cursor[groupOf[r]]++] = values[r];
+  return ordered;
+}
+
+/**
+ * Linear scale, classic: parse every cell (plain finite numbers on a fast path without a call,
+ * other cells through `parseCell`) and accumulate per group, in row order, the usable count and,
+ * at `acc[4g ..]`, sum, min and max (min and max start at +/-Infinity); exclusions are counted per
+ * group and reason in `gCounts`. Same parsing as `parseColumn`.
+ */
+function parseAndAccumulate(
+  cells: ArrayLike<RawCell>, groupOf: Int32Array, values: Float64Array, exclusion: Uint8Array,
+  acc: Float64Array, count: Int32Array, gCounts: Int32Array, decimalComma: boolean,
+): void {
+  const n = values.length;
+  const parseOptions = { decimalComma };
+  for (let r = 0; r < n; r++) {
+    const c = cells[r];
+    const g = groupOf[r];
+    let v: number;
+    if (typeof c === 'number' && c - c === 0) v = c;
+    else {
+      const p = parseCell(c, parseOptions);
+      if (!p.ok) {
+        values[r] = NaN;
+        const e = REASON_CODE[p.reason];
+        exclusion[r] = e;
+        gCounts[g * NREASONS + e - 1]++;
+        continue;
+      }
+      v = p.value;
+    }
+    values[r] = v;
+    count[g]++;
+    const o = 4 * g;
+    acc[o] += v;
+    if (v < acc[o + 1]) acc[o + 1] = v;
+    if (v > acc[o + 2]) acc[o + 2] = v;
+  }
+}
+
+/** As `parseAndAccumulate`, on already parsed scoring values `y` (usable where `exclusion` is 0). */
+function accumulate(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, acc: Float64Array, count: Int32Array, gCounts: Int32Array): void {
+  const n = y.length;
+  for (let r = 0; r < n; r++) {
+    const g = groupOf[r];
+    const e = exclusion[r];
+    if (e !== 0) {
+      gCounts[g * NREASONS + e - 1]++;
+      continue;
+    }
+    const v = y[r];
+    count[g]++;
+    const o = 4 * g;
+    acc[o] += v;
+    if (v < acc[o + 1]) acc[o + 1] = v;
+    if (v > acc[o + 2]) acc[o + 2] = v;
+  }
+}
+
+const BIG = 2 ** 500;
+const SMALL = 2 ** -500;
+
+/**
+ * Classic summaries (mean and sample SD) of every group without a group-ordered copy: given the
+ * per-group count, sum, min and max of the usable `y` (`acc`, see `parseAndAccumulate`), one more
+ * pass in row order accumulates, per group, sum (y - m0)^2 and sum (y - m0) around m0 = sum / n:
+ * the corrected two-pass algorithm (Chan, Golub & LeVeque 1983), as `summarizeFor('classic')`.
+ * A group's usable values in row order are exactly its slice of a (stable) counting sort, so
+ * every figure equals `summarizeFor` on that slice to the last bit. Groups of extreme magnitude
+ * (|y| > 2^500 or < 2^-500, which `summarizeFor` rescales by a power of two) are summarised by
+ * `summarizeFor` itself on a group-ordered copy built for them only when there is one.
+ * Cost O(rows + groups).
+ */
+function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, acc: Float64Array, count: Int32Array, start: Int32Array): Summary[] {
+  const nGroups = count.length;
+  // m0 per group, and 2 accumulators (ss, c) per group at 2g, 2g + 1.
+  const m0 = new Float64Array(nGroups);
+  const sc = new Float64Array(2 * nGroups);
+  let extreme = false;
+  let needPass = false;
+  for (let g = 0; g < nGroups; g++) {
+    const n = count[g];
+    const min = acc[4 * g + 1];
+    const max = acc[4 * g + 2];
+    const maxAbs = Math.max(Math.abs(min), Math.abs(max));
+    if (n > 0 && min !== max && (maxAbs > BIG || maxAbs < SMALL)) extreme = true;
+    if (n > 0 && min !== max) needPass = true;
+    m0[g] = acc[4 * g] / n;
+  }
+  if (needPass) deviations(groupOf, exclusion, y, m0, sc);
+  let ordered: Float64Array | null = null;
+  if (extreme) ordered = buildOrdered(y, exclusion, groupOf, start, count);
+  const out: Summary[] = new Array(nGroups);
+  for (let g = 0; g < nGroups; g++) {
+    const n = count[g];
+    const min = acc[4 * g + 1];
+    const max = acc[4 * g + 2];
+    if (n === 0) out[g] = EMPTY_SUMMARY;
+    else if (min === max) out[g] = { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
+    else {
+      const maxAbs = Math.max(Math.abs(min), Math.abs(max));
+      if (ordered !== null && (maxAbs > BIG || maxAbs < SMALL)) {
+        const slice = ordered.subarray(start[g], start[g] + n);
+        out[g] = summarizeFor('classic', slice, 0, n, slice);
+      } else {
+        const ss = sc[2 * g];
+        const c = sc[2 * g + 1];
+        const mean = m0[g] + c / n;
+        const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
+        const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
+        out[g] = { n, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN };
+      }
+    }
+  }
+  return out;
+}
+
+/** sc[2g] += (y - m0[g])^2 and sc[2g + 1] += y - m0[g] over the usable rows, in row order. */
+function deviations(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, m0: Float64Array, sc: Float64Array): void {
+  const n = y.length;
+  for (let r = 0; r < n; r++) {
+    if (exclusion[r] !== 0) continue;
+    const g = groupOf[r];
+    const d = y[r] - m0[g];
+    sc[2 * g] += d * d;
+    sc[2 * g + 1] += d;
+  }
 }
 
 /** Sum of `values` over the groups whose population code is `pop` (-1: all groups). */
@@ -401,33 +564,17 @@ function parseAndScatter(
 }
 
 /**
- * Counting-sort scatter: usable value of row r goes to `ordered[cursor[g]++]` (and its scoring
- * value to `yOrdered`, when that is a separate array, i.e. on log scale); excluded rows are counted
- * per group and reason in `gCounts`. One sequential pass. Kept a function of its own so that the
- * JIT optimizes it as a whole.
+ * Counting-sort scatter: usable scoring value of row r goes to `yOrdered[cursor[g]++]`; excluded
+ * rows are counted per group and reason in `gCounts`. One sequential pass. Kept a function of its
+ * own so that the JIT optimizes it as a whole.
  */
-function scatter(
-  groupOf: Int32Array, exclusion: Uint8Array, values: Float64Array, y: Float64Array,
-  ordered: Float64Array, yOrdered: Float64Array, cursor: Int32Array, gCounts: Int32Array,
-): void {
-  const n = values.length;
-  if (yOrdered !== ordered) {
-    for (let r = 0; r < n; r++) {
-      const g = groupOf[r];
-      const e = exclusion[r];
-      if (e === 0) {
-        const at = cursor[g]++;
-        ordered[at] = values[r];
-        yOrdered[at] = y[r];
-      } else gCounts[g * NREASONS + e - 1]++;
-    }
-  } else {
-    for (let r = 0; r < n; r++) {
-      const g = groupOf[r];
-      const e = exclusion[r];
-      if (e === 0) ordered[cursor[g]++] = values[r];
-      else gCounts[g * NREASONS + e - 1]++;
-    }
+function scatter(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, yOrdered: Float64Array, cursor: Int32Array, gCounts: Int32Array): void {
+  const n = y.length;
+  for (let r = 0; r < n; r++) {
+    const g = groupOf[r];
+    const e = exclusion[r];
+    if (e === 0) yOrdered[cursor[g]++] = y[r];
+    else gCounts[g * NREASONS + e - 1]++;
   }
 }
 
@@ -558,9 +705,12 @@ function scoreFastRows(
     const ok = +(z === z);
     population[r] = popOf[g] * ok;
     count += ok;
-    const f = (hi & +(z > cutoff)) | (lo & +(z < -cutoff));
-    flagged[r] = f;
-    flaggedPerGroup[g] += f;
+    // Flags are rare, so this branch predicts well; `flagged` is zero already (new array), so
+    // only flagged rows are written (no page of it touched for nothing).
+    if ((hi & +(z > cutoff)) | (lo & +(z < -cutoff))) {
+      flagged[r] = 1;
+      flaggedPerGroup[g]++;
+    }
   }
   return count;
 }

@@ -130,7 +130,15 @@ export interface GroupStats {
   readonly maxAttainableZ: number | null;
 }
 
-/** Results for one value column. Arrays are indexed by data row (0-based). */
+/**
+ * Results for one value column. Arrays are indexed by data row (0-based).
+ *
+ * The typed arrays (`values`, `scores`, `flagged`, `exclusion`, `groupOf`, `population`,
+ * `fenceMultiple`) are owned by the result: callers must not mutate them (copy first, e.g.
+ * `Float64Array.from(col.scores)`), because the lazily computed statistics (the descriptive
+ * fields of `groups` and of `pooled` read for the first time) are built from `values`,
+ * `exclusion` and `groupOf`.
+ */
 export interface ColumnScores {
   readonly column: string;
   readonly method: MethodId;

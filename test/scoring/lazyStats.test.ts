@@ -102,6 +102,98 @@ describe('lazy fields against R 4.2 (test/reference/r-stats.json)', () => {
   });
 });
 
+describe('lazy fields read AFTER scoring, rows of groups interleaved (simple-statistics 7.12)', () => {
+  // Classic accumulates mean and SD per group in row order and builds the group-ordered copy only
+  // when a lazy field is first read; robust and IQR select in place in a work buffer shared by the
+  // value columns. Invented claims, groups shuffled through the rows, messy cells mixed in.
+  const r = rng(77);
+  const keys: RawCell[] = [];
+  const amounts: RawCell[] = [];
+  const second: RawCell[] = [];
+  const usable: number[][] = [[], [], [], []];
+  const usable2: number[][] = [[], [], [], []];
+  for (let i = 0; i < 400; i++) {
+    const g = Math.floor(r() * 4);
+    keys.push(`CC-${510 + g}`);
+    const u = r();
+    const x = Math.round(Math.exp(3 + g / 2 + r()) * 100) / 100;
+    if (u < 0.04) amounts.push(null);
+    else if (u < 0.07) amounts.push({ kind: 'error', code: '#N/A' });
+    else if (u < 0.12) {
+      amounts.push(x.toLocaleString('en-US', { minimumFractionDigits: 2 })); // text number, e.g. "1,234.50"
+      usable[g].push(x);
+    } else {
+      amounts.push(x);
+      usable[g].push(x);
+    }
+    const x2 = Math.round((50 + 30 * g + 20 * r()) * 100) / 100;
+    second.push(x2);
+    usable2[g].push(x2);
+  }
+  const run = (method: MethodId, extra: Partial<ScoreOptions> = {}): readonly ColumnScores[] =>
+    scoreTable(
+      { valueColumns: [{ name: 'Amount', cells: amounts }, { name: 'Mileage', cells: second }], groupColumns: [{ name: 'Cost centre', cells: keys }] },
+      { method, direction: 'both', logScale: false, minGroupSize: 5, smallGroups: 'pool', ...extra },
+    ).columns;
+  const checkAll = (col: ColumnScores, sets: number[][]): void => {
+    col.groups.forEach((g) => {
+      const x = sets[Number(g.key.slice(3)) - 510];
+      expect(g.n).toBe(x.length);
+      const want = reference(x);
+      for (const f of DESCRIPTIVE) expect(near(g[f] as number, want[f] as number, 1e-12)).toBe(true);
+    });
+    const whole = reference(sets.flat());
+    for (const f of DESCRIPTIVE) expect(near(col.pooled[f] as number, whole[f] as number, 1e-12)).toBe(true);
+  };
+  for (const method of METHODS) {
+    it(`${method}: scores first, then every lazy field of both columns equals simple-statistics`, () => {
+      const [col, col2] = run(method);
+      // Read what scoring produced first (scores, centres), as a host does.
+      let touched = 0;
+      for (let i = 0; i < col.scores.length; i++) touched += Number.isNaN(col.scores[i]) ? 0 : 1;
+      expect(touched).toBe(col.scoredRows);
+      for (const g of col.groups) expect(g.center).not.toBeNull();
+      checkAll(col, usable);
+      checkAll(col2, usable2);
+    });
+  }
+  it('classic: centre and scale (accumulated in row order) equal simple-statistics mean and SD', () => {
+    const [col] = run('classic');
+    col.groups.forEach((g) => {
+      const x = usable[Number(g.key.slice(3)) - 510];
+      expect(near(g.center!, ss.mean(x), 1e-13)).toBe(true);
+      expect(near(g.scale!, ss.sampleStandardDeviation(x), 1e-12)).toBe(true);
+    });
+  });
+  it('classic on log scale: centre and scale are mean and SD of ln amounts, lazy fields in amounts', () => {
+    const [col] = run('classic', { logScale: true });
+    col.groups.forEach((g) => {
+      const x = usable[Number(g.key.slice(3)) - 510];
+      const lx = x.map(Math.log);
+      expect(near(g.center!, ss.mean(lx), 1e-12)).toBe(true);
+      expect(near(g.scale!, ss.sampleStandardDeviation(lx), 1e-12)).toBe(true);
+      expect(near(g.median!, ss.median(x), 1e-12)).toBe(true);
+      expect(near(g.q3!, ss.quantile(x, 0.75), 1e-12)).toBe(true);
+    });
+  });
+  it('classic, extreme magnitudes (|x| ~ 1e300): mean and SD exact to rounding (simple-statistics on x / 2^996, scaled back)', () => {
+    const base = [1.5, 2.25, 3, 1.75, 2.5, 4, 1.25, 2];
+    const unit = 2 ** 996;
+    const x = base.map((v) => v * unit);
+    const ks = x.map((_, i) => (i % 2 === 0 ? 'A' : 'B'));
+    const c = scoreTable(
+      { valueColumns: [{ name: 'Amount', cells: [...x, ...x] }], groupColumns: [{ name: 'Cost centre', cells: [...ks, ...ks] }] },
+      { method: 'classic', direction: 'both', logScale: false, minGroupSize: 2, smallGroups: 'pool' },
+    ).columns[0];
+    for (const [gi, parity] of [[0, 0], [1, 1]] as const) {
+      const b = [...base, ...base].filter((_, i) => i % 2 === parity);
+      expect(near(c.groups[gi].center!, ss.mean(b) * unit, 1e-13)).toBe(true);
+      expect(near(c.groups[gi].scale!, ss.sampleStandardDeviation(b) * unit, 1e-12)).toBe(true);
+      expect(near(c.groups[gi].median!, ss.median(b) * unit, 1e-13)).toBe(true);
+    }
+  });
+});
+
 describe('lazy fields behave as ordinary own fields', () => {
   const col = score([100, 102, 98, 101, 99, 103, 97, 100, 5000, 40, 41], ['A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'B', 'B'], 'robust');
   const check = (g: GroupStats): void => {
