@@ -24,6 +24,7 @@ import { fileURLToPath } from 'node:url';
 import * as ss from 'simple-statistics';
 import { scoreTable } from '../src/scoring/index.js';
 import type { GroupStats, RawCell, ScoreOptions } from '../src/scoring/index.js';
+import { mulberry32 } from '../src/demo/random.js';
 
 const ROWS = 1_048_575;
 const GROUPS = 2_000;
@@ -35,17 +36,6 @@ const TARGET_MB = 400;
 type CaseName = 'robust' | 'classic';
 type Which = 'ours' | 'ours-all' | 'baseline';
 
-/** Deterministic PRNG (mulberry32) so every run scores the same invented sheet. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function makeData(): { keys: RawCell[]; amounts: RawCell[] } {
   const rnd = mulberry32(20240601);

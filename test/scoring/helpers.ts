@@ -1,5 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
+import { mulberry32 } from '../../src/demo/random.js';
 
 export interface RSet {
   x: number[]; median: number; mad: number; mad1: number; mean: number; sd: number; q1: number; q3: number;
@@ -26,16 +27,7 @@ export const scipy = (): SciPyFixture => ref('scipy.json') as SciPyFixture;
 export const near = (a: number, b: number, rel = 1e-12, abs = 1e-12): boolean => Math.abs(a - b) <= Math.max(abs, rel * Math.abs(b));
 
 /** Deterministic PRNG (mulberry32). */
-export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const rng = mulberry32;
 export function normalSample(n: number, seed: number): number[] {
   const r = rng(seed);
   const out: number[] = [];
