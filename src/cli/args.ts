@@ -2,7 +2,7 @@
  * Argument parsing for `tailmark score` and `tailmark demo`. No dependencies; every mistake becomes
  * a UsageError with one line that says what to fix.
  */
-import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
+import { DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 
 export class UsageError extends Error {
   constructor(message: string) {
@@ -36,9 +36,8 @@ export interface DemoArgs {
   readonly force: boolean;
 }
 
-const METHODS: readonly MethodId[] = ['robust', 'classic', 'iqr'];
-const DIRECTIONS: readonly Direction[] = ['high', 'low', 'both'];
-const POLICIES: readonly SmallGroupPolicy[] = ['pool', 'skip'];
+const METHODS: readonly MethodId[] = METHOD_IDS;
+const POLICIES: readonly SmallGroupPolicy[] = SMALL_GROUP_POLICIES;
 
 type Spec = Record<string, 'flag' | 'value' | 'list'>;
 

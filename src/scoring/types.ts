@@ -47,10 +47,14 @@ export interface ParseOptions {
   readonly decimalComma?: boolean;
 }
 
-export type MethodId = 'robust' | 'classic' | 'iqr';
-export type Direction = 'high' | 'low' | 'both';
+/** Every scoring method; hosts (CLI options, saved settings, the pane) take the list from here. */
+export const METHOD_IDS = ['robust', 'classic', 'iqr'] as const;
+export type MethodId = (typeof METHOD_IDS)[number];
+export const DIRECTIONS = ['high', 'low', 'both'] as const;
+export type Direction = (typeof DIRECTIONS)[number];
 /** What happens to groups smaller than `minGroupSize`: score against the whole column, or leave unscored. */
-export type SmallGroupPolicy = 'pool' | 'skip';
+export const SMALL_GROUP_POLICIES = ['pool', 'skip'] as const;
+export type SmallGroupPolicy = (typeof SMALL_GROUP_POLICIES)[number];
 
 export interface ScoreOptions {
   readonly method: MethodId;

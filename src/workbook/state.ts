@@ -3,7 +3,7 @@
  * period) and where our additions sit (so a re-run updates them in place and remove() deletes only
  * them). Values are stored as JSON text and validated on the way back in.
  */
-import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
+import { DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../report/index.js';
 import type { RunSettings } from './api.js';
 
@@ -37,9 +37,8 @@ export interface LayerState {
   readonly notesSheet: string;
 }
 
-const METHODS: readonly MethodId[] = ['robust', 'classic', 'iqr'];
-const DIRECTIONS: readonly Direction[] = ['high', 'low', 'both'];
-const POLICIES: readonly SmallGroupPolicy[] = ['pool', 'skip'];
+const METHODS: readonly MethodId[] = METHOD_IDS;
+const POLICIES: readonly SmallGroupPolicy[] = SMALL_GROUP_POLICIES;
 
 function parseJson(value: unknown): unknown {
   if (typeof value !== 'string') return value;
