@@ -82,9 +82,11 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  * 3. classic (no order statistic needed): per-group count, sum, min and max accumulated in row
  *    order while parsing, then one more row-order pass for the corrected two-pass SD
  *    (`classicInRowOrder`), with no group-ordered copy. Robust and IQR: counting sort, scattering
- *    the usable scoring values into group order in one work buffer shared by the value columns;
+ *    the usable scoring values into group order in the column's `scores` array, used as the work
+ *    buffer before the scoring pass overwrites every row of it (no extra 8 bytes per row, and its
+ *    memory pages are touched once rather than those of a separate buffer as well);
  * 4. per group, compute only what the method scores with (`summarizeFor`: robust median and MAD,
- *    IQR quartiles; quickselect in place on the group's slice of the work buffer) — O(n) per
+ *    IQR quartiles; quickselect in place on the group's slice of that buffer) — O(n) per
  *    group — and let the method fit centre / scale / bounds;
  * 5. score and flag every row in one pass in row order (per-group fits flattened to typed arrays).
  * Groups with fewer than `minGroupSize` usable values are compared with the whole column
@@ -101,8 +103,7 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
  * while scoring (which builds the copy then). A read never changes a score or flag.
  *
  * Cost: O(rows x (key columns + value columns)) expected time; memory about 27 bytes per row per
- * value column (8 more on log scale), plus 4 bytes per row of grouping, 8 per row of work buffer
- * (robust, IQR) and, once a lazy field is read, 8 per row of group-ordered copy.
+ * value column (8 more on log scale), plus 4 bytes per row of grouping and, once a lazy field is read, 8 per row of group-ordered copy.
  *
  * Throws (with a message naming the column or option) when columns differ in length or an
  * option is invalid. Never mutates the input.
@@ -117,20 +118,8 @@ export function scoreTable(input: ScoreInput, options: ScoreOptions): ScoreResul
     }
   }
   const grouping = groupRows(input.groupColumns, rowCount);
-  const shared: Shared = {
-    work: method.id !== 'classic' && input.valueColumns.length > 0 ? new Float64Array(rowCount) : null,
-  };
-  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method, shared));
+  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method));
   return { options: opts, rowCount, groupColumns: input.groupColumns.map((c) => c.name), columns };
-}
-
-/** Scratch shared by the value columns of one table. */
-interface Shared {
-  /**
-   * Methods with order statistics (robust, IQR): the scoring values of the column being scored in
-   * group order, selected in place by the fits (so overwritten); null for classic.
-   */
-  readonly work: Float64Array | null;
 }
 
 const R = (reason: ExclusionReason): number => EXCLUSION_REASONS.indexOf(reason);
@@ -168,7 +157,6 @@ function scoreColumn(
   grouping: Grouping,
   opts: Required<ScoreOptions>,
   method: ScoringMethod,
-  shared: Shared,
 ): ColumnScores {
   const rowCount = cells.length;
   const values = new Float64Array(rowCount);
@@ -177,6 +165,9 @@ function scoreColumn(
   const y = logScale ? new Float64Array(rowCount) : values;
   const { start, groupOf } = grouping;
   const nGroups = grouping.keys.length;
+  // Every row of `scores` is written by the scoring pass (`scoreRows`); before that, robust and
+  // IQR use it as the group-ordered work buffer the fits select in place.
+  const scores = new Float64Array(rowCount);
   const gCounts = new Int32Array(nGroups * NREASONS);
   const count = new Int32Array(nGroups);
   const colCounts = new Int32Array(NREASONS);
@@ -203,12 +194,11 @@ function scoreColumn(
     pre = classicInRowOrder(groupOf, exclusion, y, acc, count, start);
   } else {
     // 1-2. Parse each cell once and scatter the usable scoring values (ln on log scale) into
-    //    group order in the table's shared work buffer (counting sort: one sequential pass, one
+    //    group order in the column's `scores` array (counting sort: one sequential pass, one
     //    write cursor per group), counting exclusions per group. Linear scale does parse and
     //    scatter in one pass. The fits select in place there (destroying it), so the lazy
     //    statistics build their own copy from the column's results when first read.
-    if (shared.work === null) throw new Error('internal: no work buffer');
-    yOrdered = shared.work;
+    yOrdered = scores;
     const cursor = start.slice(0, nGroups);
     if (logScale) {
       parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
@@ -247,7 +237,6 @@ function scoreColumn(
   const popOf = flat.popOf;
 
   // 4. Score every row in row order.
-  const scores = new Float64Array(rowCount); // every row is written by scoreRows
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
   const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
