@@ -43,6 +43,8 @@ export class CsvChunkParser {
 
   push(text: string): void {
     const n = text.length;
+    // An empty chunk changes nothing (and must not clear a CR or quote left pending by the last one).
+    if (n === 0) return;
     const d = this.delim;
     let i = 0;
     if (this.pendingQuotedCr && n > 0) {
