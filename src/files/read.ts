@@ -229,8 +229,12 @@ export function sheetNameFromFile(path: string): string {
   return (base || 'Data').slice(0, 31);
 }
 
-/** Read the table of an .xlsx or .csv file. Throws InputFileError with a one-line message. */
-export async function readTable(path: string, options: ReadOptions = {}): Promise<ReadTable> {
+/**
+ * Checks that `path` is a readable, non-empty .xlsx or .csv file (and that --sheet is only given for
+ * .xlsx) and says which. Shared by the in-memory and the row-by-row readers, so both refuse bad input
+ * with the same one-line InputFileError.
+ */
+export async function checkInputFile(path: string, sheet: string | undefined): Promise<'xlsx' | 'csv'> {
   let info;
   try {
     info = await stat(path);
@@ -240,10 +244,15 @@ export async function readTable(path: string, options: ReadOptions = {}): Promis
   if (!info.isFile()) throw new InputFileError(`input is not a file: ${path}`);
   if (info.size === 0) throw new InputFileError(`input file is empty: ${path}`);
   const kind = fileKind(path);
-  if (kind === 'xlsx') return readXlsx(path, options);
+  if (kind === 'xlsx') return kind;
   if (kind === 'csv') {
-    if (options.sheet !== undefined) throw new InputFileError(`--sheet applies to .xlsx files only; ${basename(path)} is a CSV file`);
-    return readCsvTable(path);
+    if (sheet !== undefined) throw new InputFileError(`--sheet applies to .xlsx files only; ${basename(path)} is a CSV file`);
+    return kind;
   }
   throw new InputFileError(`unsupported file type "${extname(path) || '(none)'}": use an .xlsx or .csv file`);
+}
+
+/** Read the table of an .xlsx or .csv file. Throws InputFileError with a one-line message. */
+export async function readTable(path: string, options: ReadOptions = {}): Promise<ReadTable> {
+  return (await checkInputFile(path, options.sheet)) === 'xlsx' ? readXlsx(path, options) : readCsvTable(path);
 }

@@ -6,13 +6,12 @@
  * (`keep`) are stored, plus our own review columns from an earlier run, so a full-height sheet costs
  * the memory of its scored columns only. Cost O(cells) time.
  */
-import { stat } from 'node:fs/promises';
-import { basename, extname } from 'node:path';
+import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
 import { CsvSyntaxError } from './csv.js';
 import { forEachCsvRecord } from './csv-stream.js';
-import { cleanHeaders, describe, fileKind, InputFileError, isEmpty, sheetNameFromFile, type ReadOptions, type ReadTable } from './read.js';
+import { checkInputFile, cleanHeaders, describe, InputFileError, isEmpty, sheetNameFromFile, type ReadOptions, type ReadTable } from './read.js';
 import { XlsxStream } from './xlsx-stream.js';
 
 export interface StreamReadOptions extends ReadOptions {
@@ -252,19 +251,5 @@ async function readCsvStreaming(path: string, options: StreamReadOptions): Promi
 
 /** Read the table of an .xlsx or .csv file row by row. Throws InputFileError with a one-line message. */
 export async function readTableStreaming(path: string, options: StreamReadOptions = {}): Promise<ReadTable> {
-  let info;
-  try {
-    info = await stat(path);
-  } catch {
-    throw new InputFileError(`input file not found: ${path}`);
-  }
-  if (!info.isFile()) throw new InputFileError(`input is not a file: ${path}`);
-  if (info.size === 0) throw new InputFileError(`input file is empty: ${path}`);
-  const kind = fileKind(path);
-  if (kind === 'xlsx') return readXlsxStreaming(path, options);
-  if (kind === 'csv') {
-    if (options.sheet !== undefined) throw new InputFileError(`--sheet applies to .xlsx files only; ${basename(path)} is a CSV file`);
-    return readCsvStreaming(path, options);
-  }
-  throw new InputFileError(`unsupported file type "${extname(path) || '(none)'}": use an .xlsx or .csv file`);
+  return (await checkInputFile(path, options.sheet)) === 'xlsx' ? readXlsxStreaming(path, options) : readCsvStreaming(path, options);
 }
