@@ -1,6 +1,7 @@
 import { Button, Checkbox, Field, Input, Select, Slider, Text } from '@fluentui/react-components';
 import type { Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
+import { GroupCountTable } from './GroupCountTable.js';
 import { NumberInput } from './NumberInput.js';
 import type { PaneModel } from '../usePaneState.js';
 import { usePaneStyles } from './styles.js';
@@ -137,32 +138,11 @@ export function MethodSection({ model }: { model: PaneModel }) {
                 In {unreachable} small group{unreachable === 1 ? '' : 's'} classic z cannot reach this cutoff at all.
               </Text>
             )}
-            <table className={s.table} data-testid="group-counts">
-              <caption className={s.visuallyHidden}>Flagged claims per peer group at this cutoff</caption>
-              <thead>
-                <tr>
-                  <th scope="col">Peer group</th>
-                  <th scope="col" className="num">
-                    Claims
-                  </th>
-                  <th scope="col" className="num">
-                    Flagged
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {groups.slice(0, MAX_GROUP_ROWS).map((g) => (
-                  <tr key={g.label}>
-                    <td>
-                      {g.label}
-                      {g.unreachable ? ' (cutoff out of reach)' : ''}
-                    </td>
-                    <td className="num">{g.n}</td>
-                    <td className="num">{g.flagged}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <GroupCountTable
+              caption="Flagged claims per peer group at this cutoff"
+              testId="group-counts"
+              rows={groups.slice(0, MAX_GROUP_ROWS).map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.unreachable ? ' (cutoff out of reach)' : undefined }))}
+            />
             {groups.length > MAX_GROUP_ROWS && (
               <Text className={s.muted}>
                 …and {groups.length - MAX_GROUP_ROWS} more groups ({groups.slice(MAX_GROUP_ROWS).reduce((a, g) => a + g.flagged, 0)} flagged).

@@ -3,6 +3,7 @@ import { CAUTION } from '../../report/style.js';
 import type { RunProgress } from '../../workbook/api.js';
 import type { PaneModel } from '../usePaneState.js';
 import { usePaneStyles } from './styles.js';
+import { GroupCountTable } from './GroupCountTable.js';
 
 const PHASE_WORDS: Record<RunProgress['phase'], string> = {
   reading: 'Reading the claims',
@@ -67,31 +68,12 @@ export function RunSection({ model }: { model: PaneModel }) {
           <Text block className={s.small}>
             Explanations and the cutoff are on the sheet “{summary.notesSheet}”.
           </Text>
-          <table className={s.table}>
-            <caption className={s.visuallyHidden}>Flagged claims per peer group</caption>
-            <thead>
-              <tr>
-                <th scope="col">Peer group</th>
-                <th scope="col" className="num">
-                  Claims
-                </th>
-                <th scope="col" className="num">
-                  Flagged
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {summary.groups
-                .filter((g) => g.flagged > 0 || g.cutoffUnreachable)
-                .map((g) => (
-                  <tr key={g.label}>
-                    <td>{g.label}</td>
-                    <td className="num">{g.n}</td>
-                    <td className="num">{g.flagged}</td>
-                  </tr>
-                ))}
-            </tbody>
-          </table>
+          <GroupCountTable
+            caption="Flagged claims per peer group"
+            rows={summary.groups
+              .filter((g) => g.flagged > 0 || g.cutoffUnreachable)
+              .map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.cutoffUnreachable ? ' (cutoff out of reach)' : undefined }))}
+          />
           {summary.excluded.some((e) => e.count > 0) && (
             <>
               <Text block className={s.small}>
