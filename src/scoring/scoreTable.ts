@@ -6,7 +6,7 @@ import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
 import { summarizeFor } from './summarizeFor.js';
-import { EMPTY_SUMMARY, real, type Summary } from './summary.js';
+import { constantSummary, EMPTY_SUMMARY, isExtreme, real, type Summary } from './summary.js';
 import {
   type ColumnScores,
   DEFAULT_OPTIONS,
@@ -425,8 +425,6 @@ function accumulate(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array,
   }
 }
 
-const BIG = 2 ** 500;
-const SMALL = 2 ** -500;
 
 /**
  * Classic summaries (mean and sample SD) of every group without a group-ordered copy: given the
@@ -450,8 +448,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
     const n = count[g];
     const min = acc[4 * g + 1];
     const max = acc[4 * g + 2];
-    const maxAbs = Math.max(Math.abs(min), Math.abs(max));
-    if (n > 0 && min !== max && (maxAbs > BIG || maxAbs < SMALL)) extreme = true;
+    if (n > 0 && min !== max && isExtreme(min, max)) extreme = true;
     if (n > 0 && min !== max) needPass = true;
     m0[g] = acc[4 * g] / n;
   }
@@ -464,10 +461,9 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
     const min = acc[4 * g + 1];
     const max = acc[4 * g + 2];
     if (n === 0) out[g] = EMPTY_SUMMARY;
-    else if (min === max) out[g] = { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
+    else if (min === max) out[g] = constantSummary(n, min);
     else {
-      const maxAbs = Math.max(Math.abs(min), Math.abs(max));
-      if (ordered !== null && (maxAbs > BIG || maxAbs < SMALL)) {
+      if (ordered !== null && isExtreme(min, max)) {
         const slice = ordered.subarray(start[g], start[g] + n);
         out[g] = summarizeFor('classic', slice, 0, n, slice);
       } else {

@@ -1,10 +1,8 @@
 import { medianInPlace } from './median.js';
 import { minOfRange, quickselect } from './quickselect.js';
-import { EMPTY_SUMMARY, type Summary, typeSevenWithin } from './summary.js';
+import { constantSummary, EMPTY_SUMMARY, powerOfTwoUnit, type Summary, typeSevenWithin } from './summary.js';
 import type { MethodId } from './types.js';
 
-const BIG = 2 ** 500;
-const SMALL = 2 ** -500;
 
 /**
  * The statistics one method needs to score a population, and no others (engine internal, the
@@ -36,15 +34,8 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     else if (v > max) max = v;
     sum += v;
   }
-  if (min === max) {
-    return { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
-  }
-  let unit = 1;
-  const maxAbs = Math.max(Math.abs(min), Math.abs(max));
-  if (maxAbs > BIG || maxAbs < SMALL) {
-    unit = 2 ** Math.floor(Math.log2(maxAbs));
-    if (!Number.isFinite(unit) || unit === 0) unit = 1;
-  }
+  if (min === max) return constantSummary(n, min);
+  const unit = powerOfTwoUnit(min, max);
   if (method === 'classic') {
     let a = src;
     let lo = from;

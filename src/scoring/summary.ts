@@ -25,6 +25,27 @@ export interface Summary {
 const BIG = 2 ** 500;
 const SMALL = 2 ** -500;
 
+/**
+ * True when a population spanning [min, max] has magnitudes beyond 2^±500, where squares and
+ * products would overflow or underflow: such populations are summarised after an exact rescale.
+ */
+export function isExtreme(min: number, max: number): boolean {
+  const maxAbs = Math.max(Math.abs(min), Math.abs(max));
+  return maxAbs > BIG || maxAbs < SMALL;
+}
+
+/** The exact power-of-two unit values are divided by when `isExtreme(min, max)`; 1 otherwise. */
+export function powerOfTwoUnit(min: number, max: number): number {
+  if (!isExtreme(min, max)) return 1;
+  const unit = 2 ** Math.floor(Math.log2(Math.max(Math.abs(min), Math.abs(max))));
+  return !Number.isFinite(unit) || unit === 0 ? 1 : unit;
+}
+
+/** n values all equal to v: every statistic is exact and the spread is 0 (SD undefined for n = 1). */
+export function constantSummary(n: number, v: number): Summary {
+  return { n, unit: 1, median: v, mad: 0, meanAbsDev: 0, mean: v, sd: n >= 2 ? 0 : NaN, q1: v, q3: v };
+}
+
 export const EMPTY_SUMMARY: Summary = { n: 0, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN };
 
 /**
@@ -43,14 +64,9 @@ export function summarize(buf: Float64Array, n: number, dev: Float64Array): Summ
     else if (v > max) max = v;
     sum += v;
   }
-  if (min === max) {
-    return { n, unit: 1, median: min, mad: 0, meanAbsDev: 0, mean: min, sd: n >= 2 ? 0 : NaN, q1: min, q3: min };
-  }
-  let unit = 1;
-  const maxAbs = Math.max(Math.abs(min), Math.abs(max));
-  if (maxAbs > BIG || maxAbs < SMALL) {
-    unit = 2 ** Math.floor(Math.log2(maxAbs));
-    if (!Number.isFinite(unit) || unit === 0) unit = 1;
+  if (min === max) return constantSummary(n, min);
+  const unit = powerOfTwoUnit(min, max);
+  if (unit !== 1) {
     sum = 0;
     for (let i = 0; i < n; i++) sum += (buf[i] /= unit);
   }
