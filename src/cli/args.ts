@@ -2,6 +2,7 @@
  * Argument parsing for `tailmark score` and `tailmark demo`. No dependencies; every mistake becomes
  * a UsageError with one line that says what to fix.
  */
+import { ENCODINGS, encodingFromName, type TextEncodingName } from '../table/encoding.js';
 import { type DecimalMode, DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 
 export class UsageError extends Error {
@@ -24,6 +25,10 @@ export interface ScoreArgs {
   readonly log: boolean;
   /** Decimal separator of text amounts: decided per column from its cells (auto), or given. */
   readonly decimal: DecimalMode;
+  /** Text encoding of a CSV/TSV/TXT input (default: detected). */
+  readonly encoding: TextEncodingName | undefined;
+  /** 1-based header row (default: found, skipping title rows). */
+  readonly headerRow: number | undefined;
   readonly sheet: string | undefined;
   readonly out: string | undefined;
   readonly force: boolean;
@@ -90,7 +95,7 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     argv,
     {
       value: 'list', group: 'list', id: 'value', method: 'value', cutoff: 'value', direction: 'value',
-      'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', 'decimal-point': 'flag', sheet: 'value',
+      'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', 'decimal-point': 'flag', encoding: 'value', 'header-row': 'value', sheet: 'value',
       out: 'value', force: 'flag', json: 'flag', stream: 'flag',
     },
     'score',
@@ -128,12 +133,27 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     smallGroups: oneOf('small-groups', one('small-groups'), POLICIES, 'pool'),
     log: opts.has('log'),
     decimal: decimalOption(opts.has('decimal-comma'), opts.has('decimal-point')),
+    encoding: encodingOption(one('encoding')),
+    headerRow: headerRowOption(one('header-row')),
     sheet: one('sheet'),
     out: one('out'),
     force: opts.has('force'),
     json: opts.has('json'),
     stream: opts.has('stream'),
   };
+}
+
+function encodingOption(raw: string | undefined): TextEncodingName | undefined {
+  if (raw === undefined) return undefined;
+  const e = encodingFromName(raw);
+  if (e === null) throw new UsageError(`--encoding must be one of ${ENCODINGS.join(', ')} (or utf8, utf16, latin1, cp1252); got "${raw}"`);
+  return e;
+}
+
+function headerRowOption(raw: string | undefined): number | undefined {
+  if (raw === undefined) return undefined;
+  if (!/^\d+$/.test(raw.trim()) || Number(raw) < 1) throw new UsageError(`--header-row must be a row number of at least 1; got "${raw}"`);
+  return Number(raw);
 }
 
 function decimalOption(comma: boolean, point: boolean): DecimalMode {
@@ -150,7 +170,7 @@ export function parseDemoArgs(argv: readonly string[]): DemoArgs {
 export const HELP = `tailmark: flag expense claims that are unusual for their peer group
 
 Usage:
-  tailmark score <input.xlsx|input.csv> --value <header> [options]
+  tailmark score <input.xlsx|input.csv|.tsv|.txt> --value <header> [options]
   tailmark demo [--out <path.xlsx>] [--force]
   tailmark sandbox ...
   tailmark --help
@@ -168,6 +188,10 @@ score options:
   --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
   --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)
                           (default: decided per column from its cells, and said in the notes)
+  --encoding <e>          text encoding of a .csv/.tsv/.txt input: utf-8 | utf-16le | utf-16be | windows-1252
+                          (default: from its byte-order mark, else UTF-8, else Windows-1252; said in the notes)
+  --header-row <n>        row number of the header (default: the first row that looks like one, so
+                          report titles and blank lines above it are skipped)
   --sheet <name>          worksheet to read (.xlsx; default the first)
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)

@@ -13,7 +13,7 @@ import { buildPlan } from '../report/plan.js';
 import { CAUTION } from '../report/style.js';
 import { describeDecimal } from '../report/decimal.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
-import { fileKind, InputFileError, readTable, type ReadTable } from '../files/read.js';
+import { fileKind, InputFileError, readTable, unsavedFormulaMessage, type ReadTable } from '../files/read.js';
 import { readTableStreaming } from '../files/stream-read.js';
 import { writeScoredWorkbookStreaming } from '../files/stream-write.js';
 import { OutputFileError, writeScoredWorkbook } from '../files/write.js';
@@ -149,8 +149,13 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   // First pass, row by row: only the columns this run needs are kept, so any size fits in memory.
   let cols: Columns | null = null;
   const where = args.sheet !== undefined ? `${basename(args.input)}, sheet ${args.sheet}` : basename(args.input);
-  const streamedTable = await readTableStreaming(args.input, {
+  const readOptions = {
     ...(args.sheet !== undefined ? { sheet: args.sheet } : {}),
+    ...(args.encoding !== undefined ? { encoding: args.encoding } : {}),
+    ...(args.headerRow !== undefined ? { headerRow: args.headerRow } : {}),
+  };
+  const streamedTable = await readTableStreaming(args.input, {
+    ...readOptions,
     keep: (headers) => {
       cols = resolveColumns(args, headers, where);
       // The id column's cells are only printed with --json; a workbook run needs just its name.
@@ -162,7 +167,9 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   const streaming = args.stream || fileKind(args.input) === 'csv' || streamedTable.rowCount > threshold;
   // Below the threshold an .xlsx is written from the whole workbook in memory, which keeps everything
   // in it (hyperlinks, comments, pictures...); the table is read that way too, as before.
-  const table: ReadTable = !streaming && wantWorkbook ? await readTable(args.input, { sheet: streamedTable.sheetName }) : streamedTable;
+  const table: ReadTable = !streaming && wantWorkbook ? await readTable(args.input, { ...readOptions, sheet: streamedTable.sheetName }) : streamedTable;
+  checkFormulas(table, [...valueIdx, ...groupIdx], basename(args.input));
+  const inputNotes = [...(table.readNotes ?? []), ...fillMergedKeys(table, groupIdx)];
   const large = table.rowCount >= LARGE_ROWS;
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
@@ -205,6 +212,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       when: new Date(),
       table,
       idColumn: idIndex !== null ? table.headers[idIndex] : null,
+      inputNotes,
       // Row by row, each explanation is worded as its row is written, not all held at once.
       ...(streaming ? { reasonText: 'on-demand' as const } : {}),
     });
@@ -238,10 +246,45 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
         decimalLines(result) +
+        inputNotes.filter((l) => !/-separated$/.test(l) || /not valid|given|byte-order|zero bytes/.test(l)).map((l) => `${l}\n`).join('') +
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
   return { outPath, result };
+}
+
+/** Refuse a run whose value or group column holds formulas without saved results (they read as blank). */
+function checkFormulas(table: ReadTable, columns: readonly number[], file: string): void {
+  for (const i of columns) {
+    const n = table.unsavedFormulas?.[i] ?? 0;
+    if (n > 0) throw new InputFileError(unsavedFormulaMessage(file, table.headers[i], n));
+  }
+}
+
+/**
+ * Merged cells in a peer-group column: every row a merged area covers takes the area's value (the
+ * reviewer sees one label spanning those rows, so that is what it means). Returns notes lines.
+ */
+function fillMergedKeys(table: ReadTable, groupIdx: readonly number[]): string[] {
+  const notes: string[] = [];
+  for (const g of groupIdx) {
+    const spans = (table.merges ?? []).filter((m) => m.col === g);
+    if (spans.length === 0) continue;
+    const cells = table.columns[g] as RawCell[];
+    let filled = 0;
+    for (const m of spans) {
+      const v = cells[m.from];
+      for (let r = m.from + 1; r <= m.to; r++) {
+        if (cells[r] === null || cells[r] === undefined) {
+          cells[r] = v;
+          filled++;
+        }
+      }
+    }
+    const refs = spans.slice(0, 5).map((m) => m.ref).join(', ') + (spans.length > 5 ? ', ...' : '');
+    notes.push(`${table.headers[g]}: ${filled} cell${filled === 1 ? '' : 's'} in ${spans.length} merged area${spans.length === 1 ? '' : 's'} (${refs}) took the merged value, so every row of an area is in the group its label names`);
+  }
+  return notes;
 }
 
 /** "Amount: read with decimal comma (...)" for each column whose text cells showed a separator. */
@@ -282,6 +325,8 @@ async function runDemo(argv: readonly string[], io: Io): Promise<number> {
       smallGroups: 'pool',
       log: false,
       decimal: 'auto',
+      encoding: undefined,
+      headerRow: undefined,
       sheet: DEMO_SHEET,
       out: scoredPath,
       force: true,

@@ -1,194 +1,58 @@
 /**
- * Streaming CSV: the same grammar as `parseCsv` (RFC 4180 plus the same leniencies: LF / lone CR line
- * ends, a UTF-8 byte-order mark, `;` or tab delimiter detected from the first record, text after a
- * closing quote appended, a quote inside an unquoted field kept), fed in chunks of any size, so a
- * full-height file is never held as one string or one array of records. Cost O(n) in the text.
- * A chunk may end anywhere (inside a quoted field, between CR and LF); records come out once complete.
+ * Delimited text files read record by record (Node): the file streams through a TextDecoder and the
+ * shared tokenizer (src/table/csv.ts), so a full-height file is never held as one string or one
+ * array of records. The encoding comes from a byte-order mark or the zero bytes of UTF-16, or is
+ * given; otherwise the file is decoded as UTF-8 and, at the first byte that is not valid UTF-8,
+ * `NotUtf8Error` is thrown so the caller can start again as Windows-1252 (`readDelimitedStream`
+ * below does). The delimiter is sniffed from the first lines. Cost O(n) in the file.
  */
 import { createReadStream } from 'node:fs';
-import { StringDecoder } from 'node:string_decoder';
-import { CsvSyntaxError, detectDelimiter, type CsvDelimiter } from './csv.js';
+import { CsvChunkParser, sniffDelimiter, type CsvDelimiter } from '../table/csv.js';
+import { encodingFromStart, textDecoder, type DetectedEncoding, type TextEncodingName } from '../table/encoding.js';
 
-const QUOTE = 34;
-const CR = 13;
-const LF = 10;
-
-/** Incremental CSV parser. `push` text, then `end`; `onRecord` receives each complete record. */
-export class CsvChunkParser {
-  private record: string[] = [];
-  private field = '';
-  private quoted = false; // the current field was quoted
-  private inQuotes = false; // inside an open quoted field
-  private quoteOpenedAt = 0;
-  private pendingQuote = false; // chunk ended on a `"` inside a quoted field: `""` or close?
-  private pendingCr = false; // chunk ended on CR: skip a following LF
-  private pendingQuotedCr = false; // chunk ended on CR inside quotes: a line unless LF follows
-  private afterClose = false; // a quoted field closed; text up to the delimiter is appended
-  private line = 1;
-  private readonly delim: number;
-
-  constructor(delimiter: CsvDelimiter, private readonly onRecord: (record: string[]) => void) {
-    this.delim = delimiter.charCodeAt(0);
+/** The file is not valid UTF-8 (and no encoding was given or marked). */
+export class NotUtf8Error extends Error {
+  constructor() {
+    super('not valid UTF-8');
+    this.name = 'NotUtf8Error';
   }
-
-  private endRecord(): void {
-    this.record.push(this.field);
-    this.onRecord(this.record);
-    this.record = [];
-    this.field = '';
-    this.quoted = false;
-    this.afterClose = false;
-    this.line++;
-  }
-
-  push(text: string): void {
-    const n = text.length;
-    // An empty chunk changes nothing (and must not clear a CR or quote left pending by the last one).
-    if (n === 0) return;
-    const d = this.delim;
-    let i = 0;
-    if (this.pendingQuotedCr && n > 0) {
-      this.pendingQuotedCr = false;
-      if (text.charCodeAt(0) !== LF) this.line++;
-    }
-    if (this.pendingCr) {
-      this.pendingCr = false;
-      if (n > 0 && text.charCodeAt(0) === LF) i = 1;
-    }
-    if (this.pendingQuote) {
-      this.pendingQuote = false;
-      if (n === 0) {
-        this.pendingQuote = true;
-        return;
-      }
-      if (text.charCodeAt(i) === QUOTE) {
-        this.field += '"';
-        i++;
-      } else {
-        this.inQuotes = false;
-        this.afterClose = true;
-      }
-    }
-    while (i < n) {
-      if (this.inQuotes) {
-        // Inside a quoted field: copy up to the next quote, counting line breaks.
-        let j = i;
-        while (j < n) {
-          const c = text.charCodeAt(j);
-          if (c === QUOTE) break;
-          if (c === LF) this.line++;
-          else if (c === CR) {
-            if (j + 1 >= n) this.pendingQuotedCr = true;
-            else if (text.charCodeAt(j + 1) !== LF) this.line++;
-          }
-          j++;
-        }
-        this.field += text.slice(i, j);
-        if (j >= n) return;
-        // text[j] is a quote
-        if (j + 1 >= n) {
-          this.pendingQuote = true;
-          return;
-        }
-        if (text.charCodeAt(j + 1) === QUOTE) {
-          this.field += '"';
-          i = j + 2;
-        } else {
-          this.inQuotes = false;
-          this.afterClose = true;
-          i = j + 1;
-        }
-        continue;
-      }
-      const ch = text.charCodeAt(i);
-      if (ch === QUOTE && this.field === '' && !this.afterClose) {
-        this.inQuotes = true;
-        this.quoted = true;
-        this.quoteOpenedAt = this.line;
-        i++;
-        continue;
-      }
-      if (ch === d) {
-        this.record.push(this.field);
-        this.field = '';
-        this.quoted = false;
-        this.afterClose = false;
-        i++;
-        continue;
-      }
-      if (ch === CR || ch === LF) {
-        this.endRecord();
-        if (ch === CR) {
-          if (i + 1 >= n) {
-            this.pendingCr = true;
-            return;
-          }
-          i += text.charCodeAt(i + 1) === LF ? 2 : 1;
-        } else i++;
-        continue;
-      }
-      let j = i + 1;
-      while (j < n) {
-        const c = text.charCodeAt(j);
-        if (c === d || c === LF || c === CR) break;
-        j++;
-      }
-      this.field += text.slice(i, j);
-      i = j;
-    }
-  }
-
-  /** No more text: emit the last record (a file ending in a line break adds no empty record). */
-  end(): void {
-    if (this.pendingQuote) {
-      this.pendingQuote = false;
-      this.inQuotes = false;
-    }
-    if (this.inQuotes) {
-      throw new CsvSyntaxError(this.quoteOpenedAt, `CSV line ${this.quoteOpenedAt}: a quoted field is never closed (missing ")`);
-    }
-    if (this.field !== '' || this.quoted || this.record.length > 0) {
-      this.record.push(this.field);
-      this.onRecord(this.record);
-      this.record = [];
-      this.field = '';
-      this.quoted = false;
-    }
-  }
-}
-
-/** Has `text` a line end outside quotes (so detectDelimiter sees the whole first record)? */
-function firstRecordComplete(text: string): boolean {
-  let inQuotes = false;
-  for (let i = 0; i < text.length; i++) {
-    const c = text.charCodeAt(i);
-    if (c === QUOTE) inQuotes = !inQuotes;
-    else if (!inQuotes && (c === LF || c === CR)) return true;
-  }
-  return false;
 }
 
 export interface CsvStreamOptions {
   readonly delimiter?: CsvDelimiter;
+  /** Decode as this encoding (a byte-order mark for it is still skipped). */
+  readonly encoding?: TextEncodingName;
   /** Read size in bytes (default 1 MiB). */
   readonly chunkBytes?: number;
   /** Awaited after each chunk's records are handled (lets a writer wait for its output to drain). */
   readonly afterChunk?: () => Promise<void> | void;
 }
 
+/** What the read found out: how the text was decoded and split. */
+export interface CsvStreamInfo {
+  readonly encoding: DetectedEncoding;
+  readonly delimiter: CsvDelimiter;
+}
+
+/** Text for the delimiter sniffer: up to 50 lines or 64 KiB. */
+const SNIFF_CHARS = 1 << 16;
+
 /**
- * Read a CSV file record by record. `onRecord(record, index)` (0-based index) may return `false`
- * to stop reading early. UTF-8; a leading byte-order mark is dropped.
+ * Read a delimited text file record by record. `onRecord(record, index)` (0-based index) may return
+ * `false` to stop reading early. Throws NotUtf8Error as said above.
  */
 export async function forEachCsvRecord(
   path: string,
   onRecord: (record: string[], index: number) => void | boolean,
   options: CsvStreamOptions = {},
-): Promise<void> {
-  const decoder = new StringDecoder('utf8');
+): Promise<CsvStreamInfo> {
   const stream = createReadStream(path, { highWaterMark: options.chunkBytes ?? 1 << 20 });
+  let decoder: ReturnType<typeof textDecoder> | null = null;
+  let encoding: DetectedEncoding | null = null;
   let parser: CsvChunkParser | null = null;
+  let delimiter: CsvDelimiter = options.delimiter ?? ',';
   let head = '';
+  let lines = 0;
   let index = 0;
   let stopped = false;
   const emit = (rec: string[]) => {
@@ -196,17 +60,35 @@ export async function forEachCsvRecord(
     if (onRecord(rec, index++) === false) stopped = true;
   };
   const start = (text: string) => {
-    if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-    parser = new CsvChunkParser(options.delimiter ?? detectDelimiter(text), emit);
+    delimiter = options.delimiter ?? sniffDelimiter(text);
+    parser = new CsvChunkParser(delimiter, emit);
     parser.push(text);
+  };
+  const decode = (bytes: Uint8Array, final: boolean): string => {
+    try {
+      return decoder!.decode(bytes, { stream: !final });
+    } catch {
+      throw new NotUtf8Error();
+    }
   };
   try {
     for await (const chunk of stream) {
-      const text = decoder.write(chunk as Buffer);
+      let bytes = chunk as Buffer;
+      if (!decoder) {
+        const marked = encodingFromStart(bytes);
+        if (options.encoding !== undefined) {
+          encoding = { encoding: options.encoding, bomBytes: marked?.encoding === options.encoding ? marked.bomBytes : 0, how: 'given' };
+        } else encoding = marked ?? { encoding: 'utf-8', bomBytes: 0, how: 'valid UTF-8' };
+        decoder = textDecoder(encoding.encoding, encoding.encoding === 'utf-8' && encoding.how !== 'given');
+        bytes = bytes.subarray(encoding.bomBytes);
+      }
+      let text = decode(bytes, false);
+      if (!parser && text.charCodeAt(0) === 0xfeff && head === '') text = text.slice(1);
       if (parser) (parser as CsvChunkParser).push(text);
       else {
         head += text;
-        if (firstRecordComplete(head)) {
+        for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) lines++;
+        if (lines >= 50 || head.length >= SNIFF_CHARS) {
           start(head);
           head = '';
         }
@@ -215,12 +97,33 @@ export async function forEachCsvRecord(
       if (options.afterChunk) await options.afterChunk();
     }
     if (!stopped) {
-      const rest = decoder.end();
+      const rest = decoder ? decode(new Uint8Array(0), true) : '';
       if (!parser) start(head + rest);
       else if (rest) (parser as CsvChunkParser).push(rest);
       (parser as unknown as CsvChunkParser).end();
     }
   } finally {
     stream.destroy();
+  }
+  return { encoding: encoding ?? { encoding: 'utf-8', bomBytes: 0, how: 'valid UTF-8' }, delimiter };
+}
+
+/**
+ * As `forEachCsvRecord`, starting again as Windows-1252 when the file turns out not to be UTF-8:
+ * `restart()` is called first so the caller can drop what it kept from the first try.
+ */
+export async function forEachCsvRecordDetected(
+  path: string,
+  onRecord: (record: string[], index: number) => void | boolean,
+  restart: () => void,
+  options: CsvStreamOptions = {},
+): Promise<CsvStreamInfo> {
+  try {
+    return await forEachCsvRecord(path, onRecord, options);
+  } catch (e) {
+    if (!(e instanceof NotUtf8Error)) throw e;
+    restart();
+    const info = await forEachCsvRecord(path, onRecord, { ...options, encoding: 'windows-1252' });
+    return { ...info, encoding: { ...info.encoding, how: 'not valid UTF-8' } };
   }
 }

@@ -1,7 +1,8 @@
 /**
- * Read a claims table row by row (Node): the same table `readTable` finds (first non-empty row is the
- * header, from its first to its last non-empty cell, down to the last row with a value in those
- * columns, the same RawCell conversions), without holding the file: an .xlsx sheet is parsed as its
+ * Read a claims table row by row (Node): the same table `readTable` finds (the header row found as
+ * src/table/header.ts says, or given; from its first to its last non-empty cell, down to the last row
+ * with a value in those columns, a last row labelled total left out; the same RawCell conversions),
+ * without holding the file: an .xlsx sheet is parsed as its
  * XML streams out of the zip, a CSV file is parsed in chunks. Only the columns the caller asks for
  * (`keep`) are stored, plus our own review columns from an earlier run, so a full-height sheet costs
  * the memory of its scored columns only. Cost O(cells) time.
@@ -9,9 +10,14 @@
 import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
-import { CsvSyntaxError } from './csv.js';
-import { forEachCsvRecord } from './csv-stream.js';
-import { checkInputFile, cleanHeaders, describe, InputFileError, isEmpty, sheetNameFromFile, type ReadOptions, type ReadTable } from './read.js';
+import { CsvSyntaxError, DELIMITER_WORDS } from '../table/csv.js';
+import { describeEncoding } from '../table/encoding.js';
+import { findHeaderRow, HEADER_SEARCH_ROWS } from '../table/header.js';
+import { isTotalFormula, isTotalLabel } from '../table/totals.js';
+import { forEachCsvRecordDetected } from './csv-stream.js';
+import {
+  checkInputFile, cleanHeaders, describe, InputFileError, isEmpty, mergedSpans, sheetNameFromFile, type ReadOptions, type ReadTable,
+} from './read.js';
 import { XlsxStream } from './xlsx-stream.js';
 
 export interface StreamReadOptions extends ReadOptions {
@@ -61,7 +67,12 @@ function headerText(v: RawCell): string {
   return String(v);
 }
 
-/** Builds the table from rows given as (sheet row, cells by 0-based column). */
+/**
+ * Builds the table from rows given as (sheet row, cells by 0-based column). The first rows are held
+ * until the header row is known (found among the first HEADER_SEARCH_ROWS rows, or given), then
+ * replayed; after that each cell goes straight to its column. The last non-empty row is watched for
+ * a totals label or SUBTOTAL formulas, and left out at the end when it has them.
+ */
 class TableBuilder {
   headerRow = 0;
   first = -1;
@@ -72,11 +83,92 @@ class TableBuilder {
   lastData = 0;
   /** 0-based column -> first sheet row (>= header row) where it holds a value, right of the table. */
   private busy = new Map<number, number>();
+  /** Rows held until the header is known. */
+  private pending: { rowNo: number; cells: Map<number, RawCell>; total: boolean; unsaved: readonly number[] }[] = [];
+  private decided = false;
+  /** The current row says total (label or SUBTOTAL formula); `lastTotal`: the last non-empty row did. */
+  private rowTotal = false;
+  private lastTotal = false;
+  /** Per table column: formula cells without a saved result. */
+  unsaved: number[] = [];
+  readonly notes: string[] = [];
 
-  constructor(private readonly keep: StreamReadOptions['keep'], private readonly intern: boolean) {}
+  constructor(
+    private readonly keep: StreamReadOptions['keep'],
+    private readonly intern: boolean,
+    private readonly givenHeader: number | undefined,
+  ) {}
 
-  /** Offer a header candidate; returns true once the header row is set. */
-  header(rowNo: number, cells: ReadonlyMap<number, RawCell>): boolean {
+  get hasHeader(): boolean {
+    return this.decided && this.first >= 0;
+  }
+
+  /**
+   * A whole row (cells by 0-based column). `total`: it holds a SUBTOTAL formula; `unsaved`: 0-based
+   * columns of its formula cells without a saved result.
+   */
+  row(rowNo: number, cells: Map<number, RawCell>, total = false, unsaved: readonly number[] = []): void {
+    if (this.decided) {
+      this.rowTotal = total;
+      for (const [c, v] of cells) this.cell(rowNo, c, v);
+      for (const c of unsaved) if (c >= this.first && c <= this.last && rowNo > this.headerRow) this.unsaved[c - this.first]++;
+      this.endRow(rowNo);
+      return;
+    }
+    this.pending.push({ rowNo, cells, total, unsaved });
+    if (this.givenHeader !== undefined ? rowNo >= this.givenHeader : this.pending.length >= HEADER_SEARCH_ROWS) this.decide();
+  }
+
+  /** A delimited record as a row (fields by 0-based column; empty fields are blank). */
+  record(rowNo: number, rec: readonly string[]): void {
+    if (!this.decided) {
+      const m = new Map<number, RawCell>();
+      for (let c = 0; c < rec.length; c++) {
+        const f = rec[c];
+        if (f !== '') m.set(c, f.trim() === '' ? null : f);
+      }
+      this.row(rowNo, m);
+      return;
+    }
+    for (let c = 0; c < rec.length; c++) {
+      const f = rec[c];
+      if (f !== '') this.cell(rowNo, c, f);
+    }
+    this.endRow(rowNo);
+  }
+
+  /** Decide the header from the held rows and replay the rows below it. */
+  decide(): void {
+    if (this.decided) return;
+    this.decided = true;
+    const held = this.pending;
+    this.pending = [];
+    let h: number;
+    if (this.givenHeader !== undefined) {
+      h = held.findIndex((p) => p.rowNo === this.givenHeader);
+      if (h < 0 || [...held[h].cells.values()].every(isEmpty)) throw new InputFileError(`--header-row ${this.givenHeader}: that row is empty`);
+    } else {
+      // Rows as dense arrays by sheet row (rows missing from the file are empty).
+      const base = held.length ? held[0].rowNo : 1;
+      const dense: RawCell[][] = [];
+      for (const p of held) {
+        const arr: RawCell[] = [];
+        for (const [c, v] of p.cells) arr[c] = v;
+        dense[p.rowNo - base] = arr;
+      }
+      for (let i = 0; i < dense.length; i++) dense[i] ??= [];
+      const idx = findHeaderRow(dense);
+      if (idx < 0) return;
+      h = held.findIndex((p) => p.rowNo === base + idx);
+      if (held.slice(0, h).some((p) => [...p.cells.values()].some((v) => !isEmpty(v)))) {
+        this.notes.push(`Header row ${held[h].rowNo}: the rows above it look like titles and were skipped (give --header-row to choose another)`);
+      }
+    }
+    this.header(held[h].rowNo, held[h].cells);
+    for (const p of held.slice(h + 1)) this.row(p.rowNo, p.cells, p.total, p.unsaved);
+  }
+
+  private header(rowNo: number, cells: ReadonlyMap<number, RawCell>): void {
     let first = -1;
     let last = -1;
     for (const [c, v] of cells) {
@@ -85,7 +177,6 @@ class TableBuilder {
         if (c > last) last = c;
       }
     }
-    if (first < 0) return false;
     this.headerRow = rowNo;
     this.first = first;
     this.last = last;
@@ -93,13 +184,13 @@ class TableBuilder {
     for (let c = first; c <= last; c++) raw.push(headerText(cells.get(c) ?? null));
     this.headers = cleanHeaders(raw, first);
     const wanted = new Set<number>(this.keep ? this.keep(this.headers) : this.headers.map((_, i) => i));
-    this.headers.forEach((h, i) => {
-      if (h === STATUS_HEADER || h === NOTE_HEADER) wanted.add(i);
+    this.headers.forEach((hd, i) => {
+      if (hd === STATUS_HEADER || hd === NOTE_HEADER) wanted.add(i);
     });
     this.kept = this.headers.map((_, i) => wanted.has(i));
     this.collectors = this.kept.map((k) => (k ? new ColumnCollector(this.intern) : null));
+    this.unsaved = this.headers.map(() => 0);
     this.lastData = rowNo;
-    return true;
   }
 
   /** A data row (below the header): cell value by 0-based sheet column. */
@@ -111,17 +202,46 @@ class TableBuilder {
     }
     if (isEmpty(v)) {
       if (v === null || v === undefined) return;
-    } else if (rowNo > this.lastData) this.lastData = rowNo;
+    } else {
+      if (rowNo > this.lastData) {
+        this.lastData = rowNo;
+        this.lastTotal = false;
+      }
+      if (typeof v === 'string' && !this.rowTotal && isTotalLabel(v)) this.rowTotal = true;
+    }
     const col = this.collectors[col0 - this.first];
     if (col) col.set(rowNo - this.headerRow - 1, v);
   }
 
+  /** Called after each data row's cells. */
+  endRow(rowNo: number): void {
+    if (rowNo === this.lastData && this.rowTotal) this.lastTotal = true;
+    this.rowTotal = false;
+  }
+
   finish(): { columns: RawCell[][]; rowCount: number; busyColumns: number[] } {
-    const rowCount = this.lastData - this.headerRow;
+    if (!this.decided) this.decide();
+    let rowCount = this.lastData - this.headerRow;
+    if (this.lastTotal && rowCount > 0) {
+      this.notes.push(`Row ${this.lastData} was left out: it is a totals row (its label says total, or it holds SUBTOTAL formulas), not a claim`);
+      rowCount--;
+      // Blank rows between the data and the totals row are not data either.
+      const kept = this.collectors.filter((c): c is ColumnCollector => c !== null);
+      while (rowCount > 0 && kept.every((c) => isEmpty(c.cells[rowCount - 1] ?? null))) rowCount--;
+      this.lastData = this.headerRow + rowCount;
+    }
     const columns = this.collectors.map((c) => (c ? c.finish(rowCount) : []));
     const busyColumns = [...this.busy].filter(([, r]) => r <= this.lastData).map(([c]) => c).sort((a, b) => a - b);
     return { columns, rowCount, busyColumns };
   }
+}
+
+/** Sheet names and the sheet to read: the given one (exact, then ignoring case) or the first. */
+function targetSheet(names: readonly string[], wanted: string | undefined, file: string): string {
+  if (wanted === undefined) return names[0];
+  const t = names.find((n) => n === wanted) ?? names.find((n) => n.toLowerCase() === wanted.toLowerCase());
+  if (t === undefined) throw new InputFileError(`sheet "${wanted}" not found in ${file}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
+  return t;
 }
 
 async function readXlsxStreaming(path: string, options: StreamReadOptions): Promise<ReadTable> {
@@ -144,31 +264,32 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
         }
       }
     : undefined;
-  const b = new TableBuilder(keep, false);
+  const b = new TableBuilder(keep, false, options.headerRow);
   try {
     for await (const sheet of x.sheets()) {
       if (target === null) {
         names = x.sheetNames.length ? x.sheetNames : [sheet.name];
-        if (options.sheet !== undefined) {
-          target = names.find((n) => n === options.sheet) ?? names.find((n) => n.toLowerCase() === options.sheet!.toLowerCase()) ?? null;
-          if (target === null) throw new InputFileError(`sheet "${options.sheet}" not found in ${name}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
-        } else target = names[0];
+        target = targetSheet(names, options.sheet, name);
       }
       if (sheet.name !== target) {
         await x.skipSheet(sheet);
         continue;
       }
       found = true;
-      let haveHeader = false;
       const tail = await x.readSheet(sheet, {
         onRow(row) {
-          if (!haveHeader) {
-            const m = new Map<number, RawCell>();
-            for (const c of row.cells) m.set(c.col - 1, c.raw);
-            haveHeader = b.header(row.r, m);
-            return;
+          const m = new Map<number, RawCell>();
+          let total = false;
+          const unsaved: number[] = [];
+          for (const c of row.cells) {
+            m.set(c.col - 1, c.raw);
+            const v = c.value;
+            if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
+              if (isTotalFormula(v.formula)) total = true;
+              if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
+            }
           }
-          for (const c of row.cells) b.cell(row.r, c.col - 1, c.raw);
+          b.row(row.r, m, total, unsaved);
         },
       });
       merges = tail.merges;
@@ -185,8 +306,8 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
     if (names.length === 0) throw new InputFileError(`${name} has no worksheets`);
     throw new InputFileError(`sheet "${target}" not found in ${name}`);
   }
-  if (b.first < 0) throw new InputFileError(`sheet "${target}" in ${name} is empty`);
   const { columns, rowCount, busyColumns } = b.finish();
+  if (!b.hasHeader) throw new InputFileError(`sheet "${target}" in ${name} is empty`);
   // A merged range right of the table is not free either (its cells other than the first hold no value).
   const busy = new Set(busyColumns);
   for (const m of merges) {
@@ -208,35 +329,32 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
     headerRow: b.headerRow,
     firstColumn: b.first,
     streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names },
+    readNotes: b.notes,
+    merges: mergedSpans(merges, b.first, b.headers.length, b.headerRow, rowCount),
+    unsavedFormulas: b.unsaved,
   };
 }
 
 async function readCsvStreaming(path: string, options: StreamReadOptions): Promise<ReadTable> {
   const name = basename(path);
-  const b = new TableBuilder(options.keep, true);
-  let haveHeader = false;
+  let b = new TableBuilder(options.keep, true, options.headerRow);
+  let info;
   try {
-    await forEachCsvRecord(path, (rec, i) => {
-      const rowNo = i + 1;
-      if (!haveHeader) {
-        const m = new Map<number, RawCell>();
-        rec.forEach((f, c) => m.set(c, f.trim() === '' ? null : f));
-        if (!b.header(rowNo, m)) return;
-        haveHeader = true;
-        return;
-      }
-      for (let c = 0; c < rec.length; c++) {
-        const f = rec[c];
-        if (f !== '') b.cell(rowNo, c, f);
-      }
-    });
+    info = await forEachCsvRecordDetected(
+      path,
+      (rec, i) => b.record(i + 1, rec),
+      () => {
+        b = new TableBuilder(options.keep, true, options.headerRow);
+      },
+      options.encoding !== undefined ? { encoding: options.encoding } : {},
+    );
   } catch (e) {
     if (e instanceof CsvSyntaxError) throw new InputFileError(`${name}: ${e.message}`);
     if (e instanceof InputFileError || !(e instanceof Error) || !('code' in e)) throw e;
     throw new InputFileError(`cannot read ${name} (${e.message})`);
   }
-  if (!haveHeader) throw new InputFileError(`${name} is empty (no header row found)`);
   const { columns, rowCount, busyColumns } = b.finish();
+  if (!b.hasHeader) throw new InputFileError(`${name} is empty (no header row found)`);
   return {
     source: describe(path, null, b.first, b.headerRow, b.headers.length, rowCount),
     sheetName: sheetNameFromFile(path),
@@ -245,11 +363,12 @@ async function readCsvStreaming(path: string, options: StreamReadOptions): Promi
     rowCount,
     headerRow: b.headerRow,
     firstColumn: b.first,
-    streamed: { kind: 'csv', kept: b.kept, busyColumns, sheetNames: [] },
+    streamed: { kind: 'csv', kept: b.kept, busyColumns, sheetNames: [], text: { encoding: info.encoding.encoding, delimiter: info.delimiter } },
+    readNotes: [`${name}: ${describeEncoding(info.encoding)}, ${DELIMITER_WORDS[info.delimiter]}-separated`, ...b.notes],
   };
 }
 
-/** Read the table of an .xlsx or .csv file row by row. Throws InputFileError with a one-line message. */
+/** Read the table of an .xlsx or delimited text file row by row. Throws InputFileError with a one-line message. */
 export async function readTableStreaming(path: string, options: StreamReadOptions = {}): Promise<ReadTable> {
   return (await checkInputFile(path, options.sheet)) === 'xlsx' ? readXlsxStreaming(path, options) : readCsvStreaming(path, options);
 }

@@ -340,7 +340,7 @@ export async function writeScoredWorkbookStreaming(
         }
         row.commit();
         progress(rowNo);
-      }, { afterChunk: () => letOutputDrain(ws) });
+      }, { afterChunk: () => letOutputDrain(ws), ...(info.text ? { encoding: info.text.encoding, delimiter: info.text.delimiter } : {}) });
       for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
       finishScored(ws, null);
       ws.commit();

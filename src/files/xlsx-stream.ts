@@ -15,6 +15,7 @@
 import { createRequire } from 'node:module';
 import type ExcelJS from 'exceljs';
 import type { RawCell } from '../scoring/types.js';
+import { columnName } from '../table/names.js';
 
 const require = createRequire(import.meta.url);
 
@@ -147,16 +148,8 @@ const NOT_CARRIED: Record<string, string> = {
   sharedRichText: 'rich-text cell(s): RGB colours and strikethrough of parts of their text (the text, bold, italic, underline, size, font and theme colours are kept)',
 };
 
-const colLetters = (col: number): string => {
-  let n = col;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-};
+/** 1-based column -> letters. */
+const colLetters = (col: number): string => columnName(col - 1);
 
 function decodeRef(ref: string): { col: number; row: number } {
   let i = 0;
@@ -213,8 +206,27 @@ export class XlsxStream {
   async *sheets(): AsyncGenerator<SheetEntry> {
     for await (const { eventType, value } of this.reader.parse()) {
       if (eventType === 'worksheet') {
-        yield value as SheetEntry;
+        const ws = value as SheetEntry & { id?: string | number; name?: string; state?: string };
+        if (!ws.name || !this.sheetNames.includes(ws.name)) this.nameFromRels(ws);
+        yield ws;
       }
+    }
+  }
+
+  /**
+   * ExcelJS's reader (4.4.0) names a worksheet only when the workbook's relationship target reads
+   * exactly "worksheets/sheetN.xml"; openpyxl (what pandas' to_excel uses) writes absolute targets
+   * ("/xl/worksheets/sheetN.xml"), so its sheets came out unnamed and `--sheet Claims` was "not
+   * found". Match the target after removing a leading "/xl/" or "/".
+   */
+  private nameFromRels(ws: { id?: string | number; name?: string; state?: string }): void {
+    const rels = (this.reader as unknown as { workbookRels?: { Id: string; Target: string }[] }).workbookRels ?? [];
+    const want = `worksheets/sheet${String(ws.id)}.xml`;
+    const rel = rels.find((r) => r.Target.replace(/^\/?(?:xl\/)?/, '') === want);
+    const sheet = rel && (this.reader.model?.sheets as { name: string; state?: string; rId?: string }[] | undefined)?.find((s) => s.rId === rel.Id);
+    if (sheet) {
+      ws.name = sheet.name;
+      if (sheet.state !== undefined) ws.state = sheet.state;
     }
   }
 

@@ -19,7 +19,7 @@ import type { SandboxWorkbook } from '../sandbox/index.js';
 import { TailmarkPane } from '../taskpane/Pane.js';
 import type { ThemeName } from '../taskpane/theme.js';
 import { createWorkbookLayer, type ExcelRunner } from '../workbook/layer.js';
-import { parseCsv } from './csv.js';
+import { readDelimited, tableRows } from '../table/delimited.js';
 import { Grid } from './Grid.js';
 import { a1, sandboxSource } from './sandboxSource.js';
 
@@ -185,10 +185,12 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
     try {
       const { sandboxFromRows } = await import('../sandbox/index.js');
       let sb: SandboxWorkbook;
-      if (/\.csv$/i.test(file.name) || file.type === 'text/csv') {
-        const rows = parseCsv(await file.text());
-        if (rows.length === 0) throw new Error('The file is empty.');
-        sb = sandboxFromRows(file.name.replace(/\.csv$/i, '').slice(0, 31) || 'Sheet1', rows);
+      let readNotes: readonly string[] = [];
+      if (/\.(csv|tsv|txt|tab)$/i.test(file.name) || file.type === 'text/csv') {
+        // The one tabular reader (also the batch command's): encoding, delimiter, header row, totals row.
+        const t = readDelimited(new Uint8Array(await file.arrayBuffer()), file.name);
+        sb = sandboxFromRows(file.name.replace(/\.(csv|tsv|txt|tab)$/i, '').slice(0, 31) || 'Sheet1', tableRows(t));
+        readNotes = t.notes;
       } else {
         const [{ sandboxFromExcelJs }, ExcelJS] = await Promise.all([import('../sandbox/exceljs-bridge.js'), import('exceljs')]);
         const wb = new ExcelJS.default.Workbook();
@@ -199,9 +201,9 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
       sb.setSelection(first, 'A1');
       setBook((b) => ({ id: b.id + 1, sb, name: file.name }));
       setSheet(first);
-      setMessage({ intent: 'info', text: `Opened ${file.name}. It stays in this browser tab; nothing is uploaded.` });
+      setMessage({ intent: 'info', text: `Opened ${file.name}${readNotes.length ? ` (${readNotes.join('; ')})` : ''}. It stays in this browser tab; nothing is uploaded.` });
     } catch (e) {
-      setMessage({ intent: 'error', text: `Could not open ${file.name}: ${e instanceof Error ? e.message : String(e)}. Open an .xlsx or .csv file.` });
+      setMessage({ intent: 'error', text: `Could not open ${file.name}: ${e instanceof Error ? e.message : String(e)}. Open an .xlsx, .csv, .tsv or .txt file.` });
     } finally {
       setBusy(false);
     }
@@ -250,7 +252,7 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
               ref={fileRef}
               className={s.hidden}
               type="file"
-              accept=".xlsx,.csv,text/csv,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
+              accept=".xlsx,.csv,.tsv,.txt,text/csv,text/tab-separated-values,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
               data-testid="file-input"
               onChange={(e) => {
                 const f = e.target.files?.[0];

@@ -40,6 +40,12 @@ export interface PlanContext {
    * a streaming sink writes them one row at a time. Each read words the row afresh. Default 'eager'.
    */
   readonly reasonText?: 'eager' | 'on-demand';
+  /**
+   * (Added, optional.) What the reader of the source decided or changed, in words: encoding and
+   * delimiter of a text file, the header row when titles were skipped, a totals row left out,
+   * merged cells filled. Shown in the notes under "Reading the input".
+   */
+  readonly inputNotes?: readonly string[];
 }
 
 /**
@@ -270,6 +276,9 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   }
   if (excludedRows.length === 1) excludedRows.push(['(all columns)', 'no cells were left out', 0]);
   sections.push({ title: 'Cells left out', table: true, rows: excludedRows });
+  if (ctx.inputNotes && ctx.inputNotes.length > 0) {
+    sections.push({ title: 'Reading the input', rows: ctx.inputNotes.map((line): PlanCell[] => [line]) });
+  }
 
   const unreachable: PlanCell[][] = [['Column', 'Group', 'n', 'Largest possible |z| = (n-1)/sqrt(n)', 'Cutoff']];
   for (const col of result.columns) {

@@ -24,12 +24,13 @@ export interface Grouping {
 }
 
 /**
- * The key text of one cell: strings trimmed, numbers via String(), booleans TRUE/FALSE, Dates as
+ * The key text of one cell: strings trimmed and in Unicode normalization form NFC (so "é" typed as
+ * one code point and as "e" + combining accent are one group), numbers via String(), booleans TRUE/FALSE, Dates as
  * ISO date (YYYY-MM-DD, UTC), error cells as their code; blank -> '' (labelled "(blank)").
  */
 export function keyPart(cell: RawCell): string {
   if (cell === null || cell === undefined) return '';
-  if (typeof cell === 'string') return cell.trim();
+  if (typeof cell === 'string') return cell.trim().normalize('NFC');
   if (typeof cell === 'number') return String(cell);
   if (typeof cell === 'boolean') return cell ? 'TRUE' : 'FALSE';
   if (cell instanceof Date) return Number.isNaN(cell.getTime()) ? '(invalid date)' : cell.toISOString().slice(0, 10);
@@ -87,7 +88,7 @@ function codeKeyColumn(cells: ArrayLike<RawCell>, rowCount: number, out: Int32Ar
     if (typeof cell === 'string') {
       code = byText[cell];
       if (code === undefined) {
-        code = codeOf(cell.trim());
+        code = codeOf(cell.trim().normalize('NFC'));
         byText[cell] = code;
       }
     } else if (typeof cell === 'object' && cell !== null) {

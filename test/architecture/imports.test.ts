@@ -15,14 +15,15 @@ const allowed: Record<string, readonly string[]> = {
   demo: ['scoring'],
   sandbox: [],
   report: ['scoring'],
+  table: ['scoring'],
   workbook: ['report', 'scoring'],
-  files: ['report', 'scoring', 'demo'],
+  files: ['table', 'report', 'scoring', 'demo'],
   taskpane: ['workbook', 'report', 'scoring'],
-  preview: ['taskpane', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
-  cli: ['files', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
+  preview: ['taskpane', 'workbook', 'table', 'report', 'scoring', 'sandbox', 'demo'],
+  cli: ['files', 'workbook', 'table', 'report', 'scoring', 'sandbox', 'demo'],
 };
 /** Layers that must stay free of Node built-ins (pure, or shipped to the browser). */
-const noNode = ['scoring', 'demo', 'sandbox', 'report', 'workbook', 'taskpane', 'preview'];
+const noNode = ['scoring', 'table', 'demo', 'sandbox', 'report', 'workbook', 'taskpane', 'preview'];
 
 function walk(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {

@@ -29,7 +29,7 @@ describe('bin/tailmark.js (real process)', () => {
   it('--help exits 0 with the usage text', () => {
     const r = node(['--help']);
     expect(r.status).toBe(0);
-    expect(r.stdout).toContain('tailmark score <input.xlsx|input.csv> --value <header>');
+    expect(r.stdout).toContain('tailmark score <input.xlsx|input.csv|.tsv|.txt> --value <header>');
     expect(r.stderr).toBe('');
   });
 

@@ -56,7 +56,7 @@ describe('bad input: exit code 2 and one clear line', () => {
     await bad(/has a header row but no data rows/, 'score', headerOnly, '--value', 'Amount');
     const junk = join(dir, 'junk.xlsx');
     writeFileSync(junk, 'not a workbook at all');
-    await bad(/cannot read junk\.xlsx as an \.xlsx workbook/, 'score', junk, '--value', 'Amount');
+    await bad(/junk\.xlsx is a text file, not an \.xlsx workbook/, 'score', junk, '--value', 'Amount');
     const odd = join(dir, 'claims.ods');
     writeFileSync(odd, 'x');
     await bad(/unsupported file type "\.ods"/, 'score', odd, '--value', 'Amount');

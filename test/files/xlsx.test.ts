@@ -56,7 +56,10 @@ describe('readTable on .xlsx', () => {
   it('rejects a file that is not a workbook, and unsupported extensions', async () => {
     const bad = join(dir, 'bad.xlsx');
     writeFileSync(bad, 'this is not a zip');
-    await expect(readTable(bad)).rejects.toThrow(/cannot read bad\.xlsx/);
+    await expect(readTable(bad)).rejects.toThrow(/bad\.xlsx is a text file, not an \.xlsx workbook: .*rename it to end in \.csv/);
+    const broken = join(dir, 'broken.xlsx');
+    writeFileSync(broken, Buffer.concat([Buffer.from('PK\x03\x04'), Buffer.from('xl/workbook.xml'), Buffer.alloc(40)]));
+    await expect(readTable(broken)).rejects.toThrow(/cannot read broken\.xlsx as an \.xlsx workbook/);
     const odd = join(dir, 'x.ods');
     writeFileSync(odd, 'x');
     await expect(readTable(odd)).rejects.toThrow(/unsupported file type ".ods"/);

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { CsvSyntaxError, detectDelimiter, parseCsv } from '../../src/files/csv.js';
+import { CsvSyntaxError, sniffDelimiter as detectDelimiter, parseCsv } from '../../src/table/csv.js';
 import { readTable } from '../../src/files/read.js';
 
 // Expected records follow RFC 4180 section 2 (rules 1-7), written out by hand.

@@ -1,0 +1,33 @@
+/** Header names and the reader's error type (pure). */
+
+/** A problem with an input table, worded for the person who runs the command or opens the file. */
+export class TableReadError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'TableReadError';
+  }
+}
+
+/** 0-based column index -> letters ("A", "Z", "AA"). */
+export function columnName(index: number): string {
+  let n = index + 1;
+  let s = '';
+  while (n > 0) {
+    const r = (n - 1) % 26;
+    s = String.fromCharCode(65 + r) + s;
+    n = Math.floor((n - 1) / 26);
+  }
+  return s;
+}
+
+/** Make header names usable as keys: empty ones get the column letter, repeats get " (2)", " (3)"... */
+export function uniqueHeaders(raw: readonly string[], firstColumn: number): string[] {
+  const seen = new Map<string, number>();
+  return raw.map((h, i) => {
+    let name = h.trim() === '' ? `Column ${columnName(firstColumn + i)}` : h.trim();
+    const count = (seen.get(name.toLowerCase()) ?? 0) + 1;
+    seen.set(name.toLowerCase(), count);
+    if (count > 1) name = `${name} (${count})`;
+    return name;
+  });
+}
