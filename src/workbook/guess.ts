@@ -6,11 +6,11 @@
  *  - date:   most non-blank cells are dates (numbers shown with a date format);
  *  - id:     every non-blank value distinct and the header reads like an identifier
  *            ("id", "ref", "no", "number", "#", "code"), or text with every value distinct;
- *  - amount: at least 80 % of non-blank cells read as numbers;
- *  - key:    text with few distinct values (at most half the non-blank cells, and at most 500);
+ *  - amount: at least 80 % of non-blank cells read as numbers, and money-like (see guessColumn);
+ *  - key:    repeated short labels (see guessColumn);
  *  - text:   anything else.
  */
-import { parseCell } from '../scoring/index.js';
+import { inferDecimal, parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
 import type { ColumnGuess, DetectedColumn } from './api.js';
 import { columnLetters } from './a1.js';
@@ -49,30 +49,69 @@ export function headerNames(first: readonly RawCell[], firstColumn: number, hasH
   });
 }
 
-/** Guess one column's role from its sample cells. */
+/** Headers that name money (rule of thumb, common practice, no source). */
+const MONEY_HEADER = /amount|total|cost|price|value|sum|paid|spend|spent|fee|fare|expense|claim(?!\s*(?:id|no|ref|number|#))|net|gross|vat|tax|eur|usd|gbp|chf|betrag|montant|importe|importo|bedrag|[£$€¥]/i;
+/** Dates written as text: 2025-01-31, 31.01.2025, 1/31/25. */
+const DATE_TEXT = /^\s*(?:\d{4}-\d{1,2}-\d{1,2}(?:[ T]\d{1,2}:\d{2}(?::\d{2})?)?|\d{1,2}[./-]\d{1,2}[./-]\d{2,4})\s*$/;
+
+/**
+ * Guess one column's role from its sample cells (rules of thumb, common practice, no source):
+ * - date: most cells are dates, or text written as dates;
+ * - id: distinct values and an identifier-like header, or distinct text, or distinct whole numbers
+ *   that run in steps of one (row numbers, sequential claim numbers);
+ * - amount: at least 80 % of cells read as numbers (the decimal separator decided for the whole
+ *   sample), and they look like money: not all whole numbers between 1900 and 2100 (years), and not
+ *   whole-number codes that repeat (cost-centre numbers such as 4100) unless the header names money;
+ * - key: text (or whole-number codes) with a sensible number of repeated labels: at least two
+ *   labels, at most half as many labels as cells and at most 500, most cells sharing their label
+ *   with another, and short labels (free-text notes are neither);
+ * - text: anything else.
+ */
 export function guessColumn(index: number, header: string, cells: readonly RawCell[]): DetectedColumn {
+  const decimalComma = inferDecimal(cells).separator === 'comma';
   let nonBlank = 0;
-  let numeric = 0;
   let dates = 0;
   let texts = 0;
-  const distinct = new Set<string>();
+  let textChars = 0;
+  const numbers: number[] = [];
+  const seen = new Map<string, number>();
   for (const cell of cells) {
     if (cell === null || cell === undefined || (typeof cell === 'string' && cell.trim() === '')) continue;
     nonBlank++;
-    if (cell instanceof Date) dates++;
-    else if (parseCell(cell).ok) numeric++;
-    else if (typeof cell === 'string') texts++;
-    if (distinct.size < DISTINCT_CAP) distinct.add(cellText(cell).toLowerCase());
+    if (cell instanceof Date || (typeof cell === 'string' && DATE_TEXT.test(cell))) dates++;
+    else {
+      const p = parseCell(cell, { decimalComma });
+      if (p.ok) numbers.push(p.value);
+      else if (typeof cell === 'string') {
+        texts++;
+        textChars += cell.length;
+      }
+    }
+    if (seen.size < DISTINCT_CAP) {
+      const k = cellText(cell).toLowerCase();
+      seen.set(k, (seen.get(k) ?? 0) + 1);
+    }
   }
+  const numeric = numbers.length;
   const numericShare = nonBlank === 0 ? 0 : numeric / nonBlank;
+  const distinct = seen.size;
+  const allDistinct = nonBlank >= 2 && distinct === nonBlank;
+  const whole = numeric > 0 && numbers.every((v) => Number.isInteger(v));
+  const years = whole && numbers.every((v) => v >= 1900 && v <= 2100);
+  const sorted = whole ? [...numbers].sort((a, b) => a - b) : [];
+  const sequential = whole && numeric >= 3 && sorted.every((v, i) => i === 0 || v - sorted[i - 1] === 1);
+  let repeated = 0;
+  for (const c of seen.values()) if (c > 1) repeated += c;
+  const labelsRepeat = nonBlank >= 2 && distinct >= 2 && distinct <= Math.min(500, Math.max(1, nonBlank / 2)) && repeated >= nonBlank * 0.5;
+  const moneyHeader = MONEY_HEADER.test(header) && !ID_HEADER.test(header);
   let guess: ColumnGuess;
-  const allDistinct = nonBlank >= 2 && distinct.size === nonBlank;
   if (nonBlank === 0) guess = 'empty';
   else if (dates / nonBlank >= 0.8) guess = 'date';
   else if (allDistinct && ID_HEADER.test(header)) guess = 'id';
-  else if (numericShare >= 0.8) guess = 'amount';
+  else if (numericShare >= 0.8 && allDistinct && sequential) guess = 'id';
+  else if (numericShare >= 0.8 && !years && (moneyHeader || !(whole && labelsRepeat && sorted[0] >= 100))) guess = 'amount';
   else if (allDistinct && texts > 0) guess = 'id';
-  else if (texts > 0 && nonBlank >= 2 && distinct.size <= Math.min(500, Math.max(1, nonBlank / 2))) guess = 'key';
+  else if (labelsRepeat && (texts > 0 || whole) && (texts === 0 || textChars / texts <= 40)) guess = 'key';
   else guess = 'text';
-  return { index, header, guess, numericShare, distinct: distinct.size };
+  return { index, header, guess, numericShare, distinct };
 }
