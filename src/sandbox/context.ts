@@ -145,7 +145,7 @@ export class SandboxContext {
     let respBytes = 2;
     this.memoResets = [];
     this.applying = true;
-    let failed: unknown = null;
+    let failed: { error: unknown } | null = null;
     if (!partial) model.begin();
     try {
       for (const a of actions) {
@@ -173,7 +173,7 @@ export class SandboxContext {
         throw err('ResponsePayloadSizeLimitExceeded', `The response payload (${respBytes} bytes) exceeds the limit of ${limit} bytes. Load fewer cells per sync.`, 'RequestContext.sync');
       }
     } catch (e) {
-      failed = e;
+      failed = { error: e };
     } finally {
       this.applying = false;
     }
@@ -182,7 +182,7 @@ export class SandboxContext {
       if (!partial) model.rollback();
       for (const f of this.memoResets) f();
       this.memoResets = [];
-      throw failed;
+      throw failed.error;
     }
     if (!partial) model.commit();
     this.memoResets = [];
@@ -225,7 +225,7 @@ export abstract class ProxyBase<T> {
     /** @internal */ readonly orNull: boolean,
   ) {
     this.createdAt = context.syncCount;
-    if (orNull) context.pendingNull.push(this as ProxyBase<unknown>);
+    if (orNull) context.pendingNull.push(this);
   }
 
   /** Resolve the object path against the current model; null when it does not exist. */
@@ -516,7 +516,7 @@ export class WorkbookProxy extends ProxyBase<WorkbookModel> {
 
 export class SelectionEventProxy {
   constructor(private readonly ctx: SandboxContext) {}
-  add(handler: (args: { workbook: unknown; type: string }) => Promise<unknown> | unknown): EventHandlerResultProxy {
+  add(handler: (args: { workbook: unknown; type: string }) => unknown): EventHandlerResultProxy {
     const result = new EventHandlerResultProxy(this.ctx);
     this.ctx.enqueue({
       statement: 'workbook.onSelectionChanged.add(handler)',
@@ -830,7 +830,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
     const m = this.context.model;
     const { sheet, rect: r } = t;
     const grid = (f: (row: number, col: number) => unknown): unknown[][] => {
-      const out: unknown[][] = new Array(r.rows);
+      const out: unknown[][] = new Array<unknown[]>(r.rows);
       for (let i = 0; i < r.rows; i++) {
         const row = new Array(r.cols);
         for (let j = 0; j < r.cols; j++) row[j] = f(r.r0 + i, r.c0 + j);
@@ -882,7 +882,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
       const f = sheet.cols[r.c0 + j]?.f;
       if (f) for (let i = r.r0; i < Math.min(f.length, r.r0 + r.rows); i++) if (f[i] !== undefined) return null;
     }
-    const out: unknown[][] = new Array(r.rows);
+    const out: unknown[][] = new Array<unknown[]>(r.rows);
     for (let i = 0; i < r.rows; i++) out[i] = new Array(r.cols);
     for (let j = 0; j < r.cols; j++) {
       const v = sheet.cols[r.c0 + j]?.v;
@@ -1342,7 +1342,6 @@ export class RangeFontProxy extends ProxyBase<RangeTarget> {
     return this.range.target();
   }
   protected read(t: RangeTarget, prop: string): unknown {
-    const m = this.context.model;
     if (prop === 'color') return uniform(t, 'font', '#000000');
     if (prop === 'bold') return uniform(t, 'bold', false);
     return undefined;
@@ -2077,7 +2076,7 @@ export class TableColumnProxy extends ProxyBase<ColumnTarget> {
     switch (prop) {
       case 'id': return t.index + 1;
       case 'index': return t.index;
-      case 'name': return generalText(val(table.rect.r0) as number | string | boolean);
+      case 'name': return generalText(val(table.rect.r0));
       case 'values': return Array.from({ length: table.rect.rows }, (_, i) => [val(table.rect.r0 + i)]);
     }
     return undefined;
