@@ -30,7 +30,7 @@ interface PartXform {
   reconcile?(model: unknown, options: unknown): void;
 }
 
-const { slideFormula } = require('exceljs/lib/utils/shared-formula') as { slideFormula(f: string, from: string, to: string): string };
+const { slideFormula } = require('exceljs/lib/utils/shared-formula') as { slideFormula: (f: string, from: string, to: string) => string };
 const utils = require('exceljs/lib/utils/utils') as {
   isDateFmt(fmt: string | undefined): boolean;
   excelToDate(v: number, date1904?: boolean): Date;
@@ -195,7 +195,7 @@ class CellReader {
       const text = sv.richText.map((r) => r.text ?? '').join('');
       // ExcelJS's shared-string reader (4.4.0) drops run colours given as rgb and strikethrough.
       count(this.notCarried, 'sharedRichText');
-      return { raw: text === '' ? null : text, value: sv as ExcelJS.CellRichTextValue };
+      return { raw: text === '' ? null : text, value: sv };
     }
     if (t === 'inlineStr') {
       const s = this.isText ?? '';
@@ -241,7 +241,7 @@ class CellReader {
       if (formula === '') value = result.value; // a formula we cannot rebuild: keep its last value
       else if (t === 'array' && this.fAttrs?.ref) {
         value = { formula, shareType: 'array', ref: this.fAttrs.ref, result: res } as unknown as ExcelJS.CellValue;
-      } else value = res === undefined ? ({ formula } as ExcelJS.CellValue) : ({ formula, result: res } as ExcelJS.CellValue);
+      } else value = res === undefined ? { formula } : { formula, result: res };
     }
     return value !== null || this.s > 0 ? { col: this.col, s: this.s, value, raw: result.raw } : null;
   }
@@ -303,7 +303,8 @@ class PageSetupReader {
   /** Takes text inside a header or footer part; false when not inside one. */
   text(text: string): boolean {
     if (this.hfPart === null || !this.headerFooter) return false;
-    this.headerFooter[this.hfPart] += text;
+    const sofar = this.headerFooter[this.hfPart];
+    this.headerFooter[this.hfPart] = (typeof sofar === 'string' ? sofar : '') + text;
     return true;
   }
 
@@ -561,8 +562,8 @@ export class SheetParser {
       dataValidations: this.dataValidations,
       autoFilter: this.autoFilter,
       notCarried: this.notCarried,
-      ...(pageSetup ? { pageSetup: pageSetup as Partial<ExcelJS.PageSetup> } : {}),
-      ...(headerFooter ? { headerFooter: headerFooter as Partial<ExcelJS.HeaderFooter> } : {}),
+      ...(pageSetup ? { pageSetup } : {}),
+      ...(headerFooter ? { headerFooter } : {}),
     };
   }
 }
