@@ -5,10 +5,11 @@
  * Exit codes: 0 success (flags found or not), 2 bad input or options (one line on stderr), 1 anything
  * unexpected.
  */
+import { once } from 'node:events';
 import { mkdir, stat } from 'node:fs/promises';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { scoreTable } from '../scoring/index.js';
-import { EXCLUSION_LABELS, EXCLUSION_REASONS, POPULATIONS, type RawCell, type ScoreResult } from '../scoring/types.js';
+import { EXCLUSION_LABELS, EXCLUSION_REASONS, type RawCell, type ScoreResult } from '../scoring/types.js';
 import { buildPlan } from '../report/plan.js';
 import { CAUTION } from '../report/style.js';
 import { describeDecimal } from '../report/decimal.js';
@@ -19,6 +20,7 @@ import { writeScoredWorkbookStreaming } from '../files/stream-write.js';
 import { OutputFileError, writeScoredWorkbook } from '../files/write.js';
 import { checkOutPath } from '../files/layout.js';
 import { writeDemoWorkbook } from '../files/demo.js';
+import { writeResultJson } from '../files/json-out.js';
 import { HELP, parseDemoArgs, parseScoreArgs, UsageError, type ScoreArgs } from './args.js';
 
 const LARGE_ROWS = 50_000;
@@ -37,12 +39,15 @@ interface Io {
   out: (s: string) => void;
   err: (s: string) => void;
   progress: boolean;
+  /** Resolves when stdout can take more (streamed --json output waits on it). */
+  drain?: () => Promise<void> | void;
 }
 
 const defaultIo = (): Io => ({
   out: (s) => void process.stdout.write(s),
   err: (s) => void process.stderr.write(s),
   progress: Boolean(process.stderr.isTTY),
+  drain: () => (process.stdout.writableNeedDrain ? once(process.stdout, 'drain').then(() => undefined) : undefined),
 });
 
 /** Find a header by exact name, then ignoring case and surrounding spaces. */
@@ -79,54 +84,6 @@ function resolveColumns(args: ScoreArgs, headers: readonly string[], where: stri
 function defaultOut(input: string): string {
   const dir = dirname(input);
   return join(dir, `${basename(input, extname(input))}-tailmark.xlsx`);
-}
-
-function n(x: number): number | null {
-  return Number.isFinite(x) ? x : null;
-}
-
-function toJson(result: ScoreResult, table: ReadTable, idIndex: number | null) {
-  const multi = result.columns.length > 1;
-  const rows: Record<string, unknown>[] = [];
-  const groups: Record<string, unknown>[] = [];
-  for (const col of result.columns) {
-    for (let r = 0; r < result.rowCount; r++) {
-      const g = col.groups[col.groupOf[r]];
-      const entry: Record<string, unknown> = {
-        row: r + 1,
-        group: g ? g.label : null,
-        value: n(col.values[r]),
-        score: n(col.scores[r]),
-        flagged: col.flagged[r] === 1,
-      };
-      if (idIndex !== null) entry.id = rawText(table.columns[idIndex][r]);
-      if (multi) entry.column = col.column;
-      entry.comparedWith = POPULATIONS[col.population[r]];
-      rows.push(entry);
-    }
-    for (const g of col.groups) {
-      const entry: Record<string, unknown> = {
-        key: g.label,
-        n: g.n,
-        center: g.center,
-        scale: g.scale,
-        lower: g.lower,
-        upper: g.upper,
-        flagged: g.flagged,
-      };
-      if (multi) entry.column = col.column;
-      groups.push(entry);
-    }
-  }
-  const decimal = Object.fromEntries(result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
-  return { method: result.options.method, cutoff: result.options.cutoff, decimal, rows, groups };
-}
-
-function rawText(v: RawCell): string | null {
-  if (v === null || v === undefined) return null;
-  if (v instanceof Date) return v.toISOString();
-  if (typeof v === 'object') return v.code;
-  return String(v);
 }
 
 async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{ outPath: string | null; result: ScoreResult }> {
@@ -169,6 +126,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   // in it (hyperlinks, comments, pictures...); the table is read that way too, as before.
   const table: ReadTable = !streaming && wantWorkbook ? await readTable(args.input, { ...readOptions, sheet: streamedTable.sheetName }) : streamedTable;
   checkFormulas(table, [...valueIdx, ...groupIdx], basename(args.input));
+  if (wantWorkbook) checkSheetLimit(table, basename(args.input));
   const inputNotes = [...(table.readNotes ?? []), ...fillMergedKeys(table, groupIdx)];
   const large = table.rowCount >= LARGE_ROWS;
 
@@ -235,7 +193,11 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
           notCarried.length ? `Not carried over from the input: ${notCarried.join('; ')}.` : 'Nothing in the input was left out.'
         }\n`;
   if (args.json) {
-    io.out(`${JSON.stringify(toJson(result, table, idIndex), null, 2)}\n`);
+    // Streamed a chunk at a time, waiting for stdout to drain: no size limit, no whole-document string.
+    await writeResultJson(result, idIndex !== null ? table.columns[idIndex] : null, async (chunk) => {
+      io.out(chunk);
+      await io.drain?.();
+    });
     if (outPath) io.err(`wrote ${outPath}\n${modeLine}`);
   } else {
     const flagged = new Set<number>();
@@ -251,6 +213,24 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     );
   }
   return { outPath, result };
+}
+
+/** Rows in one worksheet (the spreadsheet's limit, header included). */
+export const SHEET_ROWS = 1_048_576;
+
+/**
+ * A scored workbook keeps the input's rows where they are, so the input must fit on one sheet:
+ * refuse (before any work) rather than write rows a spreadsheet program would silently drop.
+ */
+function checkSheetLimit(table: ReadTable, file: string): void {
+  const last = table.headerRow + table.rowCount;
+  if (last <= SHEET_ROWS) return;
+  throw new InputFileError(
+    `${file} has ${table.rowCount.toLocaleString('en')} claims below its header (row ${table.headerRow}), ending on row ${last.toLocaleString('en')}: ` +
+      `a worksheet holds ${SHEET_ROWS.toLocaleString('en')} rows, so the scored workbook cannot hold them all. ` +
+      `Split the file into parts of at most ${(SHEET_ROWS - table.headerRow).toLocaleString('en')} claims (for example by month or cost centre) and score each, ` +
+      'or use --json without --out, which has no row limit',
+  );
 }
 
 /** Refuse a run whose value or group column holds formulas without saved results (they read as blank). */

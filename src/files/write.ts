@@ -14,6 +14,7 @@ import type { Plan, PlanCell } from '../report/types.js';
 import { ruleFormula, isTailmarkFormula } from '../report/rules.js';
 import { REVIEW_STATUSES } from '../report/style.js';
 import { fileKind, InputFileError, readTable, type ReadTable } from './read.js';
+import { compactValidations } from './validation-ranges.js';
 import { argb, checkOutPath, notesLayout, OutputFileError, placeColumns, RESULT_HEADER_STYLE, ruleRange, solid } from './layout.js';
 
 export { OutputFileError } from './layout.js';
@@ -203,6 +204,9 @@ export async function writeScoredWorkbook(
   }
   notes.getColumn(1).width = 34;
   for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
+
+  // Validations go back with the ranges they came with (ExcelJS would write overlapping ones).
+  for (const sheet of wb.worksheets) compactValidations((sheet as unknown as { dataValidations: SheetValidations }).dataValidations.model);
 
   options.onProgress?.('saving', 0);
   const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);

@@ -35,7 +35,7 @@ interface WorkbookReaderLike {
   sharedStrings?: (string | { richText: { text: string }[] })[];
   styles: StyleManager;
   properties?: { model?: { date1904?: boolean } };
-  model?: { sheets?: { name: string; state?: string }[]; definedNames?: unknown[] };
+  model?: { sheets?: { name: string; state?: string; rId?: string }[]; definedNames?: unknown[] };
   stream?: { destroy(): void };
 }
 interface ExcelJsModule {
@@ -102,7 +102,7 @@ export class XlsxStream {
     const rels = (this.reader as unknown as { workbookRels?: { Id: string; Target: string }[] }).workbookRels ?? [];
     const want = `worksheets/sheet${String(ws.id)}.xml`;
     const rel = rels.find((r) => r.Target.replace(/^\/?(?:xl\/)?/, '') === want);
-    const sheet = rel && (this.reader.model?.sheets as { name: string; state?: string; rId?: string }[] | undefined)?.find((s) => s.rId === rel.Id);
+    const sheet = rel && this.reader.model?.sheets?.find((s) => s.rId === rel.Id);
     if (sheet) {
       ws.name = sheet.name;
       if (sheet.state !== undefined) ws.state = sheet.state;

@@ -108,7 +108,7 @@ export function guessColumn(index: number, header: string, cells: readonly RawCe
   if (nonBlank === 0) guess = 'empty';
   else if (dates / nonBlank >= 0.8) guess = 'date';
   else if (allDistinct && ID_HEADER.test(header)) guess = 'id';
-  else if (numericShare >= 0.8 && allDistinct && sequential) guess = 'id';
+  else if (numericShare >= 0.8 && allDistinct && sequential && !moneyHeader) guess = 'id';
   else if (numericShare >= 0.8 && !years && (moneyHeader || !(whole && labelsRepeat && sorted[0] >= 100))) guess = 'amount';
   else if (allDistinct && texts > 0) guess = 'id';
   else if (labelsRepeat && (texts > 0 || whole) && (texts === 0 || textChars / texts <= 40)) guess = 'key';

@@ -9,6 +9,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import ExcelJS from 'exceljs';
+import JSZip from 'jszip';
 import * as XLSX from 'xlsx';
 import { readDelimited, tableRows } from '../../src/table/delimited.js';
 import { scoreTable } from '../../src/scoring/index.js';
@@ -167,17 +168,17 @@ function plainSheet(ws: ExcelJS.Worksheet, top = 1): void {
  * Rewrite an ExcelJS workbook as openpyxl lays it out: worksheets stored before workbook.xml, and
  * relationship targets written as absolute paths ("/xl/worksheets/sheet1.xml").
  */
-function asOpenpyxl(src: string, dst: string): void {
-  const cfb = XLSX.CFB.read(readFileSync(src), { type: 'buffer' });
-  const entries = cfb.FullPaths.map((p: string, i: number) => [p.replace(/^Root Entry\//, ''), cfb.FileIndex[i]] as const).filter(([, e]: readonly [string, { type: number; content: unknown }]) => e.type === 2);
+async function asOpenpyxl(src: string, dst: string): Promise<void> {
+  const zip = await JSZip.loadAsync(readFileSync(src));
+  const names = Object.keys(zip.files).filter((p) => !zip.files[p].dir);
   const rank = (p: string) => (p.includes('worksheets/') ? 0 : p.includes('workbook.xml') ? 2 : 1);
-  const out = XLSX.CFB.utils.cfb_new();
-  for (const [p, e] of [...entries].sort((a, b) => rank(a[0]) - rank(b[0]))) {
-    let content = Buffer.from(e.content as Uint8Array);
+  const out = new JSZip();
+  for (const p of [...names].sort((a, b) => rank(a) - rank(b))) {
+    let content = await zip.files[p].async('nodebuffer');
     if (p === 'xl/_rels/workbook.xml.rels') content = Buffer.from(content.toString('utf8').replace(/Target="(?!\/)/g, 'Target="/xl/'));
-    XLSX.CFB.utils.cfb_add(out, p, content);
+    out.file(p, content);
   }
-  writeFileSync(dst, XLSX.CFB.write(out, { fileType: 'zip', type: 'buffer' }) as Buffer);
+  writeFileSync(dst, await out.generateAsync({ type: 'nodebuffer', compression: 'DEFLATE' }));
 }
 
 describe('workbook exports read to the same values as the plain CSV', () => {
@@ -188,7 +189,7 @@ describe('workbook exports read to the same values as the plain CSV', () => {
       ws.getCell('A2').value = 'Exported 2025-04-01';
       plainSheet(ws, 4);
       const last = 4 + claims.length;
-      ws.getRow(last + 1).values = ['Total', null, null, { formula: `SUBTOTAL(109,D5:D${last})`, result: 1 } as ExcelJS.CellFormulaValue];
+      ws.getRow(last + 1).values = ['Total', null, null, { formula: `SUBTOTAL(109,D5:D${last})`, result: 1 }];
     });
     for (const stream of [[], ['--stream']]) {
       const got = await scoreJson(f, ...stream);
@@ -203,7 +204,7 @@ describe('workbook exports read to the same values as the plain CSV', () => {
       wb.addWorksheet('Other').getCell('A1').value = 'x';
     });
     const f = join(dir, 'openpyxl.xlsx');
-    asOpenpyxl(src, f);
+    await asOpenpyxl(src, f);
     const got = await scoreJson(f, '--sheet', 'Claims');
     expect(got.rows.map((r) => [r.value, r.group, r.score])).toEqual(reference.rows.map((r) => [r.value, r.group, r.score]));
     const other = await run('score', f, '--sheet', 'Nope', '--value', 'Amount', '--json');
