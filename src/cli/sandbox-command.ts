@@ -1,10 +1,12 @@
 /**
- * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--out <path>] [--force] [--json]`
+ * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--force] [--json]`
  *
  * Runs the add-in's workbook layer headless, exactly as the task pane does (detect -> run), on an
  * in-memory copy of the file (the sandbox), then optionally writes the result as .xlsx and prints
  * what the run cost and changed. With --rerun it marks a few flagged claims with review statuses
  * and notes, runs again with the same settings and reports whether the marks were kept.
+ * With --office-client the layer runs through Microsoft's real Office.js client (requests answered
+ * by the sandbox; see office-client.ts) and the request/response sizes are the real wire sizes.
  *
  * Exit codes: 0 success, 2 bad input or options (one line on stderr), 1 unexpected failure.
  */
@@ -18,6 +20,7 @@ import { TailmarkError, type DetectedTable, type RunSettings } from '../workbook
 import { defaultCutoff } from '../scoring/index.js';
 import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
+import { officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
 
 class BadInput extends Error {}
@@ -39,9 +42,10 @@ interface SandboxArgs {
   out: string | undefined;
   force: boolean;
   json: boolean;
+  officeClient: boolean;
 }
 
-const FLAGS = new Set(['log', 'decimal-comma', 'rerun', 'force', 'json']);
+const FLAGS = new Set(['log', 'decimal-comma', 'rerun', 'force', 'json', 'office-client']);
 const VALUES = new Set(['value', 'group', 'id', 'method', 'cutoff', 'direction', 'min-group', 'small-groups', 'sheet', 'out']);
 const LISTS = new Set(['value', 'group']);
 
@@ -113,6 +117,7 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
     out: one('out'),
     force: opts.has('force'),
     json: opts.has('json'),
+    officeClient: opts.has('office-client'),
   };
 }
 
@@ -244,15 +249,19 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     const sheet = args.sheet ?? sheets[0];
     if (!sheets.includes(sheet)) throw new BadInput(`no sheet "${sheet}" in ${args.input}; sheets: ${sheets.join(', ')}`);
     sb.setSelection(sheet, 'A1');
-    const layer = createWorkbookLayer(sb.run);
+    const host = args.officeClient ? officeClientFor(sb) : null;
+    const run = host ? (host.run as SandboxWorkbook['run']) : sb.run;
+    const layer = createWorkbookLayer(run, { runInContext: run });
     const before = sb.snapshot();
     sb.stats.reset();
+    host?.wire.reset();
     const table = await layer.detect();
     const settings = settingsFor(table, args);
     const summary = await layer.run(table, settings);
     const syncs = sb.stats.syncs;
-    const maxRequestBytes = sb.stats.requestBytes.max;
-    const maxResponseBytes = sb.stats.responseBytes.max;
+    // Through the real client these are the sizes of the JSON it sent and received.
+    const maxRequestBytes = host ? host.wire.requestBytes.max : sb.stats.requestBytes.max;
+    const maxResponseBytes = host ? host.wire.responseBytes.max : sb.stats.responseBytes.max;
     const firstRun = layer.lastRun!;
     const afterFirst = sb.snapshot();
     const ourCols = firstRun.resultColumns.map(letterIndex);
@@ -286,7 +295,9 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
       await sandboxToExcelJs(sb).xlsx.writeFile(resolve(args.out));
     }
     const report = {
+      client: host ? 'office-js' : 'sandbox',
       syncs,
+      ...(host ? { clientCleanupRequests: host.wire.releaseRequests } : {}),
       maxRequestBytes,
       maxResponseBytes,
       userCellsChanged,
@@ -304,7 +315,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     else {
       process.stdout.write(
         `sandbox run on ${table.address}: ${summary.rowsScored} rows scored, ${summary.flagged} flagged, ${highlightedRows} rows highlighted\n` +
-          `  ${syncs} syncs, largest request ${maxRequestBytes} B, largest response ${maxResponseBytes} B, user cells changed: ${userCellsChanged}\n` +
+          `  ${host ? 'through the Office.js client: ' : ''}${syncs} syncs, largest request ${maxRequestBytes} B, largest response ${maxResponseBytes} B, user cells changed: ${userCellsChanged}\n` +
           `  result columns ${firstRun.resultColumns.join(', ')}; notes on sheet "${summary.notesSheet}"\n` +
           (marks ? `  re-run: ${marks.kept} of ${marks.marked} review marks kept\n` : '') +
           (args.out ? `  written to ${args.out}\n` : '') +
