@@ -13,3 +13,4 @@ export {
   statusLabel,
   type ReviewState,
 } from './style.js';
+export { planToJson, type PlanJson } from './json.js';
