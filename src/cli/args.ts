@@ -39,7 +39,8 @@ export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: strin
   logScale: { name: 'log', kind: 'flag' },
   minGroupSize: { name: 'min-group', kind: 'value' },
   smallGroups: { name: 'small-groups', kind: 'value' },
-  decimalComma: { name: 'decimal-comma', kind: 'flag' },
+  // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
+  decimal: null,
 };
 
 /** The option spec of every setting, for parseFlags. */
@@ -49,6 +50,8 @@ export function settingOptionSpec(): Spec {
     const f = SETTING_FLAGS[k];
     if (f) spec[f.name] = f.kind;
   }
+  spec['decimal-comma'] = 'flag';
+  spec['decimal-point'] = 'flag';
   return spec;
 }
 
@@ -88,6 +91,10 @@ export function settingsFromOptions(opts: ReadonlyMap<string, readonly string[]>
       else out[k] = text;
     }
   }
+  const comma = opts.has('decimal-comma');
+  const point = opts.has('decimal-point');
+  if (comma && point) throw new TailmarkError('usage', 'give --decimal-comma or --decimal-point, not both');
+  if (comma || point) out.decimal = comma ? 'comma' : 'point';
   return out;
 }
 
@@ -174,7 +181,9 @@ score options:
   --min-group <n>         smallest group scored on its own (default 8)
   --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)
   --log                   score the logarithm of amounts (for skewed amounts; amounts <= 0 are left out)
-  --decimal-comma         read "1.234,50" as 1234.5
+  --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
+  --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)
+                          (default: decided per column from its cells, and said in the notes)
   --sheet <name>          worksheet to read (.xlsx; default the first)
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)

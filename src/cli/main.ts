@@ -10,6 +10,7 @@ import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { ScoreResult } from '../scoring/types.js';
 import { planToJson } from '../report/json.js';
 import { CAUTION } from '../report/style.js';
+import { describeDecimal } from '../report/decimal.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
 import { fileKind, readTable, type ReadTable } from '../files/read.js';
 import { readTableStreaming } from '../files/stream-read.js';
@@ -122,10 +123,19 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
+        decimalLines(result) +
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
   return { outPath, result };
+}
+
+/** "Amount: read with decimal comma (...)" for each column whose text cells showed a separator. */
+function decimalLines(result: ScoreResult): string {
+  return result.columns
+    .filter((c) => c.decimal.how !== 'default' || c.decimal.ambiguousCells > 0)
+    .map((c) => `${describeDecimal(c.column, c.decimal)}\n`)
+    .join('');
 }
 
 async function runDemo(argv: readonly string[], io: Io): Promise<number> {

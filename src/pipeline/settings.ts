@@ -12,9 +12,11 @@
  * take what it returns.
  */
 import {
+  DECIMAL_MODES,
   DIRECTIONS,
   METHOD_IDS,
   SMALL_GROUP_POLICIES,
+  type DecimalMode,
   type Direction,
   type MethodId,
   type ScoreOptions,
@@ -41,8 +43,8 @@ export interface Settings {
   readonly minGroupSize: number;
   /** What happens to smaller groups. */
   readonly smallGroups: SmallGroupPolicy;
-  /** Read "1.234,50" as 1234.5. */
-  readonly decimalComma: boolean;
+  /** Decimal separator of text amounts: 'auto' decides per column from its cells (said in the notes), or given. */
+  readonly decimal: DecimalMode;
 }
 
 export type SettingKey = keyof Settings;
@@ -94,7 +96,7 @@ export const SETTING_SPECS: { readonly [K in SettingKey]: Spec<Settings[K]> } = 
     check: (v) => (typeof v === 'number' && Number.isInteger(v) && v >= 1 ? null : 'must be a whole number of at least 1'),
   },
   smallGroups: { label: 'The small-group choice', fallback: () => 'pool', check: oneOf(SMALL_GROUP_POLICIES) },
-  decimalComma: { label: 'Decimal comma', fallback: () => false, check: flag },
+  decimal: { label: 'The decimal separator', fallback: () => 'auto', check: oneOf(DECIMAL_MODES) },
 };
 
 export const SETTING_KEYS = Object.keys(SETTING_SPECS) as SettingKey[];
@@ -172,6 +174,8 @@ export function settingsFromSaved(value: unknown): Settings | null {
   const given = o as Record<string, unknown>;
   const input: Record<string, unknown> = {};
   for (const key of SETTING_KEYS) if (key in given) input[key] = given[key];
+  // Saved before the decimal separator was decided per column: a ticked "decimal comma" means comma.
+  if (!('decimal' in given) && typeof given.decimalComma === 'boolean') input.decimal = given.decimalComma ? 'comma' : 'auto';
   try {
     return validateSettings(input);
   } catch {
@@ -188,6 +192,7 @@ export function engineOptions(s: Settings): Required<ScoreOptions> {
     logScale: s.logScale,
     minGroupSize: s.minGroupSize,
     smallGroups: s.smallGroups,
-    decimalComma: s.decimalComma,
+    decimal: s.decimal,
+    decimalComma: s.decimal === 'comma',
   };
 }

@@ -14,3 +14,4 @@ export {
   type ReviewState,
 } from './style.js';
 export { planToJson, type PlanJson } from './json.js';
+export { describeDecimal } from './decimal.js';

@@ -19,6 +19,7 @@ function rawText(v: RawCell): string | null {
 export interface PlanJson {
   readonly method: string;
   readonly cutoff: number;
+  readonly decimal: Record<string, { readonly separator: string; readonly how: string }>;
   readonly rows: Record<string, unknown>[];
   readonly groups: Record<string, unknown>[];
 }
@@ -60,5 +61,6 @@ export function planToJson(plan: Plan): PlanJson {
       groups.push(entry);
     }
   }
-  return { method: result.options.method, cutoff: result.options.cutoff, rows, groups };
+  const decimal = Object.fromEntries(result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
+  return { method: result.options.method, cutoff: result.options.cutoff, decimal, rows, groups };
 }

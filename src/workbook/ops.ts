@@ -279,7 +279,7 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
     const note = text('note', r);
     if (!anyFlag && status === '' && note === '') continue;
     const rawValue = got.get('value')?.[r];
-    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimalComma ?? false });
+    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimal === 'comma' });
     const group = (settings?.groupColumns ?? []).map((_, i) => text(`group${i}`, r) || '(blank)').join(' / ');
     out.push({
       row: r,

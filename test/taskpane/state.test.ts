@@ -186,7 +186,7 @@ describe('in-memory preview', () => {
     logScale: false,
     minGroupSize: 8,
     smallGroups: 'pool',
-    decimalComma: false,
+    decimal: 'auto',
   };
 
   it('counts the same flagged rows as scoring the table directly', () => {
