@@ -224,9 +224,9 @@ function scoreColumn(
   };
 
   // 3. Fit each group on what its method needs.
-  const fits: Fit[] = new Array(nGroups);
-  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const fits: Fit[] = new Array<Fit>(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array<Summary | null>(nGroups);
+  const groupFallbacks: Fallback[][] = new Array<Fallback[]>(nGroups);
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
@@ -454,7 +454,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
   if (needPass) deviations(groupOf, exclusion, y, m0, sc);
   let ordered: Float64Array | null = null;
   if (extreme) ordered = buildOrdered(y, exclusion, groupOf, start, count);
-  const out: Summary[] = new Array(nGroups);
+  const out: Summary[] = new Array<Summary>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     const min = acc[4 * g + 1];
@@ -504,7 +504,7 @@ function buildGroups(
 ): GroupStats[] {
   const nGroups = count.length;
   const { start } = grouping;
-  const groups: GroupStats[] = new Array(nGroups);
+  const groups: GroupStats[] = new Array<GroupStats>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     groups[g] = lazyGroupStats(
