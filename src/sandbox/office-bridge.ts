@@ -388,7 +388,8 @@ function idProp(x: readonly string[] | ProxyBase<unknown>): string | null {
 
 function valueOf(n: ProxyBase<unknown>, select: readonly string[], idName: string | null): unknown {
   if (n instanceof CollectionBase) {
-    const items = n.items.map((it) => {
+    const list: ProxyBase<unknown>[] = (n as CollectionBase<unknown, ProxyBase<unknown>>).items;
+    const items = list.map((it) => {
       const v = objectValue(it, select);
       if (idName) {
         const id = it._data[idName];

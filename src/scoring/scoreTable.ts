@@ -5,10 +5,12 @@ import { NO_FIT } from './methods/method.js';
 import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
+import { inferDecimal } from './inferDecimal.js';
 import { summarizeFor } from './summarizeFor.js';
 import { constantSummary, EMPTY_SUMMARY, isExtreme, real, type Summary } from './summary.js';
 import {
   type ColumnScores,
+  type DecimalMode,
   DEFAULT_OPTIONS,
   type Direction,
   EXCLUSION_REASONS,
@@ -35,30 +37,18 @@ const NREASONS = EXCLUSION_REASONS.length;
 export const WHOLE_COLUMN_LABEL = '(whole column)';
 
 /**
- * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff) and checks the options,
- * throwing an Error that names the bad option.
+ * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff). The settings a user chose are
+ * checked once, by the pipeline (src/pipeline/settings.ts); what reaches the engine is assumed valid,
+ * and a value outside the contract is a programming error (RangeError, not a message for users).
  */
 export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const given = Object.fromEntries(Object.entries(options ?? {}).filter(([, v]) => v !== undefined)) as Partial<ScoreOptions>;
   const merged = { ...DEFAULT_OPTIONS, ...given };
   const method = getMethod(merged.method);
-  if (merged.direction !== 'high' && merged.direction !== 'low' && merged.direction !== 'both') {
-    throw new Error(`Unknown direction "${String(merged.direction)}": use high, low or both.`);
-  }
-  if (merged.smallGroups !== 'pool' && merged.smallGroups !== 'skip') {
-    throw new Error(`Unknown small-group policy "${String(merged.smallGroups)}": use pool or skip.`);
-  }
   const cutoff = merged.cutoff ?? method.defaultCutoff;
-  if (typeof cutoff !== 'number' || !Number.isFinite(cutoff) || cutoff < 0) {
-    throw new Error(
-      method.id === 'iqr'
-        ? `The IQR multiplier k must be a number of 0 or more (got ${String(cutoff)}).`
-        : `The cutoff must be a number of 0 or more (got ${String(cutoff)}).`,
-    );
-  }
   const minGroupSize = merged.minGroupSize;
-  if (typeof minGroupSize !== 'number' || !Number.isFinite(minGroupSize) || minGroupSize < 1) {
-    throw new Error(`The minimum group size must be a whole number of 1 or more (got ${String(minGroupSize)}).`);
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+    throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
     method: merged.method,
@@ -68,7 +58,13 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
     minGroupSize: Math.ceil(minGroupSize),
     smallGroups: merged.smallGroups,
     decimalComma: merged.decimalComma === true,
+    decimal: merged.decimalComma === true ? 'comma' : decimalMode(merged.decimal),
   };
+}
+
+function decimalMode(m: unknown): DecimalMode {
+  if (m === undefined || m === 'auto' || m === 'comma' || m === 'point') return m ?? 'auto';
+  throw new Error(`Unknown decimal separator setting "${String(m)}": use auto, comma or point.`);
 }
 
 /**
@@ -165,6 +161,8 @@ function scoreColumn(
   const y = logScale ? new Float64Array(rowCount) : values;
   const { start, groupOf } = grouping;
   const nGroups = grouping.keys.length;
+  const decimal = inferDecimal(cells, opts.decimal);
+  const decimalComma = decimal.separator === 'comma';
   // Every row of `scores` is written by the scoring pass (`scoreRows`); before that, robust and
   // IQR use it as the group-ordered work buffer the fits select in place.
   const scores = new Float64Array(rowCount);
@@ -185,10 +183,10 @@ function scoreColumn(
       acc[4 * g + 2] = -Infinity;
     }
     if (logScale) {
-      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      parseColumn(cells, values, y, exclusion, logScale, decimalComma);
       accumulate(groupOf, exclusion, y, acc, count, gCounts);
     } else {
-      parseAndAccumulate(cells, groupOf, values, exclusion, acc, count, gCounts, opts.decimalComma);
+      parseAndAccumulate(cells, groupOf, values, exclusion, acc, count, gCounts, decimalComma);
     }
     nAll = tallyCounts(count, gCounts, colCounts);
     pre = classicInRowOrder(groupOf, exclusion, y, acc, count, start);
@@ -201,10 +199,10 @@ function scoreColumn(
     yOrdered = scores;
     const cursor = start.slice(0, nGroups);
     if (logScale) {
-      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      parseColumn(cells, values, y, exclusion, logScale, decimalComma);
       scatter(groupOf, exclusion, y, yOrdered, cursor, gCounts);
     } else {
-      parseAndScatter(cells, groupOf, values, exclusion, yOrdered, cursor, gCounts, opts.decimalComma);
+      parseAndScatter(cells, groupOf, values, exclusion, yOrdered, cursor, gCounts, decimalComma);
     }
     for (let g = 0; g < nGroups; g++) count[g] = cursor[g] - start[g];
     nAll = tallyCounts(count, gCounts, colCounts);
@@ -226,9 +224,9 @@ function scoreColumn(
   };
 
   // 3. Fit each group on what its method needs.
-  const fits: Fit[] = new Array(nGroups);
-  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const fits: Fit[] = new Array<Fit>(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array<Summary | null>(nGroups);
+  const groupFallbacks: Fallback[][] = new Array<Fallback[]>(nGroups);
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
@@ -279,6 +277,7 @@ function scoreColumn(
     groupOf,
     population,
     groups,
+    decimal,
   };
   Object.defineProperty(col, 'pooled', { enumerable: true, configurable: true, get: pooledStats });
   col.excludedCounts = reasonCounts(colCounts, 0);
@@ -455,7 +454,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
   if (needPass) deviations(groupOf, exclusion, y, m0, sc);
   let ordered: Float64Array | null = null;
   if (extreme) ordered = buildOrdered(y, exclusion, groupOf, start, count);
-  const out: Summary[] = new Array(nGroups);
+  const out: Summary[] = new Array<Summary>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     const min = acc[4 * g + 1];
@@ -505,7 +504,7 @@ function buildGroups(
 ): GroupStats[] {
   const nGroups = count.length;
   const { start } = grouping;
-  const groups: GroupStats[] = new Array(nGroups);
+  const groups: GroupStats[] = new Array<GroupStats>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     groups[g] = lazyGroupStats(
