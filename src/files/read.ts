@@ -15,16 +15,10 @@ import { readDelimited } from '../table/delimited.js';
 import type { TextEncodingName } from '../table/encoding.js';
 import { findHeaderRow, HEADER_SEARCH_ROWS } from '../table/header.js';
 import { sniffKind, unreadableMessage } from '../table/kind.js';
-import { columnName, TableReadError, uniqueHeaders } from '../table/names.js';
+import { columnName, uniqueHeaders } from '../table/names.js';
+import { TailmarkError } from '../pipeline/errors.js';
 import { isTotalFormula, rowSaysTotal } from '../table/totals.js';
 
-/** A problem with the input file, worded for the person who runs the command. */
-export class InputFileError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'InputFileError';
-  }
-}
 
 export interface ReadOptions {
   /** Worksheet name (xlsx only); default the first worksheet. */
@@ -131,14 +125,14 @@ async function readXlsx(path: string, options: ReadOptions): Promise<ReadTable> 
   try {
     await wb.xlsx.readFile(path);
   } catch (e) {
-    throw new InputFileError(`cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   }
   const names = wb.worksheets.map((w) => w.name);
-  if (names.length === 0) throw new InputFileError(`${name} has no worksheets`);
+  if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
   let ws: ExcelJS.Worksheet | undefined;
   if (options.sheet !== undefined) {
     ws = wb.worksheets.find((w) => w.name === options.sheet) ?? wb.worksheets.find((w) => w.name.toLowerCase() === options.sheet!.toLowerCase());
-    if (!ws) throw new InputFileError(`sheet "${options.sheet}" not found in ${name}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
+    if (!ws) throw new TailmarkError('input-file', `sheet "${options.sheet}" not found in ${name}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
   } else {
     ws = wb.worksheets[0];
   }
@@ -157,13 +151,13 @@ async function readXlsx(path: string, options: ReadOptions): Promise<ReadTable> 
   const notes: string[] = [];
   if (options.headerRow !== undefined) {
     if (options.headerRow > lastRow || rowCells(options.headerRow).every(isEmpty)) {
-      throw new InputFileError(`--header-row ${options.headerRow}: row ${options.headerRow} of sheet "${ws.name}" in ${name} is empty`);
+      throw new TailmarkError('input-file', `--header-row ${options.headerRow}: row ${options.headerRow} of sheet "${ws.name}" in ${name} is empty`);
     }
     headerRow = options.headerRow;
   } else {
     const top = Array.from({ length: Math.min(lastRow, HEADER_SEARCH_ROWS) }, (_, i) => rowCells(i + 1));
     const h = findHeaderRow(top);
-    if (h < 0) throw new InputFileError(`sheet "${ws.name}" in ${name} is empty`);
+    if (h < 0) throw new TailmarkError('input-file', `sheet "${ws.name}" in ${name} is empty`);
     headerRow = h + 1;
     if (top.slice(0, h).some((r) => r.some((v) => !isEmpty(v)))) {
       notes.push(`Header row ${headerRow}: the rows above it look like titles and were skipped (give --header-row to choose another)`);
@@ -277,9 +271,9 @@ async function readCsvTable(path: string, options: ReadOptions): Promise<ReadTab
   try {
     bytes = await readFile(path);
   } catch (e) {
-    throw new InputFileError(`cannot read ${basename(path)} (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${basename(path)} (${e instanceof Error ? e.message : String(e)})`);
   }
-  try {
+  {
     const t = readDelimited(bytes, basename(path), {
       ...(options.encoding !== undefined ? { encoding: options.encoding } : {}),
       ...(options.headerRow !== undefined ? { headerRow: options.headerRow } : {}),
@@ -295,9 +289,6 @@ async function readCsvTable(path: string, options: ReadOptions): Promise<ReadTab
       csvRecords: t.records,
       readNotes: t.notes,
     };
-  } catch (e) {
-    if (e instanceof TableReadError) throw new InputFileError(e.message);
-    throw e;
   }
 }
 
@@ -334,31 +325,31 @@ export async function checkInputFile(path: string, sheet: string | undefined): P
   try {
     info = await stat(path);
   } catch {
-    throw new InputFileError(`input file not found: ${path}`);
+    throw new TailmarkError('input-file', `input file not found: ${path}`);
   }
-  if (!info.isFile()) throw new InputFileError(`input is not a file: ${path}`);
-  if (info.size === 0) throw new InputFileError(`input file is empty: ${path}`);
+  if (!info.isFile()) throw new TailmarkError('input-file', `input is not a file: ${path}`);
+  if (info.size === 0) throw new TailmarkError('input-file', `input file is empty: ${path}`);
   const name = basename(path);
   const ext = extname(path).toLowerCase();
   const byName = fileKind(path);
   const { head, tail } = await headAndTail(path, info.size);
   const kind = sniffKind(head, tail);
   const refusal = unreadableMessage(name, kind, ext);
-  if (refusal) throw new InputFileError(refusal);
+  if (refusal) throw new TailmarkError('input-file', refusal);
   if (kind === 'xlsx' && byName !== 'xlsx') {
-    throw new InputFileError(`${name} is an Excel workbook, not ${byName === 'csv' ? 'delimited text' : `a ${ext || 'file of unknown type'}`}: rename it to end in .xlsx and run again`);
+    throw new TailmarkError('input-file', `${name} is an Excel workbook, not ${byName === 'csv' ? 'delimited text' : `a ${ext || 'file of unknown type'}`}: rename it to end in .xlsx and run again`);
   }
   if (kind === 'text' && byName === 'xlsx') {
-    throw new InputFileError(`${name} is a text file, not an .xlsx workbook: if it holds comma- or tab-separated values, rename it to end in .csv and run again`);
+    throw new TailmarkError('input-file', `${name} is a text file, not an .xlsx workbook: if it holds comma- or tab-separated values, rename it to end in .csv and run again`);
   }
   if (byName === null) {
-    throw new InputFileError(`unsupported file type "${ext || '(none)'}": use an .xlsx workbook or a .csv, .tsv or .txt file`);
+    throw new TailmarkError('input-file', `unsupported file type "${ext || '(none)'}": use an .xlsx workbook or a .csv, .tsv or .txt file`);
   }
-  if (byName === 'csv' && sheet !== undefined) throw new InputFileError(`--sheet applies to .xlsx files only; ${name} is a text file`);
+  if (byName === 'csv' && sheet !== undefined) throw new TailmarkError('input-file', `--sheet applies to .xlsx files only; ${name} is a text file`);
   return byName;
 }
 
-/** Read the table of an .xlsx or .csv file. Throws InputFileError with a one-line message. */
+/** Read the table of an .xlsx or .csv file. Throws TailmarkError ('input-file') with a one-line message. */
 export async function readTable(path: string, options: ReadOptions = {}): Promise<ReadTable> {
   return (await checkInputFile(path, options.sheet)) === 'xlsx' ? readXlsx(path, options) : readCsvTable(path, options);
 }

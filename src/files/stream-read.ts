@@ -10,13 +10,14 @@
 import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
-import { CsvSyntaxError, DELIMITER_WORDS } from '../table/csv.js';
+import { DELIMITER_WORDS } from '../table/csv.js';
+import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 import { describeEncoding } from '../table/encoding.js';
 import { findHeaderRow, HEADER_SEARCH_ROWS } from '../table/header.js';
 import { isTotalFormula, isTotalLabel } from '../table/totals.js';
 import { forEachCsvRecordDetected } from './csv-stream.js';
 import {
-  checkInputFile, cleanHeaders, describe, InputFileError, isEmpty, mergedSpans, sheetNameFromFile, type ReadOptions, type ReadTable,
+  checkInputFile, cleanHeaders, describe, isEmpty, mergedSpans, sheetNameFromFile, type ReadOptions, type ReadTable,
 } from './read.js';
 import { XlsxStream } from './xlsx-stream.js';
 
@@ -146,7 +147,7 @@ class TableBuilder {
     let h: number;
     if (this.givenHeader !== undefined) {
       h = held.findIndex((p) => p.rowNo === this.givenHeader);
-      if (h < 0 || [...held[h].cells.values()].every(isEmpty)) throw new InputFileError(`--header-row ${this.givenHeader}: that row is empty`);
+      if (h < 0 || [...held[h].cells.values()].every(isEmpty)) throw new TailmarkError('input-file', `--header-row ${this.givenHeader}: that row is empty`);
     } else {
       // Rows as dense arrays by sheet row (rows missing from the file are empty).
       const base = held.length ? held[0].rowNo : 1;
@@ -240,7 +241,7 @@ class TableBuilder {
 function targetSheet(names: readonly string[], wanted: string | undefined, file: string): string {
   if (wanted === undefined) return names[0];
   const t = names.find((n) => n === wanted) ?? names.find((n) => n.toLowerCase() === wanted.toLowerCase());
-  if (t === undefined) throw new InputFileError(`sheet "${wanted}" not found in ${file}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
+  if (t === undefined) throw new TailmarkError('input-file', `sheet "${wanted}" not found in ${file}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
   return t;
 }
 
@@ -296,18 +297,18 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
       break;
     }
   } catch (e) {
-    if (e instanceof InputFileError || (callerError !== null && e === callerError)) throw e;
+    if (isTailmarkError(e, 'input-file') || (callerError !== null && e === callerError)) throw e;
     if (e instanceof ReferenceError || e instanceof SyntaxError) throw e; // a bug of ours, not the file
-    throw new InputFileError(`cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   } finally {
     x.close();
   }
   if (!found) {
-    if (names.length === 0) throw new InputFileError(`${name} has no worksheets`);
-    throw new InputFileError(`sheet "${target}" not found in ${name}`);
+    if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
+    throw new TailmarkError('input-file', `sheet "${target}" not found in ${name}`);
   }
   const { columns, rowCount, busyColumns } = b.finish();
-  if (!b.hasHeader) throw new InputFileError(`sheet "${target}" in ${name} is empty`);
+  if (!b.hasHeader) throw new TailmarkError('input-file', `sheet "${target}" in ${name} is empty`);
   // A merged range right of the table is not free either (its cells other than the first hold no value).
   const busy = new Set(busyColumns);
   for (const m of merges) {
@@ -349,12 +350,12 @@ async function readCsvStreaming(path: string, options: StreamReadOptions): Promi
       options.encoding !== undefined ? { encoding: options.encoding } : {},
     );
   } catch (e) {
-    if (e instanceof CsvSyntaxError) throw new InputFileError(`${name}: ${e.message}`);
-    if (e instanceof InputFileError || !(e instanceof Error) || !('code' in e)) throw e;
-    throw new InputFileError(`cannot read ${name} (${e.message})`);
+    if (isTailmarkError(e) && e.line !== undefined) throw new TailmarkError('input-file', `${name}: ${e.message}`, e.line);
+    if (isTailmarkError(e) || !(e instanceof Error) || !('code' in e)) throw e;
+    throw new TailmarkError('input-file', `cannot read ${name} (${e.message})`);
   }
   const { columns, rowCount, busyColumns } = b.finish();
-  if (!b.hasHeader) throw new InputFileError(`${name} is empty (no header row found)`);
+  if (!b.hasHeader) throw new TailmarkError('input-file', `${name} is empty (no header row found)`);
   return {
     source: describe(path, null, b.first, b.headerRow, b.headers.length, rowCount),
     sheetName: sheetNameFromFile(path),
@@ -368,7 +369,7 @@ async function readCsvStreaming(path: string, options: StreamReadOptions): Promi
   };
 }
 
-/** Read the table of an .xlsx or delimited text file row by row. Throws InputFileError with a one-line message. */
+/** Read the table of an .xlsx or delimited text file row by row. Throws TailmarkError ('input-file') with a one-line message. */
 export async function readTableStreaming(path: string, options: StreamReadOptions = {}): Promise<ReadTable> {
   return (await checkInputFile(path, options.sheet)) === 'xlsx' ? readXlsxStreaming(path, options) : readCsvStreaming(path, options);
 }

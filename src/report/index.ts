@@ -13,4 +13,5 @@ export {
   statusLabel,
   type ReviewState,
 } from './style.js';
+export { planToJson, planJsonChunks, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';

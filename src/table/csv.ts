@@ -18,18 +18,14 @@
  * similar memory. Neither library is as fast, so the tokenizer stays ours (see DEVELOPERS.md).
  */
 
+import { TailmarkError } from '../pipeline/errors.js';
+
 export const DELIMITERS = [',', ';', '\t', '|'] as const;
 export type CsvDelimiter = (typeof DELIMITERS)[number];
 
 /** Words for the notes: "comma", "semicolon", "tab", "pipe". */
 export const DELIMITER_WORDS: Record<CsvDelimiter, string> = { ',': 'comma', ';': 'semicolon', '\t': 'tab', '|': 'pipe' };
 
-export class CsvSyntaxError extends Error {
-  constructor(readonly line: number, message: string) {
-    super(message);
-    this.name = 'CsvSyntaxError';
-  }
-}
 
 /**
  * Pick the delimiter from the first lines (up to 50, quotes respected): for each candidate, the
@@ -212,7 +208,7 @@ export class CsvChunkParser {
       this.inQuotes = false;
     }
     if (this.inQuotes) {
-      throw new CsvSyntaxError(this.quoteOpenedAt, `CSV line ${this.quoteOpenedAt}: a quoted field is never closed (missing ")`);
+      throw new TailmarkError('input-file', `CSV line ${this.quoteOpenedAt}: a quoted field is never closed (missing ")`, this.quoteOpenedAt);
     }
     if (this.field !== '' || this.quoted || this.record.length > 0) {
       this.record.push(this.field);

@@ -7,11 +7,12 @@
  * separator per column.
  */
 import type { RawCell } from '../scoring/types.js';
-import { CsvSyntaxError, DELIMITER_WORDS, parseCsv, sniffDelimiter, type CsvDelimiter } from './csv.js';
+import { DELIMITER_WORDS, parseCsv, sniffDelimiter, type CsvDelimiter } from './csv.js';
+import { isTailmarkError } from '../pipeline/errors.js';
 import { decodeText, describeEncoding, type DetectedEncoding, type TextEncodingName } from './encoding.js';
 import { findHeaderRow } from './header.js';
 import { rowSaysTotal } from './totals.js';
-import { TableReadError, uniqueHeaders } from './names.js';
+import { tableReadError, uniqueHeaders } from './names.js';
 
 export interface DelimitedOptions {
   readonly encoding?: TextEncodingName;
@@ -37,7 +38,7 @@ export interface ReadResult {
   readonly notes: readonly string[];
 }
 
-/** Read delimited text from its bytes. Throws TableReadError with a one-line message. */
+/** Read delimited text from its bytes. Throws TailmarkError ('input-file') with a one-line message. */
 export function readDelimited(bytes: Uint8Array, name: string, options: DelimitedOptions = {}): ReadResult {
   const { text, encoding } = decodeText(bytes, options.encoding);
   const delimiter = options.delimiter ?? sniffDelimiter(text);
@@ -45,7 +46,7 @@ export function readDelimited(bytes: Uint8Array, name: string, options: Delimite
   try {
     records = parseCsv(text, { delimiter });
   } catch (e) {
-    if (e instanceof CsvSyntaxError) throw new TableReadError(`${name}: ${e.message}`);
+    if (isTailmarkError(e) && e.line !== undefined) throw tableReadError(`${name}: ${e.message}`, e.line);
     throw e;
   }
   const notes: string[] = [`${name}: ${describeEncoding(encoding)}, ${DELIMITER_WORDS[delimiter]}-separated`];
@@ -80,12 +81,12 @@ function headerIndex(records: readonly (readonly string[])[], name: string, give
   if (given !== undefined) {
     const rec = records[given - 1];
     if (!rec || rec.every((f) => f.trim() === '')) {
-      throw new TableReadError(`--header-row ${given}: row ${given} of ${name} is ${rec ? 'empty' : `past the end (the file has ${records.length} rows)`}`);
+      throw tableReadError(`--header-row ${given}: row ${given} of ${name} is ${rec ? 'empty' : `past the end (the file has ${records.length} rows)`}`);
     }
     return given - 1;
   }
   const h = findHeaderRow(records.slice(0, 50).map((r) => r.map((f) => (f.trim() === '' ? null : f))));
-  if (h < 0) throw new TableReadError(`${name} is empty (no header row found)`);
+  if (h < 0) throw tableReadError(`${name} is empty (no header row found)`);
   if (records.slice(0, h).some((r) => r.some((f) => f.trim() !== ''))) {
     notes.push(`Header row ${h + 1}: the rows above it look like titles and were skipped (give --header-row to choose another)`);
   }

@@ -1,11 +1,10 @@
-/** Header names and the reader's error type (pure). */
+/** Header names and the reader's errors (pure). */
+
+import { TailmarkError } from '../pipeline/errors.js';
 
 /** A problem with an input table, worded for the person who runs the command or opens the file. */
-export class TableReadError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'TableReadError';
-  }
+export function tableReadError(message: string, line?: number): TailmarkError {
+  return new TailmarkError('input-file', message, line);
 }
 
 /** 0-based column index -> letters ("A", "Z", "AA"). */
