@@ -3,20 +3,13 @@
  * shared tokenizer (src/table/csv.ts), so a full-height file is never held as one string or one
  * array of records. The encoding comes from a byte-order mark or the zero bytes of UTF-16, or is
  * given; otherwise the file is decoded as UTF-8 and, at the first byte that is not valid UTF-8,
- * `NotUtf8Error` is thrown so the caller can start again as Windows-1252 (`readDelimitedStream`
- * below does). The delimiter is sniffed from the first lines. Cost O(n) in the file.
+ * the read stops and says so (`notUtf8`), so the caller can start again as Windows-1252
+ * (`forEachCsvRecordDetected` below does). The delimiter is sniffed from the first lines. Cost O(n) in the file.
  */
 import { createReadStream } from 'node:fs';
 import { CsvChunkParser, sniffDelimiter, type CsvDelimiter } from '../table/csv.js';
 import { encodingFromStart, textDecoder, type DetectedEncoding, type TextEncodingName } from '../table/encoding.js';
 
-/** The file is not valid UTF-8 (and no encoding was given or marked). */
-export class NotUtf8Error extends Error {
-  constructor() {
-    super('not valid UTF-8');
-    this.name = 'NotUtf8Error';
-  }
-}
 
 export interface CsvStreamOptions {
   readonly delimiter?: CsvDelimiter;
@@ -32,6 +25,8 @@ export interface CsvStreamOptions {
 export interface CsvStreamInfo {
   readonly encoding: DetectedEncoding;
   readonly delimiter: CsvDelimiter;
+  /** The read stopped at the first byte that is not valid UTF-8 (no encoding given or marked). */
+  readonly notUtf8?: boolean;
 }
 
 /** Text for the delimiter sniffer: up to 50 lines or 64 KiB. */
@@ -39,7 +34,7 @@ const SNIFF_CHARS = 1 << 16;
 
 /**
  * Read a delimited text file record by record. `onRecord(record, index)` (0-based index) may return
- * `false` to stop reading early. Throws NotUtf8Error as said above.
+ * `false` to stop reading early. Stops with `notUtf8` as said above.
  */
 export async function forEachCsvRecord(
   path: string,
@@ -64,11 +59,13 @@ export async function forEachCsvRecord(
     parser = new CsvChunkParser(delimiter, emit);
     parser.push(text);
   };
-  const decode = (bytes: Uint8Array, final: boolean): string => {
+  let notUtf8 = false;
+  const decode = (bytes: Uint8Array, final: boolean): string | null => {
     try {
       return decoder!.decode(bytes, { stream: !final });
     } catch {
-      throw new NotUtf8Error();
+      notUtf8 = true;
+      return null;
     }
   };
   try {
@@ -83,6 +80,7 @@ export async function forEachCsvRecord(
         bytes = bytes.subarray(encoding.bomBytes);
       }
       let text = decode(bytes, false);
+      if (text === null) break;
       if (!parser && text.charCodeAt(0) === 0xfeff && head === '') text = text.slice(1);
       if (parser) (parser as CsvChunkParser).push(text);
       else {
@@ -96,8 +94,9 @@ export async function forEachCsvRecord(
       if (stopped) break;
       if (options.afterChunk) await options.afterChunk();
     }
-    if (!stopped) {
+    if (!stopped && !notUtf8) {
       const rest = decoder ? decode(new Uint8Array(0), true) : '';
+      if (rest === null) return { encoding: encoding!, delimiter, notUtf8 };
       if (!parser) start(head + rest);
       else if (rest) (parser as CsvChunkParser).push(rest);
       (parser as unknown as CsvChunkParser).end();
@@ -105,7 +104,7 @@ export async function forEachCsvRecord(
   } finally {
     stream.destroy();
   }
-  return { encoding: encoding ?? { encoding: 'utf-8', bomBytes: 0, how: 'valid UTF-8' }, delimiter };
+  return { encoding: encoding ?? { encoding: 'utf-8', bomBytes: 0, how: 'valid UTF-8' }, delimiter, ...(notUtf8 ? { notUtf8 } : {}) };
 }
 
 /**
@@ -118,12 +117,9 @@ export async function forEachCsvRecordDetected(
   restart: () => void,
   options: CsvStreamOptions = {},
 ): Promise<CsvStreamInfo> {
-  try {
-    return await forEachCsvRecord(path, onRecord, options);
-  } catch (e) {
-    if (!(e instanceof NotUtf8Error)) throw e;
-    restart();
-    const info = await forEachCsvRecord(path, onRecord, { ...options, encoding: 'windows-1252' });
-    return { ...info, encoding: { ...info.encoding, how: 'not valid UTF-8' } };
-  }
+  const first = await forEachCsvRecord(path, onRecord, options);
+  if (!first.notUtf8) return first;
+  restart();
+  const info = await forEachCsvRecord(path, onRecord, { ...options, encoding: 'windows-1252' });
+  return { ...info, encoding: { ...info.encoding, how: 'not valid UTF-8' } };
 }
