@@ -112,6 +112,7 @@ function toJson(result: ScoreResult, table: ReadTable, idIndex: number | null) {
         lower: g.lower,
         upper: g.upper,
         flagged: g.flagged,
+        medcouple: g.medcouple,
       };
       if (multi) entry.column = col.column;
       groups.push(entry);

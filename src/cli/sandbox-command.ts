@@ -16,7 +16,7 @@ import { diffSnapshots, type SandboxSnapshot, type SandboxWorkbook, type SheetSn
 import { createWorkbookLayer } from '../workbook/index.js';
 import { TailmarkError, type DetectedTable, type RunSettings } from '../workbook/api.js';
 import { defaultCutoff } from '../scoring/index.js';
-import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
+import { METHOD_IDS, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
 import { REVIEW_STATUSES } from '../report/index.js';
 
@@ -101,7 +101,7 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
     values: opts.get('value') ?? [],
     groups: opts.get('group') ?? [],
     id: one('id') ?? null,
-    method: oneOf('method', one('method'), ['robust', 'classic', 'iqr'] as const, 'robust'),
+    method: oneOf('method', one('method'), METHOD_IDS, 'robust'),
     cutoff,
     direction: oneOf('direction', one('direction'), ['high', 'low', 'both'] as const, 'both'),
     minGroup,

@@ -293,3 +293,23 @@ describe('--json', () => {
     expect(flaggedRows.every((x: { score: number }) => Math.abs(x.score) > 3.5)).toBe(true);
   });
 });
+
+describe('--method adjusted', () => {
+  it('flags what R robustbase adjboxStats puts outside its fences and reports each group\'s medcouple (test/reference/make-r-medcouple.R, set lognormal60)', async () => {
+    const { readFileSync } = await import('node:fs');
+    const fixture = JSON.parse(readFileSync(new URL('../reference/r-medcouple.json', import.meta.url), 'utf8')) as Record<string, { x: number[]; mc: number; fence: number[]; out: number[] }>;
+    const s = fixture.lognormal60;
+    const p = join(dir, 'adjusted.csv');
+    writeFileSync(p, ['Team,Amount', ...s.x.map((a) => `W,${a}`)].join('\n'));
+    const r = await run('score', p, '--value', 'Amount', '--group', 'Team', '--method', 'adjusted', '--json');
+    expect(r.err).toBe('');
+    const j = JSON.parse(r.out);
+    expect(j.method).toBe('adjusted');
+    expect(j.cutoff).toBe(1.5);
+    expect(j.groups[0].medcouple).toBeCloseTo(s.mc, 12);
+    expect(j.groups[0].lower).toBeCloseTo(s.fence[0], 9);
+    expect(j.groups[0].upper).toBeCloseTo(s.fence[1], 9);
+    const flagged = j.rows.filter((x: { flagged: boolean }) => x.flagged).map((x: { value: number }) => x.value).sort((a: number, b: number) => a - b);
+    expect(flagged).toEqual(s.out);
+  });
+});

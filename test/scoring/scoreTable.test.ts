@@ -279,7 +279,7 @@ describe('contract details', () => {
     const g = one([1, 2, 3, 4]).columns[0].groups[0];
     expect(Object.keys(g).sort()).toEqual([
       'center', 'excluded', 'fallbacks', 'flagged', 'key', 'keyParts', 'label', 'lower', 'mad', 'maxAttainableZ', 'mean', 'meanAbsDev',
-      'median', 'n', 'population', 'q1', 'q3', 'rows', 'scale', 'scaledMad', 'sd', 'upper',
+      'medcouple', 'median', 'n', 'population', 'q1', 'q3', 'rows', 'scale', 'scaledMad', 'sd', 'upper',
     ]);
   });
   it('an empty table scores to empty arrays', () => {
