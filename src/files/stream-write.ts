@@ -173,9 +173,6 @@ interface WriterSheet extends Sheet {
   commit(): void;
   dataValidations: { model: Record<string, ExcelJS.DataValidation> };
 }
-interface WriterRow extends ExcelJS.Row {
-  commit(): void;
-}
 
 /** Write one streamed row (input cells and, when given, our cells) and commit it. */
 function writeRow(
@@ -185,7 +182,7 @@ function writeRow(
   x: XlsxStream | null,
   results: ResultWriter | null,
 ): void {
-  const row = ws.getRow(rowNo) as WriterRow;
+  const row = ws.getRow(rowNo);
   if (src) {
     if (src.height !== undefined) row.height = src.height;
     if (src.hidden) row.hidden = true;
@@ -296,7 +293,7 @@ export async function writeScoredWorkbookStreaming(
     useStyles: true,
     useSharedStrings: false,
     zip: { zlib: { level: options.zipLevel ?? 1 } },
-  } as Partial<ExcelJS.stream.xlsx.WorkbookStreamWriterOptions>);
+  });
   wb.creator = 'Tailmark';
 
   const setOurWidths = (ws: WriterSheet) => {
@@ -325,7 +322,7 @@ export async function writeScoredWorkbookStreaming(
       let rowNo = 0;
       await forEachCsvRecord(inputPath, (rec) => {
         rowNo++;
-        const row = ws.getRow(rowNo) as WriterRow;
+        const row = ws.getRow(rowNo);
         for (let c = 0; c < rec.length; c++) {
           const v = csvFieldValue(rec[c]);
           if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;

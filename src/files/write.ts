@@ -207,7 +207,7 @@ export async function writeScoredWorkbook(
   options.onProgress?.('saving', 0);
   const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);
   try {
-    await wb.xlsx.writeFile(tmp, { zip: ZIP_FAST } as unknown as Partial<ExcelJS.XlsxWriteOptions>);
+    await wb.xlsx.writeFile(tmp, { zip: ZIP_FAST });
     await rename(tmp, outPath);
   } catch (e) {
     await rm(tmp, { force: true });

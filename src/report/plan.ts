@@ -3,6 +3,7 @@
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
 import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
+import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
@@ -56,7 +57,7 @@ function onDemandArray<T>(length: number, at: (r: number) => T): readonly T[] {
           if (Number.isInteger(r) && r >= 0 && r < length) return at(r);
         }
       }
-      return Reflect.get(t, p, receiver);
+      return Reflect.get(t, p, receiver) as unknown;
     },
     has(t, p) {
       if (typeof p === 'string' && /^\d+$/.test(p)) return Number(p) < length;
@@ -188,10 +189,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
 
   result.columns.forEach((col) => {
     const h = resultHeaders(col.column);
-    const score: PlanCell[] = new Array(rows);
-    const flag: PlanCell[] = new Array(rows);
+    const score: PlanCell[] = new Array<PlanCell>(rows);
+    const flag: PlanCell[] = new Array<PlanCell>(rows);
     const lazy = ctx.reasonText === 'on-demand';
-    const reason: PlanCell[] = lazy ? [] : new Array(rows);
+    const reason: PlanCell[] = lazy ? [] : new Array<PlanCell>(rows);
     for (let r = 0; r < rows; r++) {
       score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
@@ -205,8 +206,8 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 60 });
   });
   const open = statusLabel('open');
-  const status: PlanCell[] = new Array(rows);
-  const note: PlanCell[] = new Array(rows);
+  const status: PlanCell[] = new Array<PlanCell>(rows);
+  const note: PlanCell[] = new Array<PlanCell>(rows);
   let flaggedRows = 0;
   let scoredRows = 0;
   for (let r = 0; r < rows; r++) {
@@ -261,7 +262,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
       ['Minimum group size', options.minGroupSize],
       ['Smaller groups', options.smallGroups === 'pool' ? 'compared with the whole column' : 'left unscored'],
-      ['Decimal comma', options.decimalComma ? 'yes ("1.234,50" read as 1234.5)' : 'no'],
+      ...result.columns.map((c): PlanCell[] => ['Decimal separator', describeDecimal(c.column, c.decimal)]),
       ['Value columns', result.columns.map((c) => c.column).join(', ')],
       ['Group columns', result.groupColumns.length ? result.groupColumns.join(', ') : '(none)'],
       ['Claim ID column', ctx.idColumn ?? '(none)'],

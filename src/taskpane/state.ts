@@ -108,7 +108,7 @@ export type Action =
 /** Turns anything thrown into what the pane shows. */
 export function toPaneError(error: unknown): PaneError {
   if (error instanceof TailmarkError) return { code: error.code, message: error.message };
-  const code = typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
+  const code = typeof error === 'object' && error !== null && 'code' in error ? String(error.code) : '';
   const message = error instanceof Error ? error.message : String(error);
   // Office.js errors carry a code such as "InvalidSelection" or "AccessDenied".
   return { code: code ? `office:${code}` : 'unexpected', message };

@@ -495,8 +495,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
 
 /** Queue the values of rows [r0, r0+n) of every plan column; returns bytes queued. */
 function chunkArrays(values: readonly (readonly PlanCell[])[], formats: readonly string[], i: number, r0: number, n: number) {
-  const v: (string | number | boolean)[][] = new Array(n);
-  const f: string[][] = new Array(n);
+  const v: (string | number | boolean)[][] = new Array<(string | number | boolean)[]>(n);
+  const f: string[][] = new Array<string[]>(n);
   const col = values[i];
   const fmt = formats[i];
   for (let r = 0; r < n; r++) {
