@@ -276,7 +276,7 @@ interface JsonOutput {
   method: string;
   cutoff: number;
   rows: { row: number; group: string; value: number | null; score: number | null; flagged: boolean }[];
-  groups: { key: string; n: number; center: number | null; flagged: number }[];
+  groups: { key: string; n: number; center: number | null; lower: number | null; upper: number | null; flagged: number; medcouple: number | null }[];
 }
 
 describe('--json', () => {
@@ -312,13 +312,13 @@ describe('--method adjusted', () => {
     writeFileSync(p, ['Team,Amount', ...s.x.map((a) => `W,${a}`)].join('\n'));
     const r = await run('score', p, '--value', 'Amount', '--group', 'Team', '--method', 'adjusted', '--json');
     expect(r.err).toBe('');
-    const j = JSON.parse(r.out);
+    const j = JSON.parse(r.out) as JsonOutput;
     expect(j.method).toBe('adjusted');
     expect(j.cutoff).toBe(1.5);
     expect(j.groups[0].medcouple).toBeCloseTo(s.mc, 12);
     expect(j.groups[0].lower).toBeCloseTo(s.fence[0], 9);
     expect(j.groups[0].upper).toBeCloseTo(s.fence[1], 9);
-    const flagged = j.rows.filter((x: { flagged: boolean }) => x.flagged).map((x: { value: number }) => x.value).sort((a: number, b: number) => a - b);
+    const flagged = j.rows.filter((x) => x.flagged).map((x) => x.value ?? NaN).sort((a, b) => a - b);
     expect(flagged).toEqual(s.out);
   });
 });
