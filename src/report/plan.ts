@@ -338,6 +338,9 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     notes: { name: NOTES_SHEET_NAME, sections },
     log,
     caution: CAUTION,
+    result,
+    table: ctx.table,
+    idColumn: ctx.idColumn ?? null,
   };
 }
 

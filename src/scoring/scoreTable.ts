@@ -37,30 +37,18 @@ const NREASONS = EXCLUSION_REASONS.length;
 export const WHOLE_COLUMN_LABEL = '(whole column)';
 
 /**
- * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff) and checks the options,
- * throwing an Error that names the bad option.
+ * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff). The settings a user chose are
+ * checked once, by the pipeline (src/pipeline/settings.ts); what reaches the engine is assumed valid,
+ * and a value outside the contract is a programming error (RangeError, not a message for users).
  */
 export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const given = Object.fromEntries(Object.entries(options ?? {}).filter(([, v]) => v !== undefined)) as Partial<ScoreOptions>;
   const merged = { ...DEFAULT_OPTIONS, ...given };
   const method = getMethod(merged.method);
-  if (merged.direction !== 'high' && merged.direction !== 'low' && merged.direction !== 'both') {
-    throw new Error(`Unknown direction "${String(merged.direction)}": use high, low or both.`);
-  }
-  if (merged.smallGroups !== 'pool' && merged.smallGroups !== 'skip') {
-    throw new Error(`Unknown small-group policy "${String(merged.smallGroups)}": use pool or skip.`);
-  }
   const cutoff = merged.cutoff ?? method.defaultCutoff;
-  if (typeof cutoff !== 'number' || !Number.isFinite(cutoff) || cutoff < 0) {
-    throw new Error(
-      method.id === 'iqr'
-        ? `The IQR multiplier k must be a number of 0 or more (got ${String(cutoff)}).`
-        : `The cutoff must be a number of 0 or more (got ${String(cutoff)}).`,
-    );
-  }
   const minGroupSize = merged.minGroupSize;
-  if (typeof minGroupSize !== 'number' || !Number.isFinite(minGroupSize) || minGroupSize < 1) {
-    throw new Error(`The minimum group size must be a whole number of 1 or more (got ${String(minGroupSize)}).`);
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+    throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
     method: merged.method,

@@ -77,7 +77,7 @@ describe('tailmark sandbox', () => {
     expect(badOpt.err).toBe('tailmark: unknown option --colour for "sandbox" (see tailmark --help)\n');
     const badCol = await capture([input, '--value', 'Amnt']);
     expect(badCol.code).toBe(2);
-    expect(badCol.err).toMatch(/no value column "Amnt"/);
+    expect(badCol.err).toMatch(/value column "Amnt" not found/);
     const exists = await capture([input, '--out', input]);
     expect(exists.code).toBe(2);
     expect(existsSync(input)).toBe(true);
