@@ -65,7 +65,7 @@ export const BENCH_SETTINGS: RunSettings = {
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
-  decimalComma: false,
+  decimal: 'auto',
 };
 
 export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell' = 'block'): Promise<WorkbookBenchResult> {

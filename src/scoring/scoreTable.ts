@@ -37,30 +37,18 @@ const NREASONS = EXCLUSION_REASONS.length;
 export const WHOLE_COLUMN_LABEL = '(whole column)';
 
 /**
- * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff) and checks the options,
- * throwing an Error that names the bad option.
+ * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff). The settings a user chose are
+ * checked once, by the pipeline (src/pipeline/settings.ts); what reaches the engine is assumed valid,
+ * and a value outside the contract is a programming error (RangeError, not a message for users).
  */
 export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const given = Object.fromEntries(Object.entries(options ?? {}).filter(([, v]) => v !== undefined)) as Partial<ScoreOptions>;
   const merged = { ...DEFAULT_OPTIONS, ...given };
   const method = getMethod(merged.method);
-  if (merged.direction !== 'high' && merged.direction !== 'low' && merged.direction !== 'both') {
-    throw new Error(`Unknown direction "${String(merged.direction)}": use high, low or both.`);
-  }
-  if (merged.smallGroups !== 'pool' && merged.smallGroups !== 'skip') {
-    throw new Error(`Unknown small-group policy "${String(merged.smallGroups)}": use pool or skip.`);
-  }
   const cutoff = merged.cutoff ?? method.defaultCutoff;
-  if (typeof cutoff !== 'number' || !Number.isFinite(cutoff) || cutoff < 0) {
-    throw new Error(
-      method.id === 'iqr'
-        ? `The IQR multiplier k must be a number of 0 or more (got ${String(cutoff)}).`
-        : `The cutoff must be a number of 0 or more (got ${String(cutoff)}).`,
-    );
-  }
   const minGroupSize = merged.minGroupSize;
-  if (typeof minGroupSize !== 'number' || !Number.isFinite(minGroupSize) || minGroupSize < 1) {
-    throw new Error(`The minimum group size must be a whole number of 1 or more (got ${String(minGroupSize)}).`);
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+    throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
     method: merged.method,
@@ -242,6 +230,7 @@ function scoreColumn(
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
+    lowScale: new Float64Array(nGroups), highScale: new Float64Array(nGroups),
   };
   fitGroups(method, opts, yOrdered, pre, start, count, column, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
@@ -249,7 +238,7 @@ function scoreColumn(
   // 4. Score every row in row order.
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
-  const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
+  const reach = method.id === 'iqr' || method.id === 'adjusted' ? new Float64Array(rowCount).fill(NaN) : undefined;
   const flaggedPerGroup = new Int32Array(nGroups);
   const scoredRows = scoreRows(
     flat, groupOf, opts.cutoff, opts.direction,
@@ -272,6 +261,7 @@ function scoreColumn(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
       store, -1, logScale ? null : whole.s, bits,
       statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll),
+      logScale,
     );
     return pooled;
   };
@@ -348,6 +338,8 @@ function fitGroups(
     flat.scale[g] = fit.scale;
     flat.q1[g] = fit.q1;
     flat.q3[g] = fit.q3;
+    flat.lowScale[g] = fit.lowScale;
+    flat.highScale[g] = fit.highScale;
     const fast = fit.kind === 'z' && fit.unit === 1 && fit.scale > 0 && Number.isFinite(fit.center) && Number.isFinite(fit.scale);
     flat.fast[g] = fast ? 1 : 0;
     flat.cs[2 * g] = fast ? fit.center : NaN;
@@ -483,7 +475,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
         const mean = m0[g] + c / n;
         const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
         const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
-        out[g] = { n, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN };
+        out[g] = { n, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
       }
     }
   }
@@ -523,6 +515,7 @@ function buildGroups(
       { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
       store, g, scoringSummaries[g], bits,
       statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n),
+      logScale,
     );
   }
   return groups;
@@ -650,6 +643,8 @@ interface FlatFits {
   readonly scale: Float64Array;
   readonly q1: Float64Array;
   readonly q3: Float64Array;
+  readonly lowScale: Float64Array;
+  readonly highScale: Float64Array;
 }
 
 /**
@@ -717,7 +712,7 @@ function scoreOtherRows(
   exclusion: Uint8Array, y: Float64Array, scores: Float64Array, flagged: Uint8Array, population: Uint8Array,
   reach: Float64Array | undefined, flaggedPerGroup: Int32Array,
 ): number {
-  const { fast, kind, popOf, unit, center, scale, q1, q3 } = fits;
+  const { fast, kind, popOf, unit, center, scale, q1, q3, lowScale, highScale } = fits;
   const n = y.length;
   let count = 0;
   for (let r = 0; r < n; r++) {
@@ -741,10 +736,10 @@ function scoreOtherRows(
       flagged[r] = f;
       flaggedPerGroup[g] += f;
     } else {
-      let tHigh = (v - q3[g]) / sc;
+      let tHigh = (v - q3[g]) / highScale[g];
       if (tHigh > MAX) tHigh = MAX;
       else if (tHigh < -MAX) tHigh = -MAX;
-      let tLow = (q1[g] - v) / sc;
+      let tLow = (q1[g] - v) / lowScale[g];
       if (tLow > MAX) tLow = MAX;
       else if (tLow < -MAX) tLow = -MAX;
       let score = 0;

@@ -169,7 +169,7 @@ export function initialSettings(table: DetectedTable, saved: RunSettings | null)
     logScale: DEFAULT_OPTIONS.logScale,
     minGroupSize: DEFAULT_OPTIONS.minGroupSize,
     smallGroups: DEFAULT_OPTIONS.smallGroups,
-    decimalComma: DEFAULT_OPTIONS.decimalComma ?? false,
+    decimal: 'auto',
   };
 }
 

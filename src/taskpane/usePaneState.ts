@@ -235,12 +235,19 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
           dispatch({ type: 'notice', text: 'Enter how many claims you can review as a whole number, e.g. 25.' });
           return;
         }
-        const cut = budgetCutoff(scored, n);
-        if (cut === null) {
+        const answer = budgetCutoff(scored, n);
+        if (answer.kind === 'all-fit') {
+          dispatch({
+            type: 'notice',
+            text: `All ${answer.flaggable} claims that any cutoff could flag fit in ${n}, so the budget does not set a cutoff; it stays at ${s.cutoff}.`,
+          });
+          return;
+        }
+        if (answer.kind === 'none') {
           dispatch({ type: 'notice', text: 'No cutoff gives that many claims with these settings.' });
           return;
         }
-        dispatch({ type: 'settings', patch: { cutoff: cut } });
+        dispatch({ type: 'settings', patch: { cutoff: answer.cutoff } });
       },
       run: () => {
         const s = stateRef.current.settings;

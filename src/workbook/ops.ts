@@ -279,7 +279,7 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
     const note = text('note', r);
     if (!anyFlag && status === '' && note === '') continue;
     const rawValue = got.get('value')?.[r];
-    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimalComma ?? false });
+    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimal === 'comma' });
     const group = (settings?.groupColumns ?? []).map((_, i) => text(`group${i}`, r) || '(blank)').join(' / ');
     out.push({
       row: r,
@@ -297,7 +297,7 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
 export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
   const res = await resolveTable(sync, table);
   const want = [
-    ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'amount') })),
+    ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'value') })),
     ...settings.groupColumns.map((name) => ({ name, kind: 'group' as const, column: columnOf(res, name, 'group') })),
   ];
   const cells: RawCell[][] = want.map(() => new Array<RawCell>(res.rows));

@@ -11,10 +11,10 @@ import { expectNear, rng, rStats } from './helpers.js';
 
 const DESCRIPTIVE = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
 const ALL_FIELDS = [
-  'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3',
+  'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3', 'medcouple',
   'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'maxAttainableZ',
 ];
-const METHODS: MethodId[] = ['robust', 'classic', 'iqr'];
+const METHODS: MethodId[] = ['robust', 'classic', 'iqr', 'adjusted'];
 
 const score = (amounts: RawCell[], keys: RawCell[], method: MethodId, extra: Partial<ScoreOptions> = {}): ColumnScores =>
   scoreTable(
