@@ -26,7 +26,7 @@ import type { NotesSection, Plan, PlanCell } from '../report/types.js';
 import { isTailmarkFormula, ruleFormula } from '../report/rules.js';
 import { REVIEW_STATUSES } from '../report/style.js';
 import { forEachCsvRecord } from './csv-stream.js';
-import { type ReadTable } from './read.js';
+import { type ReadTable, type StreamedInfo } from './read.js';
 import {
   argb,
   checkOutPath,
@@ -198,15 +198,19 @@ function writeRow(
       if (c.value !== null) cell.value = c.value;
     }
   }
-  const ours = results?.cellsFor(rowNo);
-  if (ours) {
-    for (const o of ours) {
-      const cell = row.getCell(o.col);
-      cell.style = o.style;
-      if (o.value !== null) cell.value = o.value;
-    }
-  }
+  if (results) putOurs(row, rowNo, results);
   row.commit();
+}
+
+/** Our result cells of one sheet row (style and value). */
+function putOurs(row: ExcelJS.Row, rowNo: number, results: ResultWriter): void {
+  const ours = results.cellsFor(rowNo);
+  if (!ours) return;
+  for (const o of ours) {
+    const cell = row.getCell(o.col);
+    cell.style = o.style;
+    if (o.value !== null) cell.value = o.value;
+  }
 }
 
 function applyHead(ws: WriterSheet, head: SheetHead, x: XlsxStream): void {
@@ -309,140 +313,10 @@ export async function writeScoredWorkbookStreaming(
     }
   };
 
-  const notCarried: string[] = [];
-  const sheetNames: string[] = [];
-  let notesName = plan.notes.name;
-  const firstTitle = plan.notes.sections[0]?.title;
-
+  const job: Job = { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, notCarried: [], sheetNames: [] };
   try {
-    if (info.kind === 'csv') {
-      const ws = wb.addWorksheet(table.sheetName) as unknown as WriterSheet;
-      sheetNames.push(table.sheetName);
-      setOurWidths(ws);
-      let rowNo = 0;
-      await forEachCsvRecord(inputPath, (rec) => {
-        rowNo++;
-        const row = ws.getRow(rowNo);
-        for (let c = 0; c < rec.length; c++) {
-          const v = csvFieldValue(rec[c]);
-          if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;
-        }
-        const ours = results.cellsFor(rowNo);
-        if (ours) {
-          for (const o of ours) {
-            const cell = row.getCell(o.col);
-            cell.style = o.style;
-            if (o.value !== null) cell.value = o.value;
-          }
-        }
-        row.commit();
-        progress(rowNo);
-      }, { afterChunk: () => letOutputDrain(ws), ...(info.text ? { encoding: info.text.encoding, delimiter: info.text.delimiter } : {}) });
-      for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
-      finishScored(ws, null);
-      ws.commit();
-    } else {
-      const x = new XlsxStream(inputPath);
-      // Our notes sheet from an earlier run is replaced; a user's sheet with the same name is kept.
-      const chain = new Set<string>();
-      for (let k = 1; ; k++) {
-        const n = k === 1 ? plan.notes.name : `${plan.notes.name} (${k})`;
-        if (!info.sheetNames.includes(n)) break;
-        chain.add(n);
-      }
-      let replaced: string | null = null;
-      let sawTarget = false;
-      try {
-        for await (const sheet of x.sheets()) {
-          const isTarget = sheet.name === table.sheetName && !sawTarget;
-          const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name) && firstTitle !== undefined;
-          let ws: WriterSheet | null = null;
-          let head: SheetHead | null = null;
-          let skip = false;
-          let next = 1; // next sheet row to write (target sheet: rows missing from the file still get results)
-          const open = () => {
-            if (ws || skip) return ws;
-            ws = wb.addWorksheet(sheet.name, sheetOptions(head, sheet.state)) as unknown as WriterSheet;
-            sheetNames.push(sheet.name);
-            if (head) applyHead(ws, head, x);
-            if (isTarget) setOurWidths(ws);
-            return ws;
-          };
-          const tail = await x.readSheet(sheet, {
-            onHead(h) {
-              head = h;
-            },
-            onRow(row) {
-              if (maybeOurs && !ws && !skip) {
-                const a1 = row.r === 1 ? row.cells.find((c) => c.col === 1) : undefined;
-                if (a1 && a1.raw === firstTitle) {
-                  skip = true;
-                  replaced = sheet.name;
-                  return false;
-                }
-              }
-              const w = open();
-              if (!w) return false;
-              if (isTarget) {
-                for (; next < row.r; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
-                next = row.r + 1;
-                writeRow(w, row, row.r, x, results);
-                progress(row.r);
-              } else writeRow(w, row, row.r, x, null);
-              return true;
-            },
-            afterChunk: () => letOutputDrain(ws),
-          });
-          if (skip) continue;
-          const w = open()!;
-          if (isTarget) {
-            sawTarget = true;
-            for (; next <= lastDataRow; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
-            finishScored(w, tail);
-          } else applyTail(w, tail, null);
-          for (const words of describeNotCarried(tail.notCarried)) notCarried.push(`sheet "${sheet.name}": ${words}`);
-          w.commit();
-        }
-      } finally {
-        x.close();
-      }
-      const order = info.sheetNames.filter((n) => sheetNames.includes(n));
-      if (order.join('\u0000') !== sheetNames.join('\u0000')) {
-        notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
-      }
-      if (!sawTarget) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
-      const names = x.definedNameCount;
-      if (names > 0) notCarried.push(`${names} named range${names === 1 ? '' : 's'} (defined names)`);
-      if (replaced !== null) notesName = replaced;
-      else {
-        for (let k = 2; sheetNames.includes(notesName) || info.sheetNames.includes(notesName); k++) notesName = `${plan.notes.name} (${k})`;
-      }
-    }
-
-    // Notes sheet, with a section on what this mode carried over.
-    const extra: NotesSection = {
-      title: 'Large-file mode',
-      rows: [
-        [`This workbook was written row by row (large-file mode). Carried over from the input: ${STREAM_CARRIED}.`],
-        [
-          notCarried.length
-            ? `Not carried over (found in the input): ${notCarried.join('; ')}. Keep the input file for these.`
-            : info.kind === 'csv'
-              ? 'The input was a CSV file: it has no formatting to carry over.'
-              : 'Nothing else was found in the input that this mode leaves out.',
-        ],
-      ],
-    };
-    const notes = wb.addWorksheet(notesName, { useSharedStrings: true } as Partial<ExcelJS.AddWorksheetOptions>) as unknown as WriterSheet;
-    const layout = notesLayout([...plan.notes.sections, extra]);
-    notes.getColumn(1).width = 34;
-    for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
-    for (const c of layout.cells) {
-      const cell = notes.getRow(c.row).getCell(c.col);
-      if (c.style) cell.style = c.style;
-      if (c.value !== null) cell.value = c.value;
-    }
-    notes.commit();
+    const notesName = info.kind === 'csv' ? await copyCsv(job) : await copyWorkbook(job);
+    writeNotes(job, notesName);
     options.onProgress?.('saving', 0);
     await wb.commit();
     await rename(tmp, outPath);
@@ -452,11 +326,167 @@ export async function writeScoredWorkbookStreaming(
       sheetName: table.sheetName,
       placed: placed.map(({ header, column }) => ({ header, column })),
       notesSheet: notesName,
-      notCarried,
+      notCarried: job.notCarried,
     };
   } catch (e) {
     await rm(tmp, { force: true });
     if (isTailmarkError(e, 'input-file', 'output-file')) throw e;
     throw new TailmarkError('output-file', `cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
   }
+}
+
+/** What one streaming write shares between copying the input and writing the notes. */
+interface Job {
+  readonly inputPath: string;
+  readonly table: ReadTable;
+  readonly plan: Plan;
+  readonly info: StreamedInfo;
+  readonly wb: ExcelJS.stream.xlsx.WorkbookWriter;
+  readonly results: ResultWriter;
+  readonly lastDataRow: number;
+  readonly progress: (rowNo: number) => void;
+  readonly setOurWidths: (ws: WriterSheet) => void;
+  readonly finishScored: (ws: WriterSheet, tail: SheetTail | null) => void;
+  /** What the input had that this writer did not carry over, in words. */
+  readonly notCarried: string[];
+  /** Sheets written so far, in order. */
+  readonly sheetNames: string[];
+}
+
+/** A CSV input: its records on one sheet (read again with the encoding and delimiter found), with our columns. Returns the notes sheet's name. */
+async function copyCsv(job: Job): Promise<string> {
+  const { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, sheetNames } = job;
+    const ws = wb.addWorksheet(table.sheetName) as unknown as WriterSheet;
+    sheetNames.push(table.sheetName);
+    setOurWidths(ws);
+    let rowNo = 0;
+    await forEachCsvRecord(inputPath, (rec) => {
+      rowNo++;
+      const row = ws.getRow(rowNo);
+      for (let c = 0; c < rec.length; c++) {
+        const v = csvFieldValue(rec[c]);
+        if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;
+      }
+      putOurs(row, rowNo, results);
+      row.commit();
+      progress(rowNo);
+    }, { afterChunk: () => letOutputDrain(ws), ...(info.text ? { encoding: info.text.encoding, delimiter: info.text.delimiter } : {}) });
+    for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
+    finishScored(ws, null);
+    ws.commit();
+  return plan.notes.name;
+}
+
+/**
+ * An .xlsx input: every sheet copied row by row in storage order, ours added on the scored sheet; an
+ * earlier notes sheet of ours is replaced. Returns the notes sheet's name.
+ */
+async function copyWorkbook(job: Job): Promise<string> {
+  const { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, notCarried, sheetNames } = job;
+  let notesName = plan.notes.name;
+  const firstTitle = plan.notes.sections[0]?.title;
+    const x = new XlsxStream(inputPath);
+    // Our notes sheet from an earlier run is replaced; a user's sheet with the same name is kept.
+    const chain = new Set<string>();
+    for (let k = 1; ; k++) {
+      const n = k === 1 ? plan.notes.name : `${plan.notes.name} (${k})`;
+      if (!info.sheetNames.includes(n)) break;
+      chain.add(n);
+    }
+    let replaced: string | null = null;
+    let sawTarget = false;
+    try {
+      for await (const sheet of x.sheets()) {
+        const isTarget = sheet.name === table.sheetName && !sawTarget;
+        const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name) && firstTitle !== undefined;
+        let ws: WriterSheet | null = null;
+        let head: SheetHead | null = null;
+        let skip = false;
+        let next = 1; // next sheet row to write (target sheet: rows missing from the file still get results)
+        const open = () => {
+          if (ws || skip) return ws;
+          ws = wb.addWorksheet(sheet.name, sheetOptions(head, sheet.state)) as unknown as WriterSheet;
+          sheetNames.push(sheet.name);
+          if (head) applyHead(ws, head, x);
+          if (isTarget) setOurWidths(ws);
+          return ws;
+        };
+        const tail = await x.readSheet(sheet, {
+          onHead(h) {
+            head = h;
+          },
+          onRow(row) {
+            if (maybeOurs && !ws && !skip) {
+              const a1 = row.r === 1 ? row.cells.find((c) => c.col === 1) : undefined;
+              if (a1 && a1.raw === firstTitle) {
+                skip = true;
+                replaced = sheet.name;
+                return false;
+              }
+            }
+            const w = open();
+            if (!w) return false;
+            if (isTarget) {
+              for (; next < row.r; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
+              next = row.r + 1;
+              writeRow(w, row, row.r, x, results);
+              progress(row.r);
+            } else writeRow(w, row, row.r, x, null);
+            return true;
+          },
+          afterChunk: () => letOutputDrain(ws),
+        });
+        if (skip) continue;
+        const w = open()!;
+        if (isTarget) {
+          sawTarget = true;
+          for (; next <= lastDataRow; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
+          finishScored(w, tail);
+        } else applyTail(w, tail, null);
+        for (const words of describeNotCarried(tail.notCarried)) notCarried.push(`sheet "${sheet.name}": ${words}`);
+        w.commit();
+      }
+    } finally {
+      x.close();
+    }
+    const order = info.sheetNames.filter((n) => sheetNames.includes(n));
+    if (order.join('\u0000') !== sheetNames.join('\u0000')) {
+      notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
+    }
+    if (!sawTarget) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
+    const names = x.definedNameCount;
+    if (names > 0) notCarried.push(`${names} named range${names === 1 ? '' : 's'} (defined names)`);
+    if (replaced !== null) notesName = replaced;
+    else {
+      for (let k = 2; sheetNames.includes(notesName) || info.sheetNames.includes(notesName); k++) notesName = `${plan.notes.name} (${k})`;
+    }
+  return notesName;
+}
+
+/** The notes sheet, with a section on what this mode carried over. */
+function writeNotes(job: Job, notesName: string): void {
+  const { plan, info, wb, notCarried } = job;
+  const extra: NotesSection = {
+    title: 'Large-file mode',
+    rows: [
+      [`This workbook was written row by row (large-file mode). Carried over from the input: ${STREAM_CARRIED}.`],
+      [
+        notCarried.length
+          ? `Not carried over (found in the input): ${notCarried.join('; ')}. Keep the input file for these.`
+          : info.kind === 'csv'
+            ? 'The input was a CSV file: it has no formatting to carry over.'
+            : 'Nothing else was found in the input that this mode leaves out.',
+      ],
+    ],
+  };
+  const notes = wb.addWorksheet(notesName, { useSharedStrings: true } as Partial<ExcelJS.AddWorksheetOptions>) as unknown as WriterSheet;
+  const layout = notesLayout([...plan.notes.sections, extra]);
+  notes.getColumn(1).width = 34;
+  for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
+  for (const c of layout.cells) {
+    const cell = notes.getRow(c.row).getCell(c.col);
+    if (c.style) cell.style = c.style;
+    if (c.value !== null) cell.value = c.value;
+  }
+  notes.commit();
 }

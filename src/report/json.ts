@@ -25,46 +25,61 @@ export interface PlanJson {
   readonly groups: Record<string, unknown>[];
 }
 
+type Column = Plan['result']['columns'][number];
+
+/** One row of one value column as the JSON sink gives it. */
+function rowEntry(col: Column, r: number, ids: readonly RawCell[] | null, multi: boolean): Record<string, unknown> {
+  const g = col.groups[col.groupOf[r]];
+  const entry: Record<string, unknown> = {
+    row: r + 1,
+    group: g ? g.label : null,
+    value: finite(col.values[r]),
+    score: finite(col.scores[r]),
+    flagged: col.flagged[r] === 1,
+  };
+  if (ids) entry.id = rawText(ids[r]);
+  if (multi) entry.column = col.column;
+  entry.comparedWith = POPULATIONS[col.population[r]];
+  return entry;
+}
+
+/** One group of one value column as the JSON sink gives it. */
+function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): Record<string, unknown> {
+  const entry: Record<string, unknown> = {
+    key: g.label,
+    n: g.n,
+    center: g.center,
+    scale: g.scale,
+    lower: g.lower,
+    upper: g.upper,
+    flagged: g.flagged,
+    medcouple: g.medcouple,
+  };
+  if (multi) entry.column = col.column;
+  return entry;
+}
+
+function idCells(plan: Plan): readonly RawCell[] | null {
+  const idIndex = plan.idColumn === null ? -1 : plan.table.headers.indexOf(plan.idColumn);
+  return idIndex >= 0 ? plan.table.columns[idIndex] : null;
+}
+
+function decimalOf(plan: Plan): PlanJson['decimal'] {
+  return Object.fromEntries(plan.result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
+}
+
 /** Rows (one per data row and value column) and groups of a plan, unrounded. */
 export function planToJson(plan: Plan): PlanJson {
-  const { result, table } = plan;
+  const { result } = plan;
   const multi = result.columns.length > 1;
-  const idIndex = plan.idColumn === null ? -1 : table.headers.indexOf(plan.idColumn);
-  const ids = idIndex >= 0 ? table.columns[idIndex] : null;
+  const ids = idCells(plan);
   const rows: Record<string, unknown>[] = [];
   const groups: Record<string, unknown>[] = [];
   for (const col of result.columns) {
-    for (let r = 0; r < result.rowCount; r++) {
-      const g = col.groups[col.groupOf[r]];
-      const entry: Record<string, unknown> = {
-        row: r + 1,
-        group: g ? g.label : null,
-        value: finite(col.values[r]),
-        score: finite(col.scores[r]),
-        flagged: col.flagged[r] === 1,
-      };
-      if (ids) entry.id = rawText(ids[r]);
-      if (multi) entry.column = col.column;
-      entry.comparedWith = POPULATIONS[col.population[r]];
-      rows.push(entry);
-    }
-    for (const g of col.groups) {
-      const entry: Record<string, unknown> = {
-        key: g.label,
-        n: g.n,
-        center: g.center,
-        scale: g.scale,
-        lower: g.lower,
-        upper: g.upper,
-        flagged: g.flagged,
-        medcouple: g.medcouple,
-      };
-      if (multi) entry.column = col.column;
-      groups.push(entry);
-    }
+    for (let r = 0; r < result.rowCount; r++) rows.push(rowEntry(col, r, ids, multi));
+    for (const g of col.groups) groups.push(groupEntry(col, g, multi));
   }
-  const decimal = Object.fromEntries(result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
-  return { method: result.options.method, cutoff: result.options.cutoff, decimal, rows, groups };
+  return { method: result.options.method, cutoff: result.options.cutoff, decimal: decimalOf(plan), rows, groups };
 }
 
 const CHUNK_CHARS = 1 << 20;
@@ -74,27 +89,14 @@ const CHUNK_CHARS = 1 << 20;
  * JSON.parse of the joined chunks equals planToJson(plan) (NaN and infinities become null either way).
  */
 export function* planJsonChunks(plan: Plan): Generator<string> {
-  const { result, table } = plan;
+  const { result } = plan;
   const multi = result.columns.length > 1;
-  const idIndex = plan.idColumn === null ? -1 : table.headers.indexOf(plan.idColumn);
-  const ids = idIndex >= 0 ? table.columns[idIndex] : null;
-  const decimal = Object.fromEntries(result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
-  let buf = `{\n  "method": ${JSON.stringify(result.options.method)},\n  "cutoff": ${JSON.stringify(result.options.cutoff)},\n  "decimal": ${JSON.stringify(decimal)},\n  "rows": [`;
+  const ids = idCells(plan);
+  let buf = `{\n  "method": ${JSON.stringify(result.options.method)},\n  "cutoff": ${JSON.stringify(result.options.cutoff)},\n  "decimal": ${JSON.stringify(decimalOf(plan))},\n  "rows": [`;
   let first = true;
   for (const col of result.columns) {
     for (let r = 0; r < result.rowCount; r++) {
-      const g = col.groups[col.groupOf[r]];
-      const entry: Record<string, unknown> = {
-        row: r + 1,
-        group: g ? g.label : null,
-        value: finite(col.values[r]),
-        score: finite(col.scores[r]),
-        flagged: col.flagged[r] === 1,
-      };
-      if (ids) entry.id = rawText(ids[r]);
-      if (multi) entry.column = col.column;
-      entry.comparedWith = POPULATIONS[col.population[r]];
-      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(entry)}`;
+      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(rowEntry(col, r, ids, multi))}`;
       first = false;
       if (buf.length >= CHUNK_CHARS) {
         yield buf;
@@ -106,9 +108,7 @@ export function* planJsonChunks(plan: Plan): Generator<string> {
   first = true;
   for (const col of result.columns) {
     for (const g of col.groups) {
-      const entry: Record<string, unknown> = { key: g.label, n: g.n, center: g.center, scale: g.scale, lower: g.lower, upper: g.upper, flagged: g.flagged };
-      if (multi) entry.column = col.column;
-      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(entry)}`;
+      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(groupEntry(col, g, multi))}`;
       first = false;
     }
   }

@@ -3,6 +3,7 @@
  * pipeline the run uses (src/pipeline), without writing anything. All scoring imports of the pane
  * go through this file.
  */
+import { describeDecimal } from '../report/decimal.js';
 import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
 import { defaultCutoff, describeCutoff } from '../scoring/index.js';
@@ -31,6 +32,8 @@ export interface GroupCount {
 
 export interface ColumnPreview {
   readonly column: string;
+  /** How its text amounts were read, e.g. "Amount: read with decimal comma (inferred from ...)". */
+  readonly decimal: string;
   readonly scored: number;
   readonly flagged: number;
   readonly groups: readonly GroupCount[];
@@ -56,6 +59,7 @@ function groupCounts(col: ColumnScores): GroupCount[] {
 export function summarisePreview(result: ScoreResult, s: RunSettings): PreviewSummary {
   const columns = result.columns.map((c) => ({
     column: c.column,
+    decimal: describeDecimal(c.column, c.decimal),
     scored: c.scoredRows,
     flagged: c.flaggedRows,
     groups: groupCounts(c),

@@ -1,5 +1,5 @@
 import { Button, Checkbox, Field, Input, Select, Slider, Text } from '@fluentui/react-components';
-import type { Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
+import type { DecimalMode, Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
 import { GroupCountTable } from './GroupCountTable.js';
 import { NumberInput } from './NumberInput.js';
@@ -60,6 +60,13 @@ export function MethodSection({ model }: { model: PaneModel }) {
         checked={settings.logScale}
         onChange={(_, d) => actions.setSettings({ logScale: d.checked === true })}
       />
+      <Field label="Decimal separator in text amounts" hint={first?.decimal}>
+        <Select value={settings.decimal} onChange={(_, d) => actions.setSettings({ decimal: d.value as DecimalMode })} data-testid="decimal">
+          <option value="auto">Decide from each column's cells</option>
+          <option value="comma">Decimal comma (1.234,50)</option>
+          <option value="point">Decimal point (1,234.50)</option>
+        </Select>
+      </Field>
       <div className={s.row}>
         <Field label="Smallest peer group" className={s.grow}>
           <NumberInput
