@@ -113,6 +113,8 @@ export function parseCell(raw: RawCell, options?: ParseOptions): ParseResult {
 export function parseText(text: string, decimalComma: boolean): ParseResult {
   let s = text.trim();
   if (s.length === 0) return BLANK;
+  const quick = plainNumber(s, decimalComma);
+  if (quick === quick) return Number.isFinite(quick) ? { ok: true, value: quick } : NON_FINITE; // not NaN
   const first = s.charCodeAt(0);
   if (first === 35 /* # */) return ERROR_SET.has(s.toUpperCase()) ? ERROR : TEXT;
   if (s.length <= 5) {
@@ -183,6 +185,28 @@ export function parseText(text: string, decimalComma: boolean): ParseResult {
   if (Number.isNaN(v)) return TEXT;
   if (!Number.isFinite(v)) return NON_FINITE;
   return { ok: true, value: negative ? -v : v };
+}
+
+/**
+ * The common case without allocation: an optional minus, digits and at most one decimal separator
+ * ("185.23", "-40", "12,5" with a decimal comma). NaN when the text is anything else.
+ */
+function plainNumber(t: string, decimalComma: boolean): number {
+  const n = t.length;
+  let i = 0;
+  if (t.charCodeAt(0) === 45) i = 1;
+  const sep = decimalComma ? 44 : 46;
+  let digits = 0;
+  let at = -1;
+  for (let j = i; j < n; j++) {
+    const c = t.charCodeAt(j);
+    if (c >= 48 && c <= 57) digits++;
+    else if (c === sep && at < 0) at = j;
+    else return NaN;
+  }
+  if (digits === 0) return NaN;
+  const v = Number(decimalComma && at >= 0 ? `${t.slice(0, at)}.${t.slice(at + 1)}` : t);
+  return v;
 }
 
 /** True when `text` holds an ASCII letter (a cheap pre-check: such text is a number only with a currency code). */
