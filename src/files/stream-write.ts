@@ -21,20 +21,19 @@
 import { rename, rm } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import ExcelJS from 'exceljs';
-import type { RawCell } from '../scoring/types.js';
 import type { NotesSection, Plan, PlanCell } from '../report/types.js';
-import { isTailmarkFormula, ruleFormula } from '../report/rules.js';
-import { REVIEW_STATUSES } from '../report/style.js';
+import { isTailmarkFormula } from '../report/rules.js';
 import { forEachCsvRecord } from './csv-stream.js';
-import { type ReadTable, type StreamedInfo } from './read.js';
+import { type ReadTable } from './read.js';
 import {
-  argb,
   checkOutPath,
+  inStatusColumn,
+  isOurNotesSheet,
   notesLayout,
+  ourRules,
   placeColumns,
   RESULT_HEADER_STYLE,
-  ruleRange,
-  solid,
+  statusDropdown,
   type Placed,
 } from './layout.js';
 import type { WriteSummary } from './write.js';
@@ -69,12 +68,6 @@ function csvFieldValue(f: string): ExcelJS.CellValue {
   return f;
 }
 
-function rawText(v: RawCell): string {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'object' && !(v instanceof Date)) return v.code;
-  return String(v);
-}
-
 type Sheet = ExcelJS.Worksheet; // WorksheetWriter: the same surface for what is used here
 
 interface ResultWriter {
@@ -88,69 +81,31 @@ function resultWriter(table: ReadTable, plan: Plan, placed: readonly Placed[]): 
   const headerRow = table.headerRow;
   const firstDataRow = headerRow + 1;
   const lastDataRow = headerRow + table.rowCount;
-  const existing = new Set(table.headers);
   const scoreStyles = new Map<string, Partial<ExcelJS.Style>>();
   const cols = plan.columns.map((col, ci) => {
-    const reused = existing.has(col.header);
-    const keepMarks = reused && (col.kind === 'status' || col.kind === 'note');
-    const prior = keepMarks ? table.columns[placed[ci].index - table.firstColumn] : undefined;
     let style = EMPTY_STYLE;
     if (col.numberFormat) {
       style = scoreStyles.get(col.numberFormat) ?? { numFmt: col.numberFormat };
       scoreStyles.set(col.numberFormat, style);
     }
-    return { col: placed[ci].index + 1, values: col.values, prior, style, header: col.header };
+    return { col: placed[ci].index + 1, values: col.values, style, header: col.header };
   });
   const ownCols = new Set(cols.map((c) => c.col));
-  const keeps = (rowNo: number, c: (typeof cols)[number]): boolean =>
-    c.prior !== undefined && rawText(c.prior[rowNo - firstDataRow]).trim() !== '';
   return {
     cellsFor(rowNo) {
       if (rowNo === headerRow) return cols.map((c) => ({ col: c.col, value: c.header, style: RESULT_HEADER_STYLE }));
       if (rowNo < firstDataRow || rowNo > lastDataRow) return null;
       const r = rowNo - firstDataRow;
       const out: { col: number; value: PlanCell; style: Partial<ExcelJS.Style> }[] = [];
+      // The plan holds the review marks (kept with their claims by the pipeline).
       for (const c of cols) {
-        if (keeps(rowNo, c)) continue; // the reviewer's mark stays as it is in the input cell
         out.push({ col: c.col, value: c.values[r] ?? null, style: c.style });
       }
       return out;
     },
     owns(rowNo, col) {
-      if (!ownCols.has(col) || rowNo < headerRow || rowNo > lastDataRow) return false;
-      if (rowNo === headerRow) return true;
-      const c = cols.find((x) => x.col === col)!;
-      return !keeps(rowNo, c);
+      return ownCols.has(col) && rowNo >= headerRow && rowNo <= lastDataRow;
     },
-  };
-}
-
-function statusDropdown(): ExcelJS.DataValidation {
-  const labels = REVIEW_STATUSES.map((s) => s.label).join(',');
-  return {
-    type: 'list',
-    allowBlank: true,
-    formulae: [`"${labels}"`],
-    showErrorMessage: true,
-    errorStyle: 'warning',
-    errorTitle: 'Tailmark status',
-    error: `Pick one of: ${REVIEW_STATUSES.map((s) => s.label).join(', ')}`,
-  };
-}
-
-function ourRules(table: ReadTable, plan: Plan, placed: readonly Placed[]): ExcelJS.ConditionalFormattingOptions | null {
-  const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
-  if (statusIdx < 0 || table.rowCount === 0) return null;
-  const flagColumns = plan.columns.map((c, i) => (c.kind === 'flag' ? placed[i].column : null)).filter((c): c is string => c !== null);
-  const statusColumn = placed[statusIdx].column;
-  return {
-    ref: ruleRange(table, placed),
-    rules: plan.rules.map((rule) => ({
-      type: 'expression' as const,
-      priority: rule.priority,
-      formulae: [ruleFormula(rule, { firstDataRow: table.headerRow + 1, flagColumns, statusColumn }).replace(/^=/, '')],
-      style: { fill: solid(rule.swatch), font: { color: argb(rule.swatch.font) } },
-    })),
   };
 }
 
@@ -198,19 +153,15 @@ function writeRow(
       if (c.value !== null) cell.value = c.value;
     }
   }
-  if (results) putOurs(row, rowNo, results);
-  row.commit();
-}
-
-/** Our result cells of one sheet row (style and value). */
-function putOurs(row: ExcelJS.Row, rowNo: number, results: ResultWriter): void {
-  const ours = results.cellsFor(rowNo);
-  if (!ours) return;
-  for (const o of ours) {
-    const cell = row.getCell(o.col);
-    cell.style = o.style;
-    if (o.value !== null) cell.value = o.value;
+  const ours = results?.cellsFor(rowNo);
+  if (ours) {
+    for (const o of ours) {
+      const cell = row.getCell(o.col);
+      cell.style = o.style;
+      if (o.value !== null) cell.value = o.value;
+    }
   }
+  row.commit();
 }
 
 function applyHead(ws: WriterSheet, head: SheetHead, x: XlsxStream): void {
@@ -253,10 +204,7 @@ function applyTail(ws: WriterSheet, tail: SheetTail, statusColumn: string | null
   }
   for (const dv of tail.dataValidations) {
     for (const range of dv.ranges) {
-      if (statusColumn) {
-        const m = /^\$?([A-Z]+)\$?\d+(?::\$?([A-Z]+)\$?\d+)?$/.exec(range);
-        if (m && m[1] === statusColumn && (m[2] === undefined || m[2] === statusColumn)) continue;
-      }
+      if (statusColumn && inStatusColumn(range, statusColumn)) continue;
       ws.dataValidations.model[range] = dv.validation;
     }
   }
@@ -313,10 +261,139 @@ export async function writeScoredWorkbookStreaming(
     }
   };
 
-  const job: Job = { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, notCarried: [], sheetNames: [] };
+  const notCarried: string[] = [];
+  const sheetNames: string[] = [];
+  let notesName = plan.notes.name;
+
   try {
-    const notesName = info.kind === 'csv' ? await copyCsv(job) : await copyWorkbook(job);
-    writeNotes(job, notesName);
+    if (info.kind === 'csv') {
+      const ws = wb.addWorksheet(table.sheetName) as unknown as WriterSheet;
+      sheetNames.push(table.sheetName);
+      setOurWidths(ws);
+      let rowNo = 0;
+      await forEachCsvRecord(inputPath, (rec) => {
+        rowNo++;
+        const row = ws.getRow(rowNo);
+        for (let c = 0; c < rec.length; c++) {
+          const v = csvFieldValue(rec[c]);
+          if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;
+        }
+        const ours = results.cellsFor(rowNo);
+        if (ours) {
+          for (const o of ours) {
+            const cell = row.getCell(o.col);
+            cell.style = o.style;
+            if (o.value !== null) cell.value = o.value;
+          }
+        }
+        row.commit();
+        progress(rowNo);
+      }, { afterChunk: () => letOutputDrain(ws), ...(info.text ? { encoding: info.text.encoding, delimiter: info.text.delimiter } : {}) });
+      for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
+      finishScored(ws, null);
+      ws.commit();
+    } else {
+      const x = new XlsxStream(inputPath);
+      // Our notes sheet from an earlier run is replaced; a user's sheet with the same name is kept.
+      const chain = new Set<string>();
+      for (let k = 1; ; k++) {
+        const n = k === 1 ? plan.notes.name : `${plan.notes.name} (${k})`;
+        if (!info.sheetNames.includes(n)) break;
+        chain.add(n);
+      }
+      let replaced: string | null = null;
+      let sawTarget = false;
+      try {
+        for await (const sheet of x.sheets()) {
+          const isTarget = sheet.name === table.sheetName && !sawTarget;
+          const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name);
+          let ws: WriterSheet | null = null;
+          let head: SheetHead | null = null;
+          let skip = false;
+          let next = 1; // next sheet row to write (target sheet: rows missing from the file still get results)
+          const open = () => {
+            if (ws || skip) return ws;
+            ws = wb.addWorksheet(sheet.name, sheetOptions(head, sheet.state)) as unknown as WriterSheet;
+            sheetNames.push(sheet.name);
+            if (head) applyHead(ws, head, x);
+            if (isTarget) setOurWidths(ws);
+            return ws;
+          };
+          const tail = await x.readSheet(sheet, {
+            onHead(h) {
+              head = h;
+            },
+            onRow(row) {
+              if (maybeOurs && !ws && !skip) {
+                const a1 = row.r === 1 ? row.cells.find((c) => c.col === 1) : undefined;
+                if (a1 && isOurNotesSheet(a1.raw)) {
+                  skip = true;
+                  replaced = sheet.name;
+                  return false;
+                }
+              }
+              const w = open();
+              if (!w) return false;
+              if (isTarget) {
+                for (; next < row.r; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
+                next = row.r + 1;
+                writeRow(w, row, row.r, x, results);
+                progress(row.r);
+              } else writeRow(w, row, row.r, x, null);
+              return true;
+            },
+            afterChunk: () => letOutputDrain(ws),
+          });
+          if (skip) continue;
+          const w = open()!;
+          if (isTarget) {
+            sawTarget = true;
+            for (; next <= lastDataRow; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
+            finishScored(w, tail);
+          } else applyTail(w, tail, null);
+          for (const words of describeNotCarried(tail.notCarried)) notCarried.push(`sheet "${sheet.name}": ${words}`);
+          w.commit();
+        }
+      } finally {
+        x.close();
+      }
+      const order = info.sheetNames.filter((n) => sheetNames.includes(n));
+      if (order.join('\u0000') !== sheetNames.join('\u0000')) {
+        notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
+      }
+      if (!sawTarget) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
+      const names = x.definedNameCount;
+      if (names > 0) notCarried.push(`${names} named range${names === 1 ? '' : 's'} (defined names)`);
+      if (replaced !== null) notesName = replaced;
+      else {
+        for (let k = 2; sheetNames.includes(notesName) || info.sheetNames.includes(notesName); k++) notesName = `${plan.notes.name} (${k})`;
+      }
+    }
+
+    // Notes sheet, with a section on what this mode carried over.
+    const extra: NotesSection = {
+      title: 'Large-file mode',
+      rows: [
+        [`This workbook was written row by row (large-file mode). Carried over from the input: ${STREAM_CARRIED}.`],
+        [
+          notCarried.length
+            ? `Not carried over (found in the input): ${notCarried.join('; ')}. Keep the input file for these.`
+            : info.kind === 'csv'
+              ? 'The input was a CSV file: it has no formatting to carry over.'
+              : 'Nothing else was found in the input that this mode leaves out.',
+        ],
+      ],
+    };
+    const notes = wb.addWorksheet(notesName, { useSharedStrings: true } as Partial<ExcelJS.AddWorksheetOptions>) as unknown as WriterSheet;
+    const layout = notesLayout(plan, [extra]);
+    notes.getColumn(1).width = 34;
+    for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
+    for (const c of layout.cells) {
+      const cell = notes.getRow(c.row).getCell(c.col);
+      if (c.style) cell.style = c.style;
+      if (c.value !== null) cell.value = c.value;
+    }
+    notes.commit();
     options.onProgress?.('saving', 0);
     await wb.commit();
     await rename(tmp, outPath);
@@ -326,167 +403,11 @@ export async function writeScoredWorkbookStreaming(
       sheetName: table.sheetName,
       placed: placed.map(({ header, column }) => ({ header, column })),
       notesSheet: notesName,
-      notCarried: job.notCarried,
+      notCarried,
     };
   } catch (e) {
     await rm(tmp, { force: true });
     if (isTailmarkError(e, 'input-file', 'output-file')) throw e;
     throw new TailmarkError('output-file', `cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
   }
-}
-
-/** What one streaming write shares between copying the input and writing the notes. */
-interface Job {
-  readonly inputPath: string;
-  readonly table: ReadTable;
-  readonly plan: Plan;
-  readonly info: StreamedInfo;
-  readonly wb: ExcelJS.stream.xlsx.WorkbookWriter;
-  readonly results: ResultWriter;
-  readonly lastDataRow: number;
-  readonly progress: (rowNo: number) => void;
-  readonly setOurWidths: (ws: WriterSheet) => void;
-  readonly finishScored: (ws: WriterSheet, tail: SheetTail | null) => void;
-  /** What the input had that this writer did not carry over, in words. */
-  readonly notCarried: string[];
-  /** Sheets written so far, in order. */
-  readonly sheetNames: string[];
-}
-
-/** A CSV input: its records on one sheet (read again with the encoding and delimiter found), with our columns. Returns the notes sheet's name. */
-async function copyCsv(job: Job): Promise<string> {
-  const { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, sheetNames } = job;
-    const ws = wb.addWorksheet(table.sheetName) as unknown as WriterSheet;
-    sheetNames.push(table.sheetName);
-    setOurWidths(ws);
-    let rowNo = 0;
-    await forEachCsvRecord(inputPath, (rec) => {
-      rowNo++;
-      const row = ws.getRow(rowNo);
-      for (let c = 0; c < rec.length; c++) {
-        const v = csvFieldValue(rec[c]);
-        if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;
-      }
-      putOurs(row, rowNo, results);
-      row.commit();
-      progress(rowNo);
-    }, { afterChunk: () => letOutputDrain(ws), ...(info.text ? { encoding: info.text.encoding, delimiter: info.text.delimiter } : {}) });
-    for (let r = rowNo + 1; r <= lastDataRow; r++) writeRow(ws, null, r, null, results);
-    finishScored(ws, null);
-    ws.commit();
-  return plan.notes.name;
-}
-
-/**
- * An .xlsx input: every sheet copied row by row in storage order, ours added on the scored sheet; an
- * earlier notes sheet of ours is replaced. Returns the notes sheet's name.
- */
-async function copyWorkbook(job: Job): Promise<string> {
-  const { inputPath, table, plan, info, wb, results, lastDataRow, progress, setOurWidths, finishScored, notCarried, sheetNames } = job;
-  let notesName = plan.notes.name;
-  const firstTitle = plan.notes.sections[0]?.title;
-    const x = new XlsxStream(inputPath);
-    // Our notes sheet from an earlier run is replaced; a user's sheet with the same name is kept.
-    const chain = new Set<string>();
-    for (let k = 1; ; k++) {
-      const n = k === 1 ? plan.notes.name : `${plan.notes.name} (${k})`;
-      if (!info.sheetNames.includes(n)) break;
-      chain.add(n);
-    }
-    let replaced: string | null = null;
-    let sawTarget = false;
-    try {
-      for await (const sheet of x.sheets()) {
-        const isTarget = sheet.name === table.sheetName && !sawTarget;
-        const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name) && firstTitle !== undefined;
-        let ws: WriterSheet | null = null;
-        let head: SheetHead | null = null;
-        let skip = false;
-        let next = 1; // next sheet row to write (target sheet: rows missing from the file still get results)
-        const open = () => {
-          if (ws || skip) return ws;
-          ws = wb.addWorksheet(sheet.name, sheetOptions(head, sheet.state)) as unknown as WriterSheet;
-          sheetNames.push(sheet.name);
-          if (head) applyHead(ws, head, x);
-          if (isTarget) setOurWidths(ws);
-          return ws;
-        };
-        const tail = await x.readSheet(sheet, {
-          onHead(h) {
-            head = h;
-          },
-          onRow(row) {
-            if (maybeOurs && !ws && !skip) {
-              const a1 = row.r === 1 ? row.cells.find((c) => c.col === 1) : undefined;
-              if (a1 && a1.raw === firstTitle) {
-                skip = true;
-                replaced = sheet.name;
-                return false;
-              }
-            }
-            const w = open();
-            if (!w) return false;
-            if (isTarget) {
-              for (; next < row.r; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
-              next = row.r + 1;
-              writeRow(w, row, row.r, x, results);
-              progress(row.r);
-            } else writeRow(w, row, row.r, x, null);
-            return true;
-          },
-          afterChunk: () => letOutputDrain(ws),
-        });
-        if (skip) continue;
-        const w = open()!;
-        if (isTarget) {
-          sawTarget = true;
-          for (; next <= lastDataRow; next++) if (results.cellsFor(next)) writeRow(w, null, next, x, results);
-          finishScored(w, tail);
-        } else applyTail(w, tail, null);
-        for (const words of describeNotCarried(tail.notCarried)) notCarried.push(`sheet "${sheet.name}": ${words}`);
-        w.commit();
-      }
-    } finally {
-      x.close();
-    }
-    const order = info.sheetNames.filter((n) => sheetNames.includes(n));
-    if (order.join('\u0000') !== sheetNames.join('\u0000')) {
-      notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
-    }
-    if (!sawTarget) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
-    const names = x.definedNameCount;
-    if (names > 0) notCarried.push(`${names} named range${names === 1 ? '' : 's'} (defined names)`);
-    if (replaced !== null) notesName = replaced;
-    else {
-      for (let k = 2; sheetNames.includes(notesName) || info.sheetNames.includes(notesName); k++) notesName = `${plan.notes.name} (${k})`;
-    }
-  return notesName;
-}
-
-/** The notes sheet, with a section on what this mode carried over. */
-function writeNotes(job: Job, notesName: string): void {
-  const { plan, info, wb, notCarried } = job;
-  const extra: NotesSection = {
-    title: 'Large-file mode',
-    rows: [
-      [`This workbook was written row by row (large-file mode). Carried over from the input: ${STREAM_CARRIED}.`],
-      [
-        notCarried.length
-          ? `Not carried over (found in the input): ${notCarried.join('; ')}. Keep the input file for these.`
-          : info.kind === 'csv'
-            ? 'The input was a CSV file: it has no formatting to carry over.'
-            : 'Nothing else was found in the input that this mode leaves out.',
-      ],
-    ],
-  };
-  const notes = wb.addWorksheet(notesName, { useSharedStrings: true } as Partial<ExcelJS.AddWorksheetOptions>) as unknown as WriterSheet;
-  const layout = notesLayout([...plan.notes.sections, extra]);
-  notes.getColumn(1).width = 34;
-  for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
-  for (const c of layout.cells) {
-    const cell = notes.getRow(c.row).getCell(c.col);
-    if (c.style) cell.style = c.style;
-    if (c.value !== null) cell.value = c.value;
-  }
-  notes.commit();
 }

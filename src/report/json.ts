@@ -3,6 +3,7 @@
  * gives the same document as text a chunk at a time, so the batch command streams it at any size
  * (a full-height sheet never holds one object per row or the whole text); `planToJson` is the object.
  */
+import { describeGroupRule } from '../scoring/index.js';
 import { POPULATIONS, type RawCell } from '../scoring/types.js';
 import type { Plan } from './types.js';
 
@@ -54,6 +55,7 @@ function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): R
     upper: g.upper,
     flagged: g.flagged,
     medcouple: g.medcouple,
+    rule: describeGroupRule(col.method, g.medcouple),
   };
   if (multi) entry.column = col.column;
   return entry;

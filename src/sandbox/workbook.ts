@@ -116,6 +116,8 @@ export class SandboxWorkbook {
    */
   readonly mode = { cellEdit: false, readOnly: false, structureProtected: false };
   private cellEditWaiters: (() => void)[] = [];
+  /** The options of the last `run(options, batch)` (delayForCellEdit, mergeUndoGroup), for tests. */
+  lastRunOptions: Excel.RunOptions | null = null;
 
   readonly stats: SandboxStats = {
     runs: 0, syncs: 0, requests: 0, requestBytes: newBytes(), responseBytes: newBytes(),
@@ -128,7 +130,7 @@ export class SandboxWorkbook {
   constructor(options: SandboxOptions = {}) {
     this.options = {
       payloadLimitBytes: options.payloadLimitBytes ?? 5 * 1024 * 1024,
-      partialOnError: options.partialOnError ?? false,
+      partialOnError: options.partialOnError ?? true,
     };
   }
 
@@ -144,6 +146,7 @@ export class SandboxWorkbook {
   readonly run: SandboxRun = (<T>(a: unknown, b?: unknown): Promise<T> => {
     if (typeof a === 'function') return this.runIn<T>(new SandboxContext(this), a as Batch<T>);
     if (isRunOptions(a) && typeof b === 'function') {
+      this.lastRunOptions = { ...a };
       const fresh = new SandboxContext(this);
       fresh.delayForCellEdit = a.delayForCellEdit === true;
       return this.runIn<T>(fresh, b as Batch<T>);
@@ -168,6 +171,30 @@ export class SandboxWorkbook {
       ctx.closed = true;
       if (this.selectionKey() !== before) this.fireSelectionChanged();
     }
+  }
+
+  /** Syncs left before an injected failure (null: none armed). */
+  private faultCountdown: number | null = null;
+  /** Whether an armed fault has fired. */
+  faultFired = false;
+
+  /**
+   * Make the k-th sync from now (1 = the next) fail part-way, as a sync fails in Excel: the
+   * statements before the failing one (the first half of that request) stay applied.
+   */
+  failSyncAt(k: number): void {
+    this.faultCountdown = k;
+    this.faultFired = false;
+  }
+
+  /** @internal Called by each sync: the index of the statement that must fail, or -1. */
+  takeFault(statements: number): number {
+    if (this.faultCountdown === null) return -1;
+    this.faultCountdown--;
+    if (this.faultCountdown > 0) return -1;
+    this.faultCountdown = null;
+    this.faultFired = true;
+    return Math.floor(statements / 2);
   }
 
   /** Enter or leave cell-edit mode; leaving it releases requests held by `delayForCellEdit`. */
