@@ -3,12 +3,12 @@
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
 import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
+import { describeFallback } from '../scoring/fallbacks.js';
 import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
   type ColumnScores,
-  type Fallback,
   type GroupStats,
   type MethodId,
   type Population,
@@ -94,16 +94,6 @@ const METHOD_NAMES: Record<MethodId, string> = {
   adjusted: 'adjusted boxplot (medcouple)',
 };
 
-const FALLBACK_WORDS: Record<Fallback, string> = {
-  'mad-zero-used-meanad': 'MAD was 0 (most amounts identical); used 1.2533 x mean absolute deviation instead',
-  'no-spread': 'all amounts equal; nothing can be flagged',
-  'sd-zero': 'standard deviation was 0; nothing can be flagged',
-  'iqr-zero': 'IQR was 0; fences sit at Q1 and Q3',
-  'small-pooled': 'group below the minimum size; compared with the whole column',
-  'small-skipped': 'group below the minimum size; left unscored',
-  'cutoff-unreachable': 'group too small for classic z to reach the cutoff',
-};
-
 const POPULATION_WORDS: Record<Population, string> = {
   none: 'not scored',
   group: 'its own group',
@@ -166,7 +156,7 @@ function groupRow(g: GroupStats): PlanCell[] {
     tidy(g.lower),
     tidy(g.upper),
     g.flagged,
-    g.fallbacks.length ? g.fallbacks.map((f) => FALLBACK_WORDS[f]).join('; ') : '',
+    g.fallbacks.length ? g.fallbacks.map((f) => describeFallback(f)).join(' ') : '',
     POPULATION_WORDS[g.population],
     g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
   ];
