@@ -4,6 +4,7 @@
  */
 import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
 import { describeFallback } from '../scoring/fallbacks.js';
+import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
@@ -111,21 +112,10 @@ function round2(x: number): number | null {
   return Number.isFinite(x) ? Math.round(x * 100) / 100 : null;
 }
 
-/** 0-based column index -> letters. */
-function letters(index: number): string {
-  let n = index + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
 
 function tableRange(t: SourceTable): string {
   const last = t.firstColumn + Math.max(t.headers.length, 1) - 1;
-  return `${letters(t.firstColumn)}${t.headerRow}:${letters(last)}${t.headerRow + t.rowCount}`;
+  return `${columnLetters(t.firstColumn)}${t.headerRow}:${columnLetters(last)}${t.headerRow + t.rowCount}`;
 }
 
 function directionWords(d: ScoreResult['options']['direction']): string {
