@@ -15,7 +15,8 @@ import { readDelimited } from '../table/delimited.js';
 import type { TextEncodingName } from '../table/encoding.js';
 import { findHeaderRow, HEADER_SEARCH_ROWS } from '../table/header.js';
 import { sniffKind, unreadableMessage } from '../table/kind.js';
-import { columnName, uniqueHeaders } from '../table/names.js';
+import { uniqueHeaders } from '../table/names.js';
+import { columnLetters } from '../report/columns.js';
 import { TailmarkError } from '../pipeline/errors.js';
 import { isTotalFormula, rowSaysTotal } from '../table/totals.js';
 
@@ -66,8 +67,8 @@ export interface StreamedInfo {
   readonly text?: { readonly encoding: TextEncodingName; readonly delimiter: import('../table/csv.js').CsvDelimiter };
 }
 
-/** 0-based column index -> letters ("A", "Z", "AA"). */
-export const columnLetter = columnName;
+/** 0-based column index -> letters (src/report/columns.ts). */
+export const columnLetter = columnLetters;
 
 /** Delimited-text extensions read as CSV (the delimiter is sniffed). */
 const TEXT_EXTENSIONS = ['.csv', '.tsv', '.txt', '.tab'];

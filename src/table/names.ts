@@ -1,23 +1,15 @@
 /** Header names and the reader's errors (pure). */
 
 import { TailmarkError } from '../pipeline/errors.js';
+import { columnLetters } from '../report/columns.js';
 
 /** A problem with an input table, worded for the person who runs the command or opens the file. */
 export function tableReadError(message: string, line?: number): TailmarkError {
   return new TailmarkError('input-file', message, line);
 }
 
-/** 0-based column index -> letters ("A", "Z", "AA"). */
-export function columnName(index: number): string {
-  let n = index + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+/** 0-based column index -> letters (src/report/columns.ts). */
+export const columnName = columnLetters;
 
 /** Make header names usable as keys: empty ones get the column letter, repeats get " (2)", " (3)"... */
 export function uniqueHeaders(raw: readonly string[], firstColumn: number): string[] {

@@ -16,7 +16,7 @@ const allowed: Record<string, readonly string[]> = {
   sandbox: [],
   report: ['scoring'],
   pipeline: ['report', 'scoring'],
-  table: ['pipeline', 'scoring'],
+  table: ['pipeline', 'report', 'scoring'],
   workbook: ['pipeline', 'report', 'scoring'],
   files: ['table', 'pipeline', 'report', 'scoring', 'demo'],
   taskpane: ['pipeline', 'workbook', 'report', 'scoring'],
