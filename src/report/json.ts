@@ -56,6 +56,8 @@ function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): R
     flagged: g.flagged,
     medcouple: g.medcouple,
     rule: describeGroupRule(col.method, g.medcouple),
+    chanceRate: g.chanceRate,
+    unreachable: g.unreachable,
   };
   if (multi) entry.column = col.column;
   return entry;
