@@ -16,6 +16,7 @@ import {
 } from '@fluentui/react-components';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { SandboxWorkbook } from '../sandbox/index.js';
+import { browserPipeline } from '../taskpane/offThread.js';
 import { TailmarkPane } from '../taskpane/Pane.js';
 import type { ThemeName } from '../taskpane/theme.js';
 import { createWorkbookLayer, type ExcelRunner } from '../workbook/layer.js';
@@ -129,7 +130,11 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
   const fileRef = useRef<HTMLInputElement>(null);
   const bump = useCallback(() => setVersion((v) => v + 1), []);
   const source = useMemo(() => sandboxSource(book.sb), [book]);
-  const layer = useMemo(() => createWorkbookLayer(delayed(book.sb, syncDelay, bump), { runInContext: book.sb.run }), [book, syncDelay, bump]);
+  const pipeline = useMemo(() => browserPipeline(), []);
+  const layer = useMemo(
+    () => createWorkbookLayer(delayed(book.sb, syncDelay, bump), { runInContext: book.sb.run, pipeline }),
+    [book, syncDelay, bump, pipeline],
+  );
 
   // Follow the selection to its sheet when the pane moves it (e.g. Next exception).
   const selSheet = source.selection()?.sheet ?? null;

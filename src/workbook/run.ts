@@ -15,7 +15,7 @@
  *  - if a write sync fails part-way (only possible when the writes need several syncs), the
  *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
  */
-import { runPipeline, validateSettings } from '../pipeline/index.js';
+import { runPipelineYielding, validateSettings, type AsyncPipeline } from '../pipeline/index.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
@@ -62,6 +62,8 @@ export interface RunDeps {
   readonly now: () => Date;
   readonly onProgress?: (p: RunProgress) => void;
   readonly signal?: AbortSignal;
+  /** How the pipeline runs (the pane passes a worker-backed one; default: same thread, yielding between steps). */
+  readonly pipeline?: AsyncPipeline;
 }
 
 export interface RunOutcome {
@@ -319,7 +321,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
   const address = rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols });
-  const { result, plan, columns } = runPipeline(
+  const pipeline = deps.pipeline ?? runPipelineYielding;
+  const { result, plan, columns } = await pipeline(
     {
       source: res.tableName ? `${address} (table ${res.tableName})` : address,
       sheetName: res.sheetName,
@@ -330,7 +333,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       firstColumn: res.spanStart,
     },
     settings,
-    { when: deps.now() },
+    {
+      when: deps.now(),
+      onProgress: (phase, fraction) => deps.onProgress?.({ phase: 'scoring', fraction: phase === 'sending' ? fraction * 0.2 : phase === 'scoring' ? 0.2 + fraction * 0.5 : 0.7 + fraction * 0.3 }),
+      ...(signal ? { signal } : {}),
+    },
   );
   deps.onProgress?.({ phase: 'scoring', fraction: 1 });
   if (signal?.aborted) throw cancelled();
