@@ -11,9 +11,9 @@
  *   on a null object (or on objects reached from one) do nothing, as in Excel (Microsoft's own
  *   samples rely on `worksheets.getItemOrNullObject("Sample").delete()`); loaded properties of a
  *   null object read as null.
- * - A sync is atomic by default: if any queued statement fails, nothing from that sync is applied
- *   and nothing loaded becomes readable. Real Excel may have applied the statements before the
- *   failing one; `partialOnError: true` models that (statements before the failure stay applied).
+ * - A failing statement fails the sync; the statements before it in the same sync stay applied,
+ *   as in Excel (nothing loaded becomes readable). `partialOnError: false` makes a failed sync
+ *   apply nothing (kinder than Excel; only for tests that name why).
  * - The JSON size of each request (everything queued between two syncs) and of each response
  *   (everything loaded) is measured (UTF-8 bytes); over the limit (default 5 MB, Excel on the web)
  *   the sync fails with RequestPayloadSizeLimitExceeded / ResponsePayloadSizeLimitExceeded.
@@ -34,7 +34,10 @@ export { SandboxClientResult } from './proxy-base.js';
 export interface SandboxOptions {
   /** Request/response limit in bytes (default 5 * 1024 * 1024, Excel on the web). */
   payloadLimitBytes?: number;
-  /** Keep statements applied before a failing one (as Excel may). Default false: a failed sync applies nothing. */
+  /**
+   * Keep statements applied before a failing one, as Excel does (default true). false makes a
+   * failed sync apply nothing: kinder than Excel, for tests that say why they need it.
+   */
   partialOnError?: boolean;
 }
 
@@ -47,6 +50,10 @@ export class SandboxContext {
   /** @internal */ syncCount = 0;
   /** @internal */ closed = false;
   /** @internal */ applying = false;
+  /** @internal Queue index of the statement that failed the last sync (-1: none, or not a statement). */
+  lastFailedIndex = -1;
+  /** @internal Excel.run's `delayForCellEdit` for this context (request flag 64 through the Office.js client). */
+  delayForCellEdit = false;
 
   constructor(readonly sandbox: SandboxWorkbook) {
     this.workbook = new WorkbookProxy(this);
@@ -72,6 +79,7 @@ export class SandboxContext {
     this.queue = [];
     this.pendingNull = [];
     this.syncCount++;
+    this.lastFailedIndex = -1;
     const sb = this.sandbox;
     const limit = sb.options.payloadLimitBytes;
     let reqBytes = 2;
@@ -79,6 +87,7 @@ export class SandboxContext {
     sb.recordSync(actions.length, reqBytes);
     // Office.js resolves the promise asynchronously; so do we.
     await Promise.resolve();
+    await sb.admit(this.delayForCellEdit);
     if (reqBytes > limit) {
       throw err('RequestPayloadSizeLimitExceeded', `The request payload (${reqBytes} bytes) exceeds the limit of ${limit} bytes. Split the work into smaller batches (fewer cells per sync).`, 'RequestContext.sync');
     }
@@ -91,9 +100,11 @@ export class SandboxContext {
     let failed: { error: unknown } | null = null;
     if (!partial) model.begin();
     try {
-      for (const a of actions) {
+      for (let i = 0; i < actions.length; i++) {
+        const a = actions[i];
         if (partial) model.begin();
         try {
+          if (a.write && sb.mode.readOnly) throw err('AccessDenied', 'The workbook is open read-only: it cannot be changed. Save a copy or ask for edit access, then try again.', 'Workbook.readOnly');
           const r = a.run();
           if (r?.commit) commits.push(r.commit);
           if (r?.responseBytes) respBytes += r.responseBytes + 1;
@@ -104,6 +115,7 @@ export class SandboxContext {
             continue;
           }
           if (partial) model.rollback();
+          this.lastFailedIndex = i;
           throw decorate(e, a.statement);
         }
         if (partial) model.commit();
