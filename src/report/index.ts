@@ -15,3 +15,5 @@ export {
 } from './style.js';
 export { planToJson, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';
+export { WORKBOOK_FORMAT, NOTES_TITLE, LOG_TITLE, notesFormatOf, logFormatOf, notesGrid, type NotesGrid } from './notesSheet.js';
+export { MARKS_TITLE, GONE_TITLE, isMark, mergeMarks, priorMarksOf, readMarkRecords, type MarkRecord, type MarksOutcome, type PriorMarks } from './marks.js';
