@@ -15,6 +15,7 @@
  * The message protocol is below (`ToWorker`, `FromWorker`); `servePipeline` is the worker's side,
  * shared by every worker entry. Pure: no DOM, Node or Office imports; the hosts supply the port.
  */
+import type { PlanCell } from '../report/types.js';
 import type { RawCell } from '../scoring/types.js';
 import { columnsToRead, resolveColumns } from './columns.js';
 import { ERROR_CODES, TailmarkError, type ErrorCode } from './errors.js';
@@ -88,8 +89,12 @@ export type ToWorker =
       readonly settings: SettingsInput;
       readonly when: number;
       readonly reasonText?: 'eager' | 'on-demand';
+      readonly marks?: PipelineContext['marks'];
+      readonly previousMarks?: PipelineContext['previousMarks'];
       /** Table columns whose cells will be sent (the others are not needed by the run). */
       readonly columns: readonly number[];
+      /** Rows per message for the plan's columns on the way back. */
+      readonly sliceRows: number;
     }
   /** Rows `offset .. offset + cells.length - 1` of table column `column`. */
   | { readonly type: 'cells'; readonly id: number; readonly column: number; readonly offset: number; readonly cells: readonly RawCell[] }
@@ -102,7 +107,16 @@ export type ToWorker =
 export type WirePipelineRun = Omit<PipelineRun, 'plan'> & { readonly plan: Omit<PipelineRun['plan'], 'table'> };
 
 export type FromWorker =
-  | { readonly type: 'progress'; readonly id: number; readonly phase: PipelinePhase; readonly fraction: number }
+  | {
+      readonly type: 'progress';
+      readonly id: number;
+      readonly phase: PipelinePhase;
+      readonly fraction: number;
+      /** With phase 'planning' after the plan is built: plan cells (rows x columns) that follow in `column` messages. */
+      readonly total?: number;
+    }
+  /** Rows `offset ..` of plan column `index` (sent before `result`, whose plan columns then hold no values). */
+  | { readonly type: 'column'; readonly id: number; readonly index: number; readonly offset: number; readonly values: readonly PlanCell[] }
   | { readonly type: 'result'; readonly id: number; readonly run: WirePipelineRun }
   | { readonly type: 'error'; readonly id: number; readonly code: ErrorCode | null; readonly message: string; readonly line?: number };
 
@@ -130,14 +144,15 @@ export function servePipeline(post: PostToHost): (msg: ToWorker) => void {
     switch (msg.type) {
       case 'start': {
         const columns = msg.shape.headers.map(() => new Array<RawCell>(0));
-        for (const c of msg.columns) columns[c] = new Array<RawCell>(msg.shape.rowCount);
+
         job = { id: msg.id, start: msg, columns };
         return;
       }
       case 'cells': {
         if (!job || job.id !== msg.id) return;
+        // Slices of a column come in order: append (keeps the array packed).
         const into = job.columns[msg.column];
-        for (let i = 0; i < msg.cells.length; i++) into[msg.offset + i] = msg.cells[i];
+        for (let i = 0; i < msg.cells.length; i++) into.push(msg.cells[i]);
         return;
       }
       case 'cancel':
@@ -152,10 +167,22 @@ export function servePipeline(post: PostToHost): (msg: ToWorker) => void {
           const run = runPipeline({ ...start.shape, columns }, start.settings, {
             when: new Date(start.when),
             ...(start.reasonText ? { reasonText: start.reasonText } : {}),
+            ...(start.marks ? { marks: start.marks } : {}),
+            ...(start.previousMarks ? { previousMarks: start.previousMarks } : {}),
             onScored: () => post({ type: 'progress', id, phase: 'planning', fraction: 0 }),
           });
+          // Plan columns go in row slices: one large message would hold the receiving thread
+          // for as long as it takes to copy every row's text (about half a second at 300,000 rows).
+          const slice = start.sliceRows;
+          const total = run.plan.columns.reduce((n, c) => n + c.values.length, 0);
+          post({ type: 'progress', id, phase: 'planning', fraction: 0, total });
+          run.plan.columns.forEach((col, index) => {
+            for (let offset = 0; offset < col.values.length; offset += slice) {
+              post({ type: 'column', id, index, offset, values: col.values.slice(offset, offset + slice) });
+            }
+          });
           const { table: _table, ...plan } = run.plan;
-          const wire: WirePipelineRun = { ...run, plan };
+          const wire: WirePipelineRun = { ...run, plan: { ...plan, columns: plan.columns.map((c) => ({ ...c, values: [] })) } };
           post({ type: 'result', id, run: wire }, transferablesOf(run));
         } catch (e) {
           if (e instanceof TailmarkError) post({ type: 'error', id, code: e.code, message: e.message, ...(e.line !== undefined ? { line: e.line } : {}) });
@@ -197,12 +224,17 @@ export function createWorkerPipeline(spawn: () => PipelinePort, options: WorkerP
     // Validate and resolve here too: a wrong setting is reported before anything is sent, and
     // only the columns the run reads travel.
     const settings = validateSettings(input, ctx.words);
-    const needed = table.rowCount >= 1 ? columnsToRead(resolveColumns(table.headers, settings, table.source)) : [];
+    // With marks read from the table (the default), every column travels: the marks sit in ours.
+    const needed =
+      table.rowCount < 1 ? [] : ctx.marks === 'host' ? columnsToRead(resolveColumns(table.headers, settings, table.source)) : table.headers.map((_h, i) => i);
     const port = idle ?? spawn();
     idle = null;
     const id = nextId++;
     return await new Promise<PipelineRun>((resolve, reject) => {
       let done = false;
+      const planValues: PlanCell[][] = [];
+      let received = 0;
+      let expected = 0;
       const finish = (keep: boolean) => {
         done = true;
         signal?.removeEventListener('abort', onAbort);
@@ -220,11 +252,20 @@ export function createWorkerPipeline(spawn: () => PipelinePort, options: WorkerP
         (msg) => {
           if (done || msg.id !== id) return;
           if (msg.type === 'progress') {
-            if (msg.phase === 'planning') ctx.onScored?.();
+            if (msg.phase === 'planning' && msg.total === undefined) ctx.onScored?.();
+            if (msg.phase === 'planning' && msg.total !== undefined) expected = msg.total;
             onProgress?.(msg.phase, msg.fraction);
+          } else if (msg.type === 'column') {
+            // Slices of a column arrive in order: appending keeps the array packed (writing
+            // far past the end of an empty array would make it a slow dictionary).
+            const into = (planValues[msg.index] ??= []);
+            for (let i = 0; i < msg.values.length; i++) into.push(msg.values[i]);
+            received += msg.values.length;
+            onProgress?.('planning', Math.min(1, received / Math.max(1, expected)));
           } else if (msg.type === 'result') {
             finish(true);
-            resolve({ ...msg.run, plan: { ...msg.run.plan, table: { ...table, headers: table.headers.map((h) => h ?? '') } } });
+            const columns = msg.run.plan.columns.map((c, k) => ({ ...c, values: planValues[k] ?? [] }));
+            resolve({ ...msg.run, plan: { ...msg.run.plan, columns, table: { ...table, headers: table.headers.map((h) => h ?? '') } } });
           } else {
             finish(msg.code !== null);
             reject(msg.code !== null && (ERROR_CODES as readonly string[]).includes(msg.code) ? new TailmarkError(msg.code, msg.message, msg.line) : new Error(`The scoring worker failed: ${msg.message}`));
@@ -237,7 +278,12 @@ export function createWorkerPipeline(spawn: () => PipelinePort, options: WorkerP
         },
       );
       const { columns: _cells, ...shape } = table;
-      port.post({ type: 'start', id, shape, settings: input, when: ctx.when.getTime(), ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}), columns: needed });
+      port.post({ type: 'start', id, shape, settings: input, when: ctx.when.getTime(), ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}),
+        ...(ctx.marks ? { marks: ctx.marks } : {}),
+        ...(ctx.previousMarks ? { previousMarks: ctx.previousMarks } : {}),
+        columns: needed,
+        sliceRows,
+      });
       // Send the cells in slices, yielding between them, then run.
       void (async () => {
         const total = needed.length * Math.ceil(table.rowCount / sliceRows) || 1;

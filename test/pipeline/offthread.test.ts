@@ -31,7 +31,7 @@ const table = {
   headerRow: 1,
   firstColumn: 0,
 };
-const settings = { valueColumns: ['Amount'], groupColumns: ['Team'], minGroupSize: 2 };
+const settings = { valueColumns: ['Amount'], groupColumns: ['Team'], minGroupSize: 2, method: 'robust' as const };
 
 /** A worker in this thread: messages cross as structured clones, one macrotask later. */
 function memoryPort(log: { sent: ToWorker[]; terminated: number }, mute = false): PipelinePort {
@@ -61,8 +61,8 @@ describe('createWorkerPipeline', () => {
     const log = { sent: [] as ToWorker[], terminated: 0 };
     const phases: string[] = [];
     const pipeline = createWorkerPipeline(() => memoryPort(log), { sliceRows: 3 });
-    const run = await pipeline(table, settings, { when: new Date(0), onProgress: (p) => phases.push(p) });
-    const same = runPipeline(table, settings, { when: new Date(0) });
+    const run = await pipeline(table, settings, { when: new Date(0), marks: 'host', onProgress: (p) => phases.push(p) });
+    const same = runPipeline(table, settings, { when: new Date(0), marks: 'host' });
     // Median of group a is 12, MAD 1 -> (500 - 12) / 1.4826 (worked by hand from the definition).
     expect(run.result.columns[0].scores[4]).toBeCloseTo(488 / 1.4826, 6);
     expect(Array.from(run.result.columns[0].scores)).toEqual(Array.from(same.result.columns[0].scores));
@@ -78,6 +78,16 @@ describe('createWorkerPipeline', () => {
     ]);
     expect(phases).toContain('sending');
     expect(phases).toContain('planning');
+  });
+
+  it('with marks from the table (the default) sends every column and gives the same marks', async () => {
+    const log = { sent: [] as ToWorker[], terminated: 0 };
+    const pipeline = createWorkerPipeline(() => memoryPort(log));
+    const run = await pipeline(table, settings, { when: new Date(0) });
+    const same = runPipeline(table, settings, { when: new Date(0) });
+    expect(run.marks).toEqual(same.marks);
+    expect(run.plan.columns.map((c) => c.values)).toEqual(same.plan.columns.map((c) => c.values));
+    expect(new Set(log.sent.flatMap((m) => (m.type === 'cells' ? [m.column] : [])))).toEqual(new Set([0, 1, 2, 3]));
   });
 
   it('reuses an idle worker and reports a setting error as the same TailmarkError', async () => {
