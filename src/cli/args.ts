@@ -168,7 +168,7 @@ export const HELP = `tailmark: flag expense claims that are unusual for their pe
 Usage:
   tailmark score <input.xlsx|input.csv> --value <header> [options]
   tailmark demo [--out <path.xlsx>] [--force]
-  tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--json]
+  tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--fail-sync <k>] [--out <path>] [--json]
   tailmark --help
 
 score options:

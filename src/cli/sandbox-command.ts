@@ -1,5 +1,5 @@
 /**
- * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--force] [--json]`
+ * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--fail-sync <k>] [--out <path>] [--force] [--json]`
  *
  * Runs the add-in's workbook layer headless, exactly as the task pane does (detect -> run), on an
  * in-memory copy of the file (the sandbox), then optionally writes the result as .xlsx and prints
@@ -23,6 +23,7 @@ import { nodePipeline } from './threads.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
 import { officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
+import { columnFromLetters, columnLetters } from '../report/columns.js';
 
 interface SandboxArgs {
   readonly input: string;
@@ -36,12 +37,20 @@ interface SandboxArgs {
   readonly json: boolean;
   /** Run through Microsoft's real Office.js client (requests answered by the sandbox). */
   readonly officeClient: boolean;
+  /** Make the k-th sync of the last run fail part-way and report whether the workbook is as before. */
+  readonly failSync: number | null;
+}
+
+function failSyncOf(raw: string | undefined): number | null {
+  if (raw === undefined) return null;
+  if (!/^[1-9][0-9]*$/.test(raw.trim())) throw new TailmarkError('usage', `--fail-sync must be a whole number of at least 1 (the sync of the last run to fail); got "${raw}"`);
+  return Number(raw);
 }
 
 export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
   const { positional, opts } = parseFlags(
     argv,
-    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag', 'office-client': 'flag' },
+    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag', 'office-client': 'flag', 'fail-sync': 'value' },
     'sandbox',
   );
   if (positional.length !== 1) {
@@ -67,6 +76,7 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
     force: opts.has('force'),
     json: opts.has('json'),
     officeClient: opts.has('office-client'),
+    failSync: failSyncOf(one('fail-sync')),
   };
 }
 
@@ -107,27 +117,14 @@ export function settingsFor(table: DetectedTable, a: SandboxArgs): RunSettings {
   return validateSettings({ ...given, valueColumns: values, groupColumns: groups, idColumn: id }, a.words);
 }
 
-function letterIndex(letters: string): number {
-  let n = 0;
-  for (const ch of letters) n = n * 26 + (ch.charCodeAt(0) - 64);
-  return n - 1;
-}
+const letterIndex = columnFromLetters;
 
 function splitAddress(a: string): { col: number; row: number; letters: string } {
   const m = /^([A-Z]+)([0-9]+)$/.exec(a)!;
   return { col: letterIndex(m[1]), row: Number(m[2]), letters: m[1] };
 }
 
-function lettersOf(c: number): string {
-  let n = c + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+const lettersOf = columnLetters;
 
 /**
  * User cells changed by the run: every cell of the data sheet outside our result columns is
@@ -200,6 +197,40 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     host?.wire.reset();
     const table = await layer.detect();
     const settings = settingsFor(table, args);
+    if (args.failSync !== null) {
+      // Fault injection: the k-th sync of the last run fails part-way (Excel's failure mode).
+      let t = table;
+      if (args.rerun) {
+        await layer.run(table, settings);
+        t = await layer.detect();
+      }
+      const beforeRun = sb.snapshot();
+      sb.failSyncAt(args.failSync);
+      let error: string | null = null;
+      try {
+        await layer.run(t, settings);
+      } catch (e) {
+        error = e instanceof Error ? e.message : String(e);
+      }
+      const changed = diffSnapshots(beforeRun, sb.snapshot());
+      const report = {
+        client: host ? 'office-js' : 'sandbox',
+        faultInjected: sb.faultFired,
+        runFailed: error,
+        syncsOfLastRun: layer.lastStats?.syncs ?? null,
+        workbookUnchangedByFailedRun: changed.length === 0,
+        ...(changed.length ? { changedByFailedRun: changed } : {}),
+      };
+      if (args.json) process.stdout.write(JSON.stringify(report, null, 2) + '\n');
+      else {
+        process.stdout.write(
+          sb.faultFired
+            ? `injected a failure at sync ${args.failSync} of the ${args.rerun ? 're-run' : 'run'}: ${changed.length === 0 ? 'the workbook is as it was' : `${changed.length} changes stayed`}\n`
+            : `the ${args.rerun ? 're-run' : 'run'} finished before sync ${args.failSync}: no failure injected\n`,
+        );
+      }
+      return 0;
+    }
     const summary = await layer.run(table, settings);
     const syncs = sb.stats.syncs;
     // Through the real client these are the sizes of the JSON it sent and received.

@@ -206,10 +206,10 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
           setWork({ what: `Opening ${file.name}`, fraction }),
         );
       } else {
-        const [{ sandboxFromExcelJs }, ExcelJS] = await Promise.all([import('../sandbox/exceljs-bridge.js'), import('exceljs')]);
-        const wb = new ExcelJS.default.Workbook();
-        await wb.xlsx.load(await file.arrayBuffer());
-        sb = sandboxFromExcelJs(wb);
+        // One import of the bridge (which holds ExcelJS) for opening and downloading: the bundle then has
+        // one ExcelJS chunk, not two.
+        const { readXlsx, sandboxFromExcelJs } = await import('../sandbox/exceljs-bridge.js');
+        sb = sandboxFromExcelJs(await readXlsx(await file.arrayBuffer()));
       }
       const first = sb.sheetNames()[0];
       sb.setSelection(first, 'A1');
@@ -228,7 +228,7 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
     setBusy(true);
     setWork({ what: 'Building the .xlsx', fraction: null });
     try {
-      const [{ sandboxToExcelJs }] = await Promise.all([import('../sandbox/exceljs-bridge.js')]);
+      const { sandboxToExcelJs } = await import('../sandbox/exceljs-bridge.js');
       // Let the progress line paint before the workbook is converted.
       await new Promise((r) => setTimeout(r, 50));
       const wb = sandboxToExcelJs(book.sb);

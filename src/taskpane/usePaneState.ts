@@ -7,7 +7,7 @@ import type { RunSettings, WorkbookLayer } from '../workbook/api.js';
 import {
   budgetCutoff,
   chartFor,
-  scorePreview,
+  previewOf,
   summarisePreview,
   type ChartData,
   type PreviewSummary,
@@ -41,6 +41,8 @@ export interface PaneActions {
 export interface PaneModel {
   readonly state: PaneState;
   readonly preview: PreviewSummary | null;
+  /** Why the preview could not be worked out (shown in place of it), or null. */
+  readonly previewError: string | null;
   readonly chart: ChartData | null;
   /** Groups offered in the chart picker, most flags first. */
   readonly chartGroups: readonly string[];
@@ -151,14 +153,12 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   const settings = useDeferredValue(state.settings);
   const data = state.preview && state.preview.key === key ? state.preview.data : null;
 
-  const scored = useMemo(() => {
+  const attempt = useMemo(() => {
     if (!data || !settings || settings.valueColumns.length === 0) return null;
-    try {
-      return scorePreview(data, settings);
-    } catch {
-      return null;
-    }
+    return previewOf(data, settings);
   }, [data, settings]);
+  const scored = attempt?.result ?? null;
+  const previewError = attempt?.error ?? null;
 
   const preview = useMemo(() => (scored && settings ? summarisePreview(scored, settings) : null), [scored, settings]);
 
@@ -313,5 +313,5 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer, detect, runWith, loadExceptions, scored, selectRow],
   );
 
-  return { state, preview, chart, chartGroups, actions };
+  return { state, preview, previewError, chart, chartGroups, actions };
 }
