@@ -2,9 +2,12 @@
  * Full-height benchmark of the workbook layer in the sandbox: 1,048,575 data rows x 10 columns
  * (an invented claims sheet), detect -> run, then readForPreview. Reports syncs, the largest
  * request/response (bytes, as the sandbox measures them) and time per phase.
- * Usage (after `npm run build:node`): node dist/bench/workbook.js [--json] [--rows N] [--cell]
+ * Usage (after `npm run build:node`): node dist/bench/workbook.js [--json] [--rows N] [--cell] [--same-thread]
  * (--cell: detect from one selected cell, B3, through getSurroundingRegion, instead of the whole block).
  */
+import { monitorEventLoopDelay } from 'node:perf_hooks';
+import { nodePipeline } from '../src/cli/threads.js';
+import { runPipelineYielding } from '../src/pipeline/index.js';
 import { SandboxWorkbook } from '../src/sandbox/index.js';
 import { createWorkbookLayer } from '../src/workbook/index.js';
 import type { RunSettings } from '../src/workbook/api.js';
@@ -15,7 +18,7 @@ export interface WorkbookBenchResult {
   /** Time to fill the sandbox (not part of the layer). */
   buildMs: number;
   detect: { syncs: number; ms: number };
-  run: { syncs: number; ms: number; maxRequestBytes: number; maxResponseBytes: number; flagged: number };
+  run: { syncs: number; ms: number; maxRequestBytes: number; maxResponseBytes: number; flagged: number; longestBlockMs: number; pipeline: string };
   preview: { syncs: number; ms: number; maxResponseBytes: number };
 }
 
@@ -68,19 +71,31 @@ export const BENCH_SETTINGS: RunSettings = {
   decimal: 'auto',
 };
 
-export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell' = 'block'): Promise<WorkbookBenchResult> {
+export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell' = 'block', sameThread = false): Promise<WorkbookBenchResult> {
   let t0 = performance.now();
   const sb = fullHeightSandbox(rows, selection);
   const buildMs = performance.now() - t0;
-  const layer = createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z') });
+  // The pipeline on a worker thread, as `tailmark sandbox` runs it (--same-thread: the fallback, for comparison).
+  const threads = sameThread ? null : nodePipeline();
+  const layer = createWorkbookLayer(sb.run, {
+    now: () => new Date('2025-03-31T09:00:00Z'),
+    pipeline: threads?.pipeline ?? runPipelineYielding,
+  });
   t0 = performance.now();
   sb.stats.reset();
   const table = await layer.detect();
   const detect = { syncs: sb.stats.syncs, ms: performance.now() - t0 };
   sb.stats.reset();
   t0 = performance.now();
+  // Longest stall of this thread's event loop during the run (the pane's thread in the add-in).
+  const stalls = monitorEventLoopDelay({ resolution: 10 });
+  stalls.enable();
   const summary = await layer.run(table, BENCH_SETTINGS);
+  stalls.disable();
+  await threads?.close();
   const run = {
+    longestBlockMs: Math.round(stalls.max / 1e6),
+    pipeline: threads ? threads.where : 'same-thread',
     syncs: sb.stats.syncs,
     ms: performance.now() - t0,
     maxRequestBytes: sb.stats.requestBytes.max,
@@ -98,13 +113,14 @@ const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined &
 if (isMain) {
   const i = process.argv.indexOf('--rows');
   const rows = i >= 0 ? Number(process.argv[i + 1]) : 1_048_575;
-  void benchWorkbook(rows, process.argv.includes('--cell') ? 'cell' : 'block').then((r) => {
+  void benchWorkbook(rows, process.argv.includes('--cell') ? 'cell' : 'block', process.argv.includes('--same-thread')).then((r) => {
     if (process.argv.includes('--json')) process.stdout.write(JSON.stringify(r) + '\n');
     else {
       process.stdout.write(
         `workbook layer, ${r.rows} rows x ${r.columns} columns (sandbox)\n` +
           `  detect : ${r.detect.syncs} syncs, ${r.detect.ms.toFixed(0)} ms\n` +
           `  run    : ${r.run.syncs} syncs, ${(r.run.ms / 1000).toFixed(1)} s, max request ${r.run.maxRequestBytes} B, max response ${r.run.maxResponseBytes} B, ${r.run.flagged} flagged\n` +
+          `           longest event-loop block ${r.run.longestBlockMs} ms (pipeline: ${r.run.pipeline})\n` +
           `  preview: ${r.preview.syncs} syncs, ${(r.preview.ms / 1000).toFixed(1)} s, max response ${r.preview.maxResponseBytes} B\n`,
       );
     }
