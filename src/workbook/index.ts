@@ -7,6 +7,7 @@
  * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
  * that grows with the number of cells only.
  */
+import type { AsyncPipeline } from '../pipeline/index.js';
 import type { DetectedTable, Exception, PreviewData, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
@@ -40,6 +41,8 @@ export interface WorkbookLayerOptions {
    * Without it the registering run stays open until unsubscribe (the fallback).
    */
   readonly runInContext?: ExcelContextRunner;
+  /** How a run's pipeline runs: the pane and the preview pass a worker-backed one (default: same thread). */
+  readonly pipeline?: AsyncPipeline;
   /** Called with errors of background work (removing a selection handler). */
   readonly onBackgroundError?: (e: unknown) => void;
   /**
@@ -132,6 +135,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
           now,
           ...(onProgress ? { onProgress } : {}),
           ...(signal ? { signal } : {}),
+          ...(options.pipeline ? { pipeline: options.pipeline } : {}),
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
