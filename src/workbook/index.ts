@@ -7,10 +7,20 @@
  * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
  * that grows with the number of cells only.
  */
-import type { DetectedTable, Exception, PreviewData, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
-import { listExceptionRows, loadRunSettings, markRows, previewColumns, removeResults, selectDataRow } from './ops.js';
+import {
+  listExceptionRows,
+  loadReviewPrefs,
+  loadRunSettings,
+  markRows,
+  previewColumns,
+  readClaimRow,
+  removeResults,
+  saveReviewPrefs,
+  selectDataRow,
+} from './ops.js';
 import { runScoring } from './run.js';
 import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
 
@@ -114,8 +124,17 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
       return out.summary;
     },
-    remove(includeNotes: boolean): Promise<void> {
-      return act('remove', (s) => removeResults(s, includeNotes));
+    remove(includeNotes: boolean, keepMarks = false): Promise<void> {
+      return act('remove', (s) => removeResults(s, includeNotes, keepMarks));
+    },
+    readClaim(row: number): Promise<ClaimRecord> {
+      return act('readClaim', (s) => readClaimRow(s, row));
+    },
+    loadReviewPrefs(): Promise<ReviewPrefs> {
+      return act('loadReviewPrefs', (s) => loadReviewPrefs(s));
+    },
+    saveReviewPrefs(prefs: ReviewPrefs): Promise<void> {
+      return act('saveReviewPrefs', (s) => saveReviewPrefs(s, prefs));
     },
     loadSettings(): Promise<RunSettings | null> {
       return act('loadSettings', (s) => loadRunSettings(s));

@@ -5,12 +5,12 @@
 import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
 import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, resultHeaders } from '../report/index.js';
-import { TailmarkError, type DetectedTable, type Exception, type PreviewData, type RunSettings } from './api.js';
+import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
 import { cellText, toRawCell } from './cells.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
-import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
+import { REVIEW_KEY, SETTINGS_KEY, STATE_KEY, parseReviewPrefs, parseSettings, parseState, type LayerState } from './state.js';
 import type { Syncer } from './sync.js';
 
 function noResults(): TailmarkError {
@@ -97,8 +97,15 @@ async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Prom
   return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected };
 }
 
-/** remove(): delete exactly what we added. */
-export async function removeResults(sync: Syncer, includeNotes: boolean): Promise<void> {
+/** Headers of the columns that hold the reviewer's marks (kept as plain cells on request). */
+const MARK_HEADERS: ReadonlySet<string> = new Set([STATUS_HEADER, NOTE_HEADER]);
+
+/**
+ * remove(): delete exactly what we added. With `keepMarks` the status and note columns stay where
+ * they are as plain cells (their dropdown and our highlighting go); a later run finds them by
+ * their headers and carries the marks on.
+ */
+export async function removeResults(sync: Syncer, includeNotes: boolean, keepMarks = false): Promise<void> {
   const loc = await locate(sync, { allowMissing: true });
   const wb = sync.context.workbook;
   const notes = wb.worksheets.getItemOrNullObject(NOTES_SHEET_NAME);
@@ -125,8 +132,13 @@ export async function removeResults(sync: Syncer, includeNotes: boolean): Promis
 
   if (loc) {
     for (const cf of custom) if (isTailmarkFormula(cf.custom.rule.formula)) cf.delete();
+    const goes = (header: string) => !(keepMarks && MARK_HEADERS.has(header));
     if (loc.table) {
-      for (const c of loc.state.columns) if (loc.columns.has(c.header)) loc.table.columns.getItem(c.header).delete();
+      for (const c of loc.state.columns) if (loc.columns.has(c.header) && goes(c.header)) loc.table.columns.getItem(c.header).delete();
+      if (keepMarks) {
+        const sc = loc.columns.get(STATUS_HEADER);
+        if (sc !== undefined) loc.sheet.getRangeByIndexes(loc.firstDataRow, sc, Math.max(1, loc.rows), 1).dataValidation.clear();
+      }
     } else {
       const rows = Math.max(loc.rows, loc.state.rowCount) + 1;
       // Right to left so the columns to delete keep their places.
@@ -135,7 +147,14 @@ export async function removeResults(sync: Syncer, includeNotes: boolean): Promis
         .filter((x): x is { c: (typeof loc.state.columns)[number]; col: number } => x.col !== undefined)
         .sort((a, b) => b.col - a.col);
       for (const { c, col } of ours) {
-        if (c.inserted) loc.sheet.getRangeByIndexes(0, col, 1, 1).getEntireColumn().delete('Left');
+        if (!goes(c.header)) {
+          if (c.header === STATUS_HEADER) loc.sheet.getRangeByIndexes(loc.firstDataRow, col, Math.max(1, loc.rows), 1).dataValidation.clear();
+          continue;
+        }
+        // Kept mark columns must end up next to the data, where a later run looks for them: the
+        // columns that go are taken out whole (they were inserted by us, or empty when we wrote
+        // into them), so the kept ones move left with every row.
+        if (c.inserted || keepMarks) loc.sheet.getRangeByIndexes(0, col, 1, 1).getEntireColumn().delete('Left');
         else {
           const r = loc.sheet.getRangeByIndexes(loc.state.headerRow, col, rows, 1);
           r.dataValidation.clear();
@@ -317,6 +336,56 @@ export async function previewColumns(sync: Syncer, table: DetectedTable, setting
     valueColumns: want.flatMap((w, i) => (w.kind === 'value' ? [{ name: w.name, cells: cells[i] }] : [])),
     groupColumns: want.flatMap((w, i) => (w.kind === 'group' ? [{ name: w.name, cells: cells[i] }] : [])),
   };
+}
+
+/**
+ * One claim row as the sheet displays it: the reviewer's columns (left of our block, or the
+ * table's own columns) and our "why" cells. 3 syncs (locate 2-3, the row 1).
+ */
+export async function readClaimRow(sync: Syncer, row: number): Promise<ClaimRecord> {
+  const loc = await locate(sync);
+  if (!loc) throw noResults();
+  if (!Number.isInteger(row) || row < 0 || row >= loc.rows) {
+    throw new TailmarkError('bad-settings', `Row ${row} is outside the data (0..${loc.rows - 1}).`);
+  }
+  const user = [...loc.userColumns.entries()].sort((a, b) => a[1] - b[1]);
+  const whys = (loc.settings?.valueColumns ?? []).flatMap((v) => {
+    const c = loc.columns.get(resultHeaders(v).reason);
+    return c === undefined ? [] : [{ valueColumn: v, column: c }];
+  });
+  const cols = [...user.map((u) => u[1]), ...whys.map((w) => w.column)];
+  if (cols.length === 0) return { row, fields: [], reasons: [] };
+  const start = Math.min(...cols);
+  const end = Math.max(...cols) + 1;
+  await sync.reserve(256);
+  const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + row, start, 1, end - start);
+  r.load('text');
+  await sync.sync();
+  const line = r.text[0] ?? [];
+  const at = (c: number) => String(line[c - start] ?? '');
+  return {
+    row,
+    fields: user.map(([header, c]) => ({ header, text: at(c) })),
+    reasons: whys.map((w) => ({ valueColumn: w.valueColumn, text: at(w.column) })),
+  };
+}
+
+export async function loadReviewPrefs(sync: Syncer): Promise<ReviewPrefs> {
+  const se = sync.context.workbook.settings.getItemOrNullObject(REVIEW_KEY);
+  se.load('value');
+  await sync.sync();
+  return parseReviewPrefs(se.isNullObject ? null : se.value);
+}
+
+export async function saveReviewPrefs(sync: Syncer, prefs: ReviewPrefs): Promise<void> {
+  const reviewer = prefs.reviewer === null ? null : prefs.reviewer.trim().slice(0, 60);
+  const clean: ReviewPrefs = {
+    reviewer: reviewer === '' ? null : reviewer,
+    detailColumns: prefs.detailColumns === null ? null : prefs.detailColumns.slice(0, 40),
+  };
+  await sync.reserve(1024);
+  sync.context.workbook.settings.add(REVIEW_KEY, JSON.stringify(clean));
+  await sync.flush();
 }
 
 export async function loadRunSettings(sync: Syncer): Promise<RunSettings | null> {

@@ -5,10 +5,12 @@
  */
 import { DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../report/index.js';
-import type { RunSettings } from './api.js';
+import type { ReviewPrefs, RunSettings } from './api.js';
 
 export const SETTINGS_KEY = 'tailmark.settings';
 export const STATE_KEY = 'tailmark.state';
+/** The reviewer's name or initials and the follow-up view's columns (ReviewPrefs). */
+export const REVIEW_KEY = 'tailmark.review';
 
 /** One of our result columns on a plain range. */
 export interface BlockColumn {
@@ -80,6 +82,15 @@ export function parseSettings(value: unknown): RunSettings | null {
     smallGroups: smallGroups as SmallGroupPolicy,
     decimalComma,
   };
+}
+
+/** ReviewPrefs from a stored setting value; absent or malformed parts read as "not chosen yet". */
+export function parseReviewPrefs(value: unknown): ReviewPrefs {
+  const o = parseJson(value);
+  if (!isRecord(o)) return { reviewer: null, detailColumns: null };
+  const reviewer = typeof o.reviewer === 'string' && o.reviewer.trim() !== '' ? o.reviewer.trim() : null;
+  const detailColumns = strings(o.detailColumns) ? o.detailColumns : null;
+  return { reviewer, detailColumns };
 }
 
 export function parseState(value: unknown): LayerState | null {

@@ -86,4 +86,52 @@ describe('pane actions', () => {
     sb.setSetting('tailmark.settings', '{"not":"settings"}');
     expect(await layer.loadSettings()).toBeNull();
   });
+
+  it('readClaim returns the claim row as displayed and its "why" cell; detect reports the selected claim row', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    const c = await layer.readClaim(13);
+    // Data row 13 is sheet row 15 (header in row 1): values straight from the sandbox.
+    expect(c.fields.map((f) => f.header)).toEqual(['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount']);
+    expect(c.fields[0].text).toBe(String(sb.valueAt('Claims', 14, 0)));
+    expect(c.fields[1].text).toBe(String(sb.valueAt('Claims', 14, 1)));
+    expect(c.reasons).toHaveLength(1);
+    expect(c.reasons[0].text).toBe(String(sb.valueAt('Claims', 14, 7)));
+    await expect(layer.readClaim(100)).rejects.toThrow(/outside the data/);
+    sb.userSelect('Claims', 'B15:C15');
+    expect((await layer.detect()).selectedRow).toBe(13);
+    sb.userSelect('Claims', 'B1');
+    expect((await layer.detect()).selectedRow).toBeNull();
+  });
+
+  it('keeps the reviewer\'s name and chosen columns in the workbook settings', async () => {
+    const sb = claimsSandbox(20);
+    const layer = layerFor(sb);
+    expect(await layer.loadReviewPrefs()).toEqual({ reviewer: null, detailColumns: null });
+    await layer.saveReviewPrefs({ reviewer: '  JD ', detailColumns: ['Employee'] });
+    expect(await layerFor(sb).loadReviewPrefs()).toEqual({ reviewer: 'JD', detailColumns: ['Employee'] });
+    sb.setSetting('tailmark.review', 'not json');
+    expect(await layer.loadReviewPrefs()).toEqual({ reviewer: null, detailColumns: null });
+  });
+
+  it('remove can keep the status and note columns as plain cells, and a later run carries the marks on', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    await layer.mark([13], 'Cleared', 'receipt seen');
+    await layer.remove(false, true);
+    const headers = [0, 1, 2, 3, 4, 5, 6].map((c) => String(sb.valueAt('Claims', 0, c)));
+    expect(headers).toEqual(['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount', 'Tailmark status', 'Tailmark note']);
+    expect(sb.valueAt('Claims', 14, 5)).toBe('Cleared');
+    expect(sb.valueAt('Claims', 14, 6)).toBe('receipt seen');
+    // No dropdown and none of our rules are left.
+    expect(sb.validationAt('Claims', 14, 5)).toBeNull();
+    const claims = sb.snapshot().sheets.find((x) => x.name === 'Claims')!;
+    expect(claims.conditionalFormats.filter((c) => /tailmark:/.test(c.formula))).toEqual([]);
+    sb.setSelection('Claims', 'B3');
+    await layer.run(await layer.detect(), SETTINGS);
+    const ex = await layer.listExceptions();
+    expect(ex.find((e) => e.row === 13)).toMatchObject({ status: 'Cleared', note: 'receipt seen' });
+  });
 });
