@@ -2,7 +2,7 @@
  * Argument parsing for `tailmark score` and `tailmark demo`. No dependencies; every mistake becomes
  * a UsageError with one line that says what to fix.
  */
-import { DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
+import { type DecimalMode, DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
 
 export class UsageError extends Error {
   constructor(message: string) {
@@ -22,7 +22,8 @@ export interface ScoreArgs {
   readonly minGroup: number;
   readonly smallGroups: SmallGroupPolicy;
   readonly log: boolean;
-  readonly decimalComma: boolean;
+  /** Decimal separator of text amounts: decided per column from its cells (auto), or given. */
+  readonly decimal: DecimalMode;
   readonly sheet: string | undefined;
   readonly out: string | undefined;
   readonly force: boolean;
@@ -89,7 +90,7 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     argv,
     {
       value: 'list', group: 'list', id: 'value', method: 'value', cutoff: 'value', direction: 'value',
-      'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', sheet: 'value',
+      'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', 'decimal-point': 'flag', sheet: 'value',
       out: 'value', force: 'flag', json: 'flag', stream: 'flag',
     },
     'score',
@@ -126,13 +127,18 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     minGroup,
     smallGroups: oneOf('small-groups', one('small-groups'), POLICIES, 'pool'),
     log: opts.has('log'),
-    decimalComma: opts.has('decimal-comma'),
+    decimal: decimalOption(opts.has('decimal-comma'), opts.has('decimal-point')),
     sheet: one('sheet'),
     out: one('out'),
     force: opts.has('force'),
     json: opts.has('json'),
     stream: opts.has('stream'),
   };
+}
+
+function decimalOption(comma: boolean, point: boolean): DecimalMode {
+  if (comma && point) throw new UsageError('give --decimal-comma or --decimal-point, not both');
+  return comma ? 'comma' : point ? 'point' : 'auto';
 }
 
 export function parseDemoArgs(argv: readonly string[]): DemoArgs {
@@ -159,7 +165,9 @@ score options:
   --min-group <n>         smallest group scored on its own (default 8)
   --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)
   --log                   score the logarithm of amounts (for skewed amounts; amounts <= 0 are left out)
-  --decimal-comma         read "1.234,50" as 1234.5
+  --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
+  --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)
+                          (default: decided per column from its cells, and said in the notes)
   --sheet <name>          worksheet to read (.xlsx; default the first)
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)

@@ -11,6 +11,7 @@ import { scoreTable } from '../scoring/index.js';
 import { EXCLUSION_LABELS, EXCLUSION_REASONS, POPULATIONS, type RawCell, type ScoreResult } from '../scoring/types.js';
 import { buildPlan } from '../report/plan.js';
 import { CAUTION } from '../report/style.js';
+import { describeDecimal } from '../report/decimal.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
 import { fileKind, InputFileError, readTable, type ReadTable } from '../files/read.js';
 import { readTableStreaming } from '../files/stream-read.js';
@@ -117,7 +118,8 @@ function toJson(result: ScoreResult, table: ReadTable, idIndex: number | null) {
       groups.push(entry);
     }
   }
-  return { method: result.options.method, cutoff: result.options.cutoff, rows, groups };
+  const decimal = Object.fromEntries(result.columns.map((c) => [c.column, { separator: c.decimal.separator, how: c.decimal.how }]));
+  return { method: result.options.method, cutoff: result.options.cutoff, decimal, rows, groups };
 }
 
 function rawText(v: RawCell): string | null {
@@ -178,7 +180,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       logScale: args.log,
       minGroupSize: args.minGroup,
       smallGroups: args.smallGroups,
-      decimalComma: args.decimalComma,
+      decimal: args.decimal,
     },
   );
   } catch (e) {
@@ -235,10 +237,19 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
+        decimalLines(result) +
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
   return { outPath, result };
+}
+
+/** "Amount: read with decimal comma (...)" for each column whose text cells showed a separator. */
+function decimalLines(result: ScoreResult): string {
+  return result.columns
+    .filter((c) => c.decimal.how !== 'default' || c.decimal.ambiguousCells > 0)
+    .map((c) => `${describeDecimal(c.column, c.decimal)}\n`)
+    .join('');
 }
 
 async function runDemo(argv: readonly string[], io: Io): Promise<number> {
@@ -270,7 +281,7 @@ async function runDemo(argv: readonly string[], io: Io): Promise<number> {
       minGroup: 8,
       smallGroups: 'pool',
       log: false,
-      decimalComma: false,
+      decimal: 'auto',
       sheet: DEMO_SHEET,
       out: scoredPath,
       force: true,

@@ -13,3 +13,4 @@ export {
   statusLabel,
   type ReviewState,
 } from './style.js';
+export { describeDecimal } from './decimal.js';

@@ -3,6 +3,7 @@
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
 import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
+import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
@@ -247,7 +248,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
       ['Minimum group size', options.minGroupSize],
       ['Smaller groups', options.smallGroups === 'pool' ? 'compared with the whole column' : 'left unscored'],
-      ['Decimal comma', options.decimalComma ? 'yes ("1.234,50" read as 1234.5)' : 'no'],
+      ...result.columns.map((c): PlanCell[] => ['Decimal separator', describeDecimal(c.column, c.decimal)]),
       ['Value columns', result.columns.map((c) => c.column).join(', ')],
       ['Group columns', result.groupColumns.length ? result.groupColumns.join(', ') : '(none)'],
       ['Claim ID column', ctx.idColumn ?? '(none)'],

@@ -1,6 +1,7 @@
 /** Public API of the scoring engine. Other layers import from '../scoring/index.js' only. */
 export * from './types.js';
-export { parseCell, EXCEL_ERROR_LITERALS } from './parseCell.js';
+export { parseCell, EXCEL_ERROR_LITERALS, CURRENCY_CODES, CURRENCY_SYMBOLS } from './parseCell.js';
+export { inferDecimal, decimalEvidence } from './inferDecimal.js';
 export { groupRows, keyPart, BLANK_KEY_LABEL, ALL_ROWS_LABEL, KEY_SEPARATOR, LABEL_SEPARATOR, type Grouping } from './groups.js';
 export { scoreTable, resolveOptions, WHOLE_COLUMN_LABEL } from './scoreTable.js';
 export { explainRow } from './explainRow.js';

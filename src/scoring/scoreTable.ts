@@ -5,10 +5,12 @@ import { NO_FIT } from './methods/method.js';
 import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
+import { inferDecimal } from './inferDecimal.js';
 import { summarizeFor } from './summarizeFor.js';
 import { constantSummary, EMPTY_SUMMARY, isExtreme, real, type Summary } from './summary.js';
 import {
   type ColumnScores,
+  type DecimalMode,
   DEFAULT_OPTIONS,
   type Direction,
   EXCLUSION_REASONS,
@@ -68,7 +70,13 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
     minGroupSize: Math.ceil(minGroupSize),
     smallGroups: merged.smallGroups,
     decimalComma: merged.decimalComma === true,
+    decimal: merged.decimalComma === true ? 'comma' : decimalMode(merged.decimal),
   };
+}
+
+function decimalMode(m: unknown): DecimalMode {
+  if (m === undefined || m === 'auto' || m === 'comma' || m === 'point') return m ?? 'auto';
+  throw new Error(`Unknown decimal separator setting "${String(m)}": use auto, comma or point.`);
 }
 
 /**
@@ -165,6 +173,8 @@ function scoreColumn(
   const y = logScale ? new Float64Array(rowCount) : values;
   const { start, groupOf } = grouping;
   const nGroups = grouping.keys.length;
+  const decimal = inferDecimal(cells, opts.decimal);
+  const decimalComma = decimal.separator === 'comma';
   // Every row of `scores` is written by the scoring pass (`scoreRows`); before that, robust and
   // IQR use it as the group-ordered work buffer the fits select in place.
   const scores = new Float64Array(rowCount);
@@ -185,10 +195,10 @@ function scoreColumn(
       acc[4 * g + 2] = -Infinity;
     }
     if (logScale) {
-      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      parseColumn(cells, values, y, exclusion, logScale, decimalComma);
       accumulate(groupOf, exclusion, y, acc, count, gCounts);
     } else {
-      parseAndAccumulate(cells, groupOf, values, exclusion, acc, count, gCounts, opts.decimalComma);
+      parseAndAccumulate(cells, groupOf, values, exclusion, acc, count, gCounts, decimalComma);
     }
     nAll = tallyCounts(count, gCounts, colCounts);
     pre = classicInRowOrder(groupOf, exclusion, y, acc, count, start);
@@ -201,10 +211,10 @@ function scoreColumn(
     yOrdered = scores;
     const cursor = start.slice(0, nGroups);
     if (logScale) {
-      parseColumn(cells, values, y, exclusion, logScale, opts.decimalComma);
+      parseColumn(cells, values, y, exclusion, logScale, decimalComma);
       scatter(groupOf, exclusion, y, yOrdered, cursor, gCounts);
     } else {
-      parseAndScatter(cells, groupOf, values, exclusion, yOrdered, cursor, gCounts, opts.decimalComma);
+      parseAndScatter(cells, groupOf, values, exclusion, yOrdered, cursor, gCounts, decimalComma);
     }
     for (let g = 0; g < nGroups; g++) count[g] = cursor[g] - start[g];
     nAll = tallyCounts(count, gCounts, colCounts);
@@ -279,6 +289,7 @@ function scoreColumn(
     groupOf,
     population,
     groups,
+    decimal,
   };
   Object.defineProperty(col, 'pooled', { enumerable: true, configurable: true, get: pooledStats });
   col.excludedCounts = reasonCounts(colCounts, 0);

@@ -47,6 +47,27 @@ export interface ParseOptions {
   readonly decimalComma?: boolean;
 }
 
+/** How a column's decimal separator is chosen: decided from the column's cells ('auto'), or given. */
+export const DECIMAL_MODES = ['auto', 'comma', 'point'] as const;
+export type DecimalMode = (typeof DECIMAL_MODES)[number];
+
+/** The decimal separator a column was read with, and why (see `inferDecimal`). */
+export interface DecimalReading {
+  readonly separator: 'comma' | 'point';
+  /** 'given' by the user, 'inferred' from the cells, or the 'default' (point) when no cell said. */
+  readonly how: 'given' | 'inferred' | 'default';
+  /** Text cells that read only with a decimal comma ("12,5", "1.480,00"). */
+  readonly commaCells: number;
+  /** Text cells that read only with a decimal point ("12.50", "1,480.00"). */
+  readonly pointCells: number;
+  /** Text cells that read either way ("1.480"); they follow the decision. */
+  readonly ambiguousCells: number;
+  /** First cell that supports the decision, the first that goes against it, the first ambiguous one. */
+  readonly example: string | null;
+  readonly otherExample: string | null;
+  readonly ambiguousExample: string | null;
+}
+
 /** Every scoring method; hosts (CLI options, saved settings, the pane) take the list from here. */
 export const METHOD_IDS = ['robust', 'classic', 'iqr'] as const;
 export type MethodId = (typeof METHOD_IDS)[number];
@@ -65,7 +86,10 @@ export interface ScoreOptions {
   readonly logScale: boolean;
   readonly minGroupSize: number;
   readonly smallGroups: SmallGroupPolicy;
+  /** Older form of `decimal: 'comma'`; when true it wins over `decimal`. */
   readonly decimalComma?: boolean;
+  /** Decimal separator of text cells, per value column; default 'auto' (decided from each column's cells). */
+  readonly decimal?: DecimalMode;
 }
 
 export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId } = {
@@ -75,6 +99,7 @@ export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId 
   minGroupSize: 8,
   smallGroups: 'pool',
   decimalComma: false,
+  decimal: 'auto',
 };
 
 /** Which population a row was compared with. Numeric code = index. */
@@ -173,6 +198,8 @@ export interface ColumnScores {
    * 'both'); NaN where not scored. Lets `countFlaggedAt` / `cutoffForBudget` work for IQR without a re-run.
    */
   readonly fenceMultiple?: Float64Array;
+  /** The decimal separator the column's text cells were read with, and why. */
+  readonly decimal: DecimalReading;
 }
 
 /** Input to the engine: a table of raw cells, by column. */
