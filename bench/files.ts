@@ -64,10 +64,10 @@ function* claims(rows: number): Generator<Claim> {
     const [category, median] = CATEGORIES[Math.floor(rand() * CATEGORIES.length)];
     const z = Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
     let amount: number | string | null = Math.round(median * Math.exp(0.5 * z) * 100) / 100;
-    if (rand() < 0.005) amount = Math.round((amount as number) * 7 * 100) / 100;
+    if (rand() < 0.005) amount = Math.round(amount * 7 * 100) / 100;
     const u = rand();
     if (u < 0.002) amount = null;
-    else if (u < 0.004) amount = (amount as number).toLocaleString('en-US', { minimumFractionDigits: 2 });
+    else if (u < 0.004) amount = amount.toLocaleString('en-US', { minimumFractionDigits: 2 });
     else if (u < 0.005) amount = 'see receipt';
     yield {
       id: `X${String(r + 1).padStart(7, '0')}`,

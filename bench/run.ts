@@ -22,7 +22,7 @@
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import * as ss from 'simple-statistics';
-import { scoreTable } from '../src/scoring/index.js';
+import { keyPart, scoreTable } from '../src/scoring/index.js';
 import type { GroupStats, RawCell, ScoreOptions } from '../src/scoring/index.js';
 import { mulberry32 } from '../src/demo/random.js';
 
@@ -41,8 +41,8 @@ function makeData(): { keys: RawCell[]; amounts: RawCell[] } {
   const rnd = mulberry32(20240601);
   const names = Array.from({ length: GROUPS }, (_, g) => `CC-${String(1000 + g)}`);
   const mu = Float64Array.from({ length: GROUPS }, () => 3 + 4 * rnd());
-  const keys: RawCell[] = new Array(ROWS);
-  const amounts: RawCell[] = new Array(ROWS);
+  const keys: RawCell[] = new Array<RawCell>(ROWS);
+  const amounts: RawCell[] = new Array<RawCell>(ROWS);
   for (let r = 0; r < ROWS; r++) {
     const g = Math.min(GROUPS - 1, Math.floor(GROUPS * rnd() ** 1.5)); // uneven group sizes
     keys[r] = names[g];
@@ -74,7 +74,7 @@ function baseline(method: CaseName, keys: RawCell[], amounts: RawCell[]): number
   for (let r = 0; r < keys.length; r++) {
     const a = amounts[r];
     if (typeof a !== 'number' || !Number.isFinite(a)) continue;
-    const k = String(keys[r]).trim();
+    const k = keyPart(keys[r]);
     let g = byGroup.get(k);
     if (g === undefined) { g = { rows: [], values: [] }; byGroup.set(k, g); }
     g.rows.push(r);

@@ -65,7 +65,9 @@ export const BENCH_SETTINGS: RunSettings = {
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
-  decimalComma: false,
+  decimal: 'auto',
+  reviewer: null,
+  detailColumns: null,
 };
 
 export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell' = 'block'): Promise<WorkbookBenchResult> {
@@ -98,7 +100,7 @@ const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined &
 if (isMain) {
   const i = process.argv.indexOf('--rows');
   const rows = i >= 0 ? Number(process.argv[i + 1]) : 1_048_575;
-  benchWorkbook(rows, process.argv.includes('--cell') ? 'cell' : 'block').then((r) => {
+  void benchWorkbook(rows, process.argv.includes('--cell') ? 'cell' : 'block').then((r) => {
     if (process.argv.includes('--json')) process.stdout.write(JSON.stringify(r) + '\n');
     else {
       process.stdout.write(

@@ -1,29 +1,15 @@
 /**
- * Argument parsing for `tailmark score` and `tailmark demo`. No dependencies; every mistake becomes
- * a UsageError with one line that says what to fix.
+ * Argument parsing for `tailmark score`, `tailmark sandbox` and `tailmark demo`. No dependencies;
+ * every mistake becomes a TailmarkError ('usage', or 'bad-settings' from the pipeline's one
+ * validation) with one line that says what to fix.
  */
-import { type DecimalMode, DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
+import { SETTING_KEYS, SETTING_SPECS, validateSettings, type SettingKey, type SettingWords, type Settings, type SettingsInput } from '../pipeline/settings.js';
+import { TailmarkError } from '../pipeline/errors.js';
 
-export class UsageError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'UsageError';
-  }
-}
-
+/** The batch command's I/O choices; what to compute is `settings` (src/pipeline/settings.ts). */
 export interface ScoreArgs {
   readonly input: string;
-  readonly values: readonly string[];
-  readonly groups: readonly string[];
-  readonly id: string | null;
-  readonly method: MethodId;
-  readonly cutoff: number | undefined;
-  readonly direction: Direction;
-  readonly minGroup: number;
-  readonly smallGroups: SmallGroupPolicy;
-  readonly log: boolean;
-  /** Decimal separator of text amounts: decided per column from its cells (auto), or given. */
-  readonly decimal: DecimalMode;
+  readonly settings: Settings;
   readonly sheet: string | undefined;
   readonly out: string | undefined;
   readonly force: boolean;
@@ -37,12 +23,85 @@ export interface DemoArgs {
   readonly force: boolean;
 }
 
-const METHODS: readonly MethodId[] = METHOD_IDS;
-const POLICIES: readonly SmallGroupPolicy[] = SMALL_GROUP_POLICIES;
-
 type Spec = Record<string, 'flag' | 'value' | 'list'>;
 
-function parseFlags(argv: readonly string[], spec: Spec, command: string): { positional: string[]; opts: Map<string, string[]> } {
+/**
+ * The option that sets each setting. A new setting needs an entry (the compiler says so); null = not
+ * offered on the command line (it takes its default).
+ */
+export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: string; readonly kind: 'flag' | 'value' | 'list' } | null } = {
+  valueColumns: { name: 'value', kind: 'list' },
+  groupColumns: { name: 'group', kind: 'list' },
+  idColumn: { name: 'id', kind: 'value' },
+  method: { name: 'method', kind: 'value' },
+  cutoff: { name: 'cutoff', kind: 'value' },
+  direction: { name: 'direction', kind: 'value' },
+  logScale: { name: 'log', kind: 'flag' },
+  minGroupSize: { name: 'min-group', kind: 'value' },
+  smallGroups: { name: 'small-groups', kind: 'value' },
+  // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
+  decimal: null,
+  reviewer: { name: 'reviewer', kind: 'value' },
+  // The add-in's follow-up view only.
+  detailColumns: null,
+};
+
+/** The option spec of every setting, for parseFlags. */
+export function settingOptionSpec(): Spec {
+  const spec: Spec = {};
+  for (const k of SETTING_KEYS) {
+    const f = SETTING_FLAGS[k];
+    if (f) spec[f.name] = f.kind;
+  }
+  spec['decimal-comma'] = 'flag';
+  spec['decimal-point'] = 'flag';
+  return spec;
+}
+
+/** Messages name settings by their option, and show the value as typed. */
+export function settingWords(opts: ReadonlyMap<string, readonly string[]>): SettingWords {
+  return {
+    nameOf: (k) => `--${SETTING_FLAGS[k]?.name ?? k}`,
+    shown: (k, v) => {
+      const f = SETTING_FLAGS[k];
+      const raw = f ? opts.get(f.name) : undefined;
+      return raw && f?.kind === 'value' ? `"${raw[0]}"` : JSON.stringify(v);
+    },
+  };
+}
+
+/**
+ * Settings from parsed options: text becomes numbers and words, nothing is checked here (the
+ * pipeline's validateSettings does, with `settingWords` for the wording). Missing options stay
+ * missing, so the pipeline's defaults apply.
+ */
+export function settingsFromOptions(opts: ReadonlyMap<string, readonly string[]>): SettingsInput {
+  const out: Record<string, unknown> = {};
+  for (const k of SETTING_KEYS) {
+    const f = SETTING_FLAGS[k];
+    const raw = f ? opts.get(f.name) : undefined;
+    if (!f || raw === undefined) continue;
+    if (f.kind === 'flag') out[k] = true;
+    else if (f.kind === 'list') out[k] = raw;
+    else {
+      const text = raw[0];
+      const def = SETTING_SPECS[k].fallback({ method: 'robust' });
+      if (typeof def === 'number') {
+        // A whole-number setting must be written as one ("2.5", "1e1", "0x10" are not).
+        const whole = Number.isInteger(def) && k !== 'cutoff';
+        out[k] = text.trim() === '' || (whole && !/^\s*\d+\s*$/.test(text)) ? Number.NaN : Number(text);
+      } else if (typeof def === 'string') out[k] = text.toLowerCase();
+      else out[k] = text;
+    }
+  }
+  const comma = opts.has('decimal-comma');
+  const point = opts.has('decimal-point');
+  if (comma && point) throw new TailmarkError('usage', 'give --decimal-comma or --decimal-point, not both');
+  if (comma || point) out.decimal = comma ? 'comma' : 'point';
+  return out;
+}
+
+export function parseFlags(argv: readonly string[], spec: Spec, command: string): { positional: string[]; opts: Map<string, string[]> } {
   const positional: string[] = [];
   const opts = new Map<string, string[]>();
   for (let i = 0; i < argv.length; i++) {
@@ -55,9 +114,9 @@ function parseFlags(argv: readonly string[], spec: Spec, command: string): { pos
       const eq = a.indexOf('=');
       const name = eq >= 0 ? a.slice(2, eq) : a.slice(2);
       const kind = spec[name];
-      if (!kind) throw new UsageError(`unknown option --${name} for "${command}" (see tailmark --help)`);
+      if (!kind) throw new TailmarkError('usage', `unknown option --${name} for "${command}" (see tailmark --help)`);
       if (kind === 'flag') {
-        if (eq >= 0) throw new UsageError(`--${name} takes no value`);
+        if (eq >= 0) throw new TailmarkError('usage', `--${name} takes no value`);
         opts.set(name, ['']);
         continue;
       }
@@ -65,11 +124,11 @@ function parseFlags(argv: readonly string[], spec: Spec, command: string): { pos
       if (eq >= 0) value = a.slice(eq + 1);
       else {
         value = argv[i + 1];
-        if (value === undefined || (value.startsWith('--') && value.length > 2)) throw new UsageError(`--${name} needs a value`);
+        if (value === undefined || (value.startsWith('--') && value.length > 2)) throw new TailmarkError('usage', `--${name} needs a value`);
         i++;
       }
       const prev = opts.get(name);
-      if (prev && kind === 'value') throw new UsageError(`--${name} given more than once`);
+      if (prev && kind === 'value') throw new TailmarkError('usage', `--${name} given more than once`);
       opts.set(name, [...(prev ?? []), value]);
       continue;
     }
@@ -78,56 +137,21 @@ function parseFlags(argv: readonly string[], spec: Spec, command: string): { pos
   return { positional, opts };
 }
 
-function oneOf<T extends string>(name: string, raw: string | undefined, allowed: readonly T[], fallback: T): T {
-  if (raw === undefined) return fallback;
-  const v = raw.toLowerCase() as T;
-  if (!allowed.includes(v)) throw new UsageError(`--${name} must be one of ${allowed.join(', ')}; got "${raw}"`);
-  return v;
-}
-
 export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
   const { positional, opts } = parseFlags(
     argv,
-    {
-      value: 'list', group: 'list', id: 'value', method: 'value', cutoff: 'value', direction: 'value',
-      'min-group': 'value', 'small-groups': 'value', log: 'flag', 'decimal-comma': 'flag', 'decimal-point': 'flag', sheet: 'value',
-      out: 'value', force: 'flag', json: 'flag', stream: 'flag',
-    },
+    { ...settingOptionSpec(), sheet: 'value', out: 'value', force: 'flag', json: 'flag', stream: 'flag' },
     'score',
   );
-  if (positional.length === 0) throw new UsageError('score needs an input file: tailmark score <input.xlsx|input.csv> --value <header>');
-  if (positional.length > 1) throw new UsageError(`score takes one input file; got ${positional.length}: ${positional.join(' ')}`);
-  const values = opts.get('value') ?? [];
-  if (values.length === 0) throw new UsageError('score needs at least one --value <header> (the amount column to score)');
+  if (positional.length === 0) throw new TailmarkError('usage', 'score needs an input file: tailmark score <input.xlsx|input.csv> --value <header>');
+  if (positional.length > 1) throw new TailmarkError('usage', `score takes one input file; got ${positional.length}: ${positional.join(' ')}`);
+  if ((opts.get('value') ?? []).length === 0) throw new TailmarkError('usage', 'score needs at least one --value <header> (the amount column to score)');
   const one = (n: string) => opts.get(n)?.[0];
-
-  let cutoff: number | undefined;
-  const rawCutoff = one('cutoff');
-  if (rawCutoff !== undefined) {
-    cutoff = Number(rawCutoff);
-    if (rawCutoff.trim() === '' || !Number.isFinite(cutoff) || cutoff <= 0) {
-      throw new UsageError(`--cutoff must be a number above 0; got "${rawCutoff}"`);
-    }
-  }
-  let minGroup = 8;
-  const rawMin = one('min-group');
-  if (rawMin !== undefined) {
-    minGroup = Number(rawMin);
-    if (!/^\d+$/.test(rawMin.trim()) || minGroup < 1) throw new UsageError(`--min-group must be a whole number of at least 1; got "${rawMin}"`);
-  }
-  const id = one('id');
+  // Checked now, so a mistake is reported before a long read.
+  const settings = validateSettings(settingsFromOptions(opts), settingWords(opts));
   return {
     input: positional[0],
-    values,
-    groups: opts.get('group') ?? [],
-    id: id ?? null,
-    method: oneOf('method', one('method'), METHODS, 'robust'),
-    cutoff,
-    direction: oneOf('direction', one('direction'), DIRECTIONS, 'both'),
-    minGroup,
-    smallGroups: oneOf('small-groups', one('small-groups'), POLICIES, 'pool'),
-    log: opts.has('log'),
-    decimal: decimalOption(opts.has('decimal-comma'), opts.has('decimal-point')),
+    settings,
     sheet: one('sheet'),
     out: one('out'),
     force: opts.has('force'),
@@ -136,14 +160,9 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
   };
 }
 
-function decimalOption(comma: boolean, point: boolean): DecimalMode {
-  if (comma && point) throw new UsageError('give --decimal-comma or --decimal-point, not both');
-  return comma ? 'comma' : point ? 'point' : 'auto';
-}
-
 export function parseDemoArgs(argv: readonly string[]): DemoArgs {
   const { positional, opts } = parseFlags(argv, { out: 'value', force: 'flag' }, 'demo');
-  if (positional.length > 0) throw new UsageError(`demo takes no file arguments (use --out <path>); got: ${positional.join(' ')}`);
+  if (positional.length > 0) throw new TailmarkError('usage', `demo takes no file arguments (use --out <path>); got: ${positional.join(' ')}`);
   return { out: opts.get('out')?.[0], force: opts.has('force') };
 }
 

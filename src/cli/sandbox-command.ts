@@ -14,100 +14,48 @@ import ExcelJS from 'exceljs';
 import { sandboxFromExcelJs, sandboxToExcelJs } from '../sandbox/exceljs-bridge.js';
 import { diffSnapshots, type SandboxSnapshot, type SandboxWorkbook, type SheetSnapshot } from '../sandbox/index.js';
 import { createWorkbookLayer } from '../workbook/index.js';
+import { isTailmarkError } from '../pipeline/errors.js';
 import { TailmarkError, type DetectedTable, type RunSettings } from '../workbook/api.js';
-import { defaultCutoff } from '../scoring/index.js';
-import type { Direction, MethodId, SmallGroupPolicy } from '../scoring/types.js';
+import { findColumn, validateSettings, type SettingWords, type SettingsInput } from '../pipeline/index.js';
+import { parseFlags, settingOptionSpec, settingsFromOptions, settingWords } from './args.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
 import { REVIEW_STATUSES } from '../report/index.js';
 
-class BadInput extends Error {}
-
 interface SandboxArgs {
-  input: string;
-  values: string[];
-  groups: string[];
-  id: string | null;
-  method: MethodId;
-  cutoff: number | undefined;
-  direction: Direction;
-  minGroup: number;
-  smallGroups: SmallGroupPolicy;
-  log: boolean;
-  decimalComma: boolean;
-  sheet: string | undefined;
-  rerun: boolean;
-  out: string | undefined;
-  force: boolean;
-  json: boolean;
-}
-
-const FLAGS = new Set(['log', 'decimal-comma', 'rerun', 'force', 'json']);
-const VALUES = new Set(['value', 'group', 'id', 'method', 'cutoff', 'direction', 'min-group', 'small-groups', 'sheet', 'out']);
-const LISTS = new Set(['value', 'group']);
-
-function oneOf<T extends string>(name: string, raw: string | undefined, allowed: readonly T[], fallback: T): T {
-  if (raw === undefined) return fallback;
-  const v = raw.toLowerCase();
-  const hit = allowed.find((a) => a === v);
-  if (!hit) throw new BadInput(`--${name} must be one of ${allowed.join(', ')}; got "${raw}"`);
-  return hit;
+  readonly input: string;
+  /** Settings as given (validated once the table's columns are known and the pane's guesses filled in). */
+  readonly settings: SettingsInput;
+  readonly words: SettingWords;
+  readonly sheet: string | undefined;
+  readonly rerun: boolean;
+  readonly out: string | undefined;
+  readonly force: boolean;
+  readonly json: boolean;
 }
 
 export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
-  const positional: string[] = [];
-  const opts = new Map<string, string[]>();
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    if (!a.startsWith('--')) {
-      positional.push(a);
-      continue;
-    }
-    const eq = a.indexOf('=');
-    const name = eq >= 0 ? a.slice(2, eq) : a.slice(2);
-    if (FLAGS.has(name)) {
-      if (eq >= 0) throw new BadInput(`--${name} takes no value`);
-      opts.set(name, ['']);
-      continue;
-    }
-    if (!VALUES.has(name)) throw new BadInput(`unknown option --${name} for "sandbox" (see tailmark --help)`);
-    const value = eq >= 0 ? a.slice(eq + 1) : argv[++i];
-    if (value === undefined || (eq < 0 && value.startsWith('--'))) throw new BadInput(`--${name} needs a value`);
-    const prev = opts.get(name);
-    if (prev && !LISTS.has(name)) throw new BadInput(`--${name} given more than once`);
-    opts.set(name, [...(prev ?? []), value]);
-  }
+  const { positional, opts } = parseFlags(
+    argv,
+    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag' },
+    'sandbox',
+  );
   if (positional.length !== 1) {
-    throw new BadInput(
+    throw new TailmarkError(
+      'usage',
       positional.length === 0
         ? 'sandbox needs an input file: tailmark sandbox <input.xlsx> [--value <header>] [--rerun] [--out <path>] [--json]'
         : `sandbox takes one input file; got ${positional.length}: ${positional.join(' ')}`,
     );
   }
+  const words = settingWords(opts);
+  const settings = settingsFromOptions(opts);
+  // Bounds are checked now (columns may still be missing: the pane's guesses fill them in later).
+  validateSettings({ ...settings, valueColumns: ['(check)'], groupColumns: [] }, words);
   const one = (n: string) => opts.get(n)?.[0];
-  let cutoff: number | undefined;
-  const rc = one('cutoff');
-  if (rc !== undefined) {
-    cutoff = Number(rc);
-    if (rc.trim() === '' || !Number.isFinite(cutoff) || cutoff <= 0) throw new BadInput(`--cutoff must be a number above 0; got "${rc}"`);
-  }
-  let minGroup = 8;
-  const rm = one('min-group');
-  if (rm !== undefined) {
-    minGroup = Number(rm);
-    if (!/^\d+$/.test(rm.trim()) || minGroup < 1) throw new BadInput(`--min-group must be a whole number of at least 1; got "${rm}"`);
-  }
   return {
     input: positional[0],
-    values: opts.get('value') ?? [],
-    groups: opts.get('group') ?? [],
-    id: one('id') ?? null,
-    method: oneOf('method', one('method'), ['robust', 'classic', 'iqr'] as const, 'robust'),
-    cutoff,
-    direction: oneOf('direction', one('direction'), ['high', 'low', 'both'] as const, 'both'),
-    minGroup,
-    smallGroups: oneOf('small-groups', one('small-groups'), ['pool', 'skip'] as const, 'pool'),
-    log: opts.has('log'),
-    decimalComma: opts.has('decimal-comma'),
+    settings,
+    words,
     sheet: one('sheet'),
     rerun: opts.has('rerun'),
     out: one('out'),
@@ -119,48 +67,38 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
 async function loadWorkbook(path: string): Promise<ExcelJS.Workbook> {
   try {
     const info = await stat(path);
-    if (!info.isFile()) throw new BadInput(`input is not a file: ${path}`);
+    if (!info.isFile()) throw new TailmarkError('usage', `input is not a file: ${path}`);
   } catch (e) {
-    if (e instanceof BadInput) throw e;
-    throw new BadInput(`input file not found: ${path}`);
+    if (isTailmarkError(e, 'usage')) throw e;
+    throw new TailmarkError('usage', `input file not found: ${path}`);
   }
   const wb = new ExcelJS.Workbook();
   const ext = extname(path).toLowerCase();
   try {
     if (ext === '.xlsx') await wb.xlsx.readFile(path);
     else if (ext === '.csv') await wb.csv.readFile(path);
-    else throw new BadInput(`unsupported file type "${ext || '(none)'}": use an .xlsx or .csv file`);
+    else throw new TailmarkError('usage', `unsupported file type "${ext || '(none)'}": use an .xlsx or .csv file`);
   } catch (e) {
-    if (e instanceof BadInput) throw e;
-    throw new BadInput(`cannot read ${path} as ${ext.slice(1)}: ${e instanceof Error ? e.message : String(e)}`);
+    if (isTailmarkError(e, 'usage')) throw e;
+    throw new TailmarkError('usage', `cannot read ${path} as ${ext.slice(1)}: ${e instanceof Error ? e.message : String(e)}`);
   }
   return wb;
 }
 
-function matchHeader(table: DetectedTable, name: string, what: string): string {
-  const c = table.columns.find((x) => x.header === name) ?? table.columns.find((x) => x.header.trim().toLowerCase() === name.trim().toLowerCase());
-  if (!c) throw new BadInput(`no ${what} column "${name}" in ${table.address}; columns: ${table.columns.map((x) => x.header).join(', ')}`);
-  return c.header;
+function matchHeader(table: DetectedTable, name: string, role: 'value' | 'group' | 'id'): string {
+  return table.columns[findColumn(table.columns.map((c) => c.header), name, role, table.address)].header;
 }
 
 /** Settings as the pane would start from: the options given, else the detected guesses. */
 export function settingsFor(table: DetectedTable, a: SandboxArgs): RunSettings {
-  const values = a.values.length ? a.values.map((v) => matchHeader(table, v, 'value')) : table.columns.filter((c) => c.guess === 'amount').slice(0, 1).map((c) => c.header);
-  if (values.length === 0) throw new BadInput(`no amount column found in ${table.address}; name one with --value <header>`);
-  const groups = a.groups.map((g) => matchHeader(table, g, 'group'));
-  const id = a.id !== null ? matchHeader(table, a.id, 'id') : (table.columns.find((c) => c.guess === 'id')?.header ?? null);
-  return {
-    valueColumns: values,
-    groupColumns: groups,
-    idColumn: id,
-    method: a.method,
-    cutoff: a.cutoff ?? defaultCutoff(a.method),
-    direction: a.direction,
-    logScale: a.log,
-    minGroupSize: a.minGroup,
-    smallGroups: a.smallGroups,
-    decimalComma: a.decimalComma,
-  };
+  const given = a.settings;
+  const named = (v: unknown): string[] => (Array.isArray(v) ? v.filter((x): x is string => typeof x === 'string') : []);
+  const asked = named(given.valueColumns);
+  const values = asked.length ? asked.map((v) => matchHeader(table, v, 'value')) : table.columns.filter((c) => c.guess === 'amount').slice(0, 1).map((c) => c.header);
+  if (values.length === 0) throw new TailmarkError('usage', `no amount column found in ${table.address}; name one with --value <header>`);
+  const groups = named(given.groupColumns).map((g) => matchHeader(table, g, 'group'));
+  const id = typeof given.idColumn === 'string' ? matchHeader(table, given.idColumn, 'id') : (table.columns.find((c) => c.guess === 'id')?.header ?? null);
+  return validateSettings({ ...given, valueColumns: values, groupColumns: groups, idColumn: id }, a.words);
 }
 
 function letterIndex(letters: string): number {
@@ -231,18 +169,18 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     const input = resolve(args.input);
     if (args.out !== undefined) {
       const out = resolve(args.out);
-      if (out === input) throw new BadInput('--out must not be the input file (the input is never replaced)');
+      if (out === input) throw new TailmarkError('usage', '--out must not be the input file (the input is never replaced)');
       if (!args.force) {
         const exists = await stat(out).then(() => true, () => false);
-        if (exists) throw new BadInput(`output file exists: ${args.out} (add --force to replace it)`);
+        if (exists) throw new TailmarkError('usage', `output file exists: ${args.out} (add --force to replace it)`);
       }
     }
     const wb = await loadWorkbook(input);
     const sb: SandboxWorkbook = sandboxFromExcelJs(wb);
     const sheets = sb.sheetNames();
-    if (sheets.length === 0) throw new BadInput(`${args.input} has no worksheets`);
+    if (sheets.length === 0) throw new TailmarkError('usage', `${args.input} has no worksheets`);
     const sheet = args.sheet ?? sheets[0];
-    if (!sheets.includes(sheet)) throw new BadInput(`no sheet "${sheet}" in ${args.input}; sheets: ${sheets.join(', ')}`);
+    if (!sheets.includes(sheet)) throw new TailmarkError('usage', `no sheet "${sheet}" in ${args.input}; sheets: ${sheets.join(', ')}`);
     sb.setSelection(sheet, 'A1');
     const layer = createWorkbookLayer(sb.run);
     const before = sb.snapshot();
@@ -313,7 +251,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     }
     return 0;
   } catch (e) {
-    if (e instanceof BadInput || e instanceof TailmarkError) {
+    if (e instanceof TailmarkError) {
       process.stderr.write(`tailmark: ${e.message}\n`);
       return 2;
     }

@@ -7,7 +7,8 @@
  */
 import { createReadStream } from 'node:fs';
 import { StringDecoder } from 'node:string_decoder';
-import { CsvSyntaxError, detectDelimiter, type CsvDelimiter } from './csv.js';
+import { detectDelimiter, type CsvDelimiter } from './csv.js';
+import { TailmarkError } from '../pipeline/errors.js';
 
 const QUOTE = 34;
 const CR = 13;
@@ -145,7 +146,7 @@ export class CsvChunkParser {
       this.inQuotes = false;
     }
     if (this.inQuotes) {
-      throw new CsvSyntaxError(this.quoteOpenedAt, `CSV line ${this.quoteOpenedAt}: a quoted field is never closed (missing ")`);
+      throw new TailmarkError('input-file', `CSV line ${this.quoteOpenedAt}: a quoted field is never closed (missing ")`, this.quoteOpenedAt);
     }
     if (this.field !== '' || this.quoted || this.record.length > 0) {
       this.record.push(this.field);

@@ -1,3 +1,4 @@
+import { TailmarkError } from '../pipeline/errors.js';
 /**
  * A CSV reader following RFC 4180 (fields separated by a delimiter, records by CRLF; fields may be
  * quoted with `"`, a quote inside a quoted field is written `""`, and quoted fields may hold the
@@ -15,13 +16,6 @@ export type CsvDelimiter = ',' | ';' | '\t';
 export interface CsvOptions {
   /** Field delimiter; detected from the first record when omitted. */
   readonly delimiter?: CsvDelimiter;
-}
-
-export class CsvSyntaxError extends Error {
-  constructor(readonly line: number, message: string) {
-    super(message);
-    this.name = 'CsvSyntaxError';
-  }
 }
 
 /** Strip a leading UTF-8 byte-order mark (U+FEFF). */
@@ -83,7 +77,7 @@ export function parseCsv(input: string, options: CsvOptions = {}): string[][] {
       }
       quoted = true;
       if (!closed) {
-        throw new CsvSyntaxError(openedAt, `CSV line ${openedAt}: a quoted field is never closed (missing ")`);
+        throw new TailmarkError('input-file', `CSV line ${openedAt}: a quoted field is never closed (missing ")`, openedAt);
       }
       // Anything up to the next delimiter / line end is appended (lenient).
       while (i < n && text[i] !== delim && text[i] !== '\n' && text[i] !== '\r') field += text[i++];

@@ -10,13 +10,7 @@ import type { SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell, Swatch } from '../report/types.js';
 import { PALETTE } from '../report/style.js';
 import { columnLetter, fileKind } from './read.js';
-
-export class OutputFileError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'OutputFileError';
-  }
-}
+import { TailmarkError } from '../pipeline/errors.js';
 
 export interface Placed {
   readonly header: string;
@@ -55,12 +49,12 @@ export async function exists(p: string): Promise<boolean> {
 
 /** Refuse a bad --out before any work: wrong type, the input itself, an existing file without force, no folder. */
 export async function checkOutPath(inputPath: string, outPath: string, force: boolean | undefined): Promise<void> {
-  if (fileKind(outPath) !== 'xlsx') throw new OutputFileError(`--out must end in .xlsx; got ${outPath}`);
-  if (sameFile(inputPath, outPath)) throw new OutputFileError(`refusing to write over the input file ${basename(inputPath)}; choose another --out`);
+  if (fileKind(outPath) !== 'xlsx') throw new TailmarkError('output-file', `--out must end in .xlsx; got ${outPath}`);
+  if (sameFile(inputPath, outPath)) throw new TailmarkError('output-file', `refusing to write over the input file ${basename(inputPath)}; choose another --out`);
   if (!force && (await exists(outPath))) {
-    throw new OutputFileError(`${outPath} already exists; choose another --out or add --force to replace it`);
+    throw new TailmarkError('output-file', `${outPath} already exists; choose another --out or add --force to replace it`);
   }
-  if (!(await exists(dirname(resolve(outPath))))) throw new OutputFileError(`folder for --out does not exist: ${dirname(resolve(outPath))}`);
+  if (!(await exists(dirname(resolve(outPath))))) throw new TailmarkError('output-file', `folder for --out does not exist: ${dirname(resolve(outPath))}`);
 }
 
 /**
@@ -91,7 +85,7 @@ export function placeColumns(table: SourceTable, plan: Plan, isFree: (col0: numb
     const index = existing.get(col.header) ?? next++;
     placed.push({ header: col.header, column: columnLetter(index), index });
   }
-  if (placed.some((p) => p.index >= 16384)) throw new OutputFileError('the sheet has no room for the result columns (past column XFD)');
+  if (placed.some((p) => p.index >= 16384)) throw new TailmarkError('output-file', 'the sheet has no room for the result columns (past column XFD)');
   return placed;
 }
 

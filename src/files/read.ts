@@ -11,15 +11,8 @@ import { readFile, stat } from 'node:fs/promises';
 import { basename, extname } from 'node:path';
 import ExcelJS from 'exceljs';
 import type { RawCell, SourceTable } from '../scoring/types.js';
-import { CsvSyntaxError, parseCsv } from './csv.js';
-
-/** A problem with the input file, worded for the person who runs the command. */
-export class InputFileError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'InputFileError';
-  }
-}
+import { parseCsv } from './csv.js';
+import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 
 export interface ReadOptions {
   /** Worksheet name (xlsx only); default the first worksheet. */
@@ -110,14 +103,14 @@ async function readXlsx(path: string, options: ReadOptions): Promise<ReadTable> 
   try {
     await wb.xlsx.readFile(path);
   } catch (e) {
-    throw new InputFileError(`cannot read ${basename(path)} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${basename(path)} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   }
   const names = wb.worksheets.map((w) => w.name);
-  if (names.length === 0) throw new InputFileError(`${basename(path)} has no worksheets`);
+  if (names.length === 0) throw new TailmarkError('input-file', `${basename(path)} has no worksheets`);
   let ws: ExcelJS.Worksheet | undefined;
   if (options.sheet !== undefined) {
     ws = wb.worksheets.find((w) => w.name === options.sheet) ?? wb.worksheets.find((w) => w.name.toLowerCase() === options.sheet!.toLowerCase());
-    if (!ws) throw new InputFileError(`sheet "${options.sheet}" not found in ${basename(path)}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
+    if (!ws) throw new TailmarkError('input-file', `sheet "${options.sheet}" not found in ${basename(path)}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
   } else {
     ws = wb.worksheets[0];
   }
@@ -133,7 +126,7 @@ async function readXlsx(path: string, options: ReadOptions): Promise<ReadTable> 
       }
     }
   }
-  if (headerRow === 0) throw new InputFileError(`sheet "${ws.name}" in ${basename(path)} is empty`);
+  if (headerRow === 0) throw new TailmarkError('input-file', `sheet "${ws.name}" in ${basename(path)} is empty`);
 
   const hrow = ws.getRow(headerRow);
   let first = -1;
@@ -182,18 +175,18 @@ async function readCsvTable(path: string): Promise<ReadTable> {
   try {
     text = (await readFile(path)).toString('utf8');
   } catch (e) {
-    throw new InputFileError(`cannot read ${basename(path)} (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${basename(path)} (${e instanceof Error ? e.message : String(e)})`);
   }
   let records: string[][];
   try {
     records = parseCsv(text);
   } catch (e) {
-    if (e instanceof CsvSyntaxError) throw new InputFileError(`${basename(path)}: ${e.message}`);
+    if (isTailmarkError(e) && e.line !== undefined) throw new TailmarkError('input-file', `${basename(path)}: ${e.message}`, e.line);
     throw e;
   }
   const nonEmpty = (rec: readonly string[]) => rec.some((f) => f.trim() !== '');
   const h = records.findIndex(nonEmpty);
-  if (h < 0) throw new InputFileError(`${basename(path)} is empty (no header row found)`);
+  if (h < 0) throw new TailmarkError('input-file', `${basename(path)} is empty (no header row found)`);
   const hrec = records[h];
   const first = hrec.findIndex((f) => f.trim() !== '');
   let last = hrec.length - 1;
@@ -239,17 +232,17 @@ export async function checkInputFile(path: string, sheet: string | undefined): P
   try {
     info = await stat(path);
   } catch {
-    throw new InputFileError(`input file not found: ${path}`);
+    throw new TailmarkError('input-file', `input file not found: ${path}`);
   }
-  if (!info.isFile()) throw new InputFileError(`input is not a file: ${path}`);
-  if (info.size === 0) throw new InputFileError(`input file is empty: ${path}`);
+  if (!info.isFile()) throw new TailmarkError('input-file', `input is not a file: ${path}`);
+  if (info.size === 0) throw new TailmarkError('input-file', `input file is empty: ${path}`);
   const kind = fileKind(path);
   if (kind === 'xlsx') return kind;
   if (kind === 'csv') {
-    if (sheet !== undefined) throw new InputFileError(`--sheet applies to .xlsx files only; ${basename(path)} is a CSV file`);
+    if (sheet !== undefined) throw new TailmarkError('input-file', `--sheet applies to .xlsx files only; ${basename(path)} is a CSV file`);
     return kind;
   }
-  throw new InputFileError(`unsupported file type "${extname(path) || '(none)'}": use an .xlsx or .csv file`);
+  throw new TailmarkError('input-file', `unsupported file type "${extname(path) || '(none)'}": use an .xlsx or .csv file`);
 }
 
 /** Read the table of an .xlsx or .csv file. Throws InputFileError with a one-line message. */

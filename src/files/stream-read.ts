@@ -9,10 +9,10 @@
 import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
-import { CsvSyntaxError } from './csv.js';
 import { forEachCsvRecord } from './csv-stream.js';
-import { checkInputFile, cleanHeaders, describe, InputFileError, isEmpty, sheetNameFromFile, type ReadOptions, type ReadTable } from './read.js';
+import { checkInputFile, cleanHeaders, describe, isEmpty, sheetNameFromFile, type ReadOptions, type ReadTable } from './read.js';
 import { XlsxStream } from './xlsx-stream.js';
+import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 
 export interface StreamReadOptions extends ReadOptions {
   /**
@@ -151,7 +151,7 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
         names = x.sheetNames.length ? x.sheetNames : [sheet.name];
         if (options.sheet !== undefined) {
           target = names.find((n) => n === options.sheet) ?? names.find((n) => n.toLowerCase() === options.sheet!.toLowerCase()) ?? null;
-          if (target === null) throw new InputFileError(`sheet "${options.sheet}" not found in ${name}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
+          if (target === null) throw new TailmarkError('input-file', `sheet "${options.sheet}" not found in ${name}; sheets: ${names.map((n) => `"${n}"`).join(', ')}`);
         } else target = names[0];
       }
       if (sheet.name !== target) {
@@ -175,17 +175,17 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
       break;
     }
   } catch (e) {
-    if (e instanceof InputFileError || (callerError !== null && e === callerError)) throw e;
+    if (isTailmarkError(e, 'input-file') || (callerError !== null && e === callerError)) throw e;
     if (e instanceof ReferenceError || e instanceof SyntaxError) throw e; // a bug of ours, not the file
-    throw new InputFileError(`cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('input-file', `cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   } finally {
     x.close();
   }
   if (!found) {
-    if (names.length === 0) throw new InputFileError(`${name} has no worksheets`);
-    throw new InputFileError(`sheet "${target}" not found in ${name}`);
+    if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
+    throw new TailmarkError('input-file', `sheet "${target}" not found in ${name}`);
   }
-  if (b.first < 0) throw new InputFileError(`sheet "${target}" in ${name} is empty`);
+  if (b.first < 0) throw new TailmarkError('input-file', `sheet "${target}" in ${name} is empty`);
   const { columns, rowCount, busyColumns } = b.finish();
   // A merged range right of the table is not free either (its cells other than the first hold no value).
   const busy = new Set(busyColumns);
@@ -231,11 +231,11 @@ async function readCsvStreaming(path: string, options: StreamReadOptions): Promi
       }
     });
   } catch (e) {
-    if (e instanceof CsvSyntaxError) throw new InputFileError(`${name}: ${e.message}`);
-    if (e instanceof InputFileError || !(e instanceof Error) || !('code' in e)) throw e;
-    throw new InputFileError(`cannot read ${name} (${e.message})`);
+    if (isTailmarkError(e) && e.line !== undefined) throw new TailmarkError('input-file', `${name}: ${e.message}`, e.line);
+    if (isTailmarkError(e, 'input-file') || !(e instanceof Error) || !('code' in e)) throw e;
+    throw new TailmarkError('input-file', `cannot read ${name} (${e.message})`);
   }
-  if (!haveHeader) throw new InputFileError(`${name} is empty (no header row found)`);
+  if (!haveHeader) throw new TailmarkError('input-file', `${name} is empty (no header row found)`);
   const { columns, rowCount, busyColumns } = b.finish();
   return {
     source: describe(path, null, b.first, b.headerRow, b.headers.length, rowCount),

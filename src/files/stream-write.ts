@@ -26,12 +26,11 @@ import type { NotesSection, Plan, PlanCell } from '../report/types.js';
 import { isTailmarkFormula, ruleFormula } from '../report/rules.js';
 import { REVIEW_STATUSES } from '../report/style.js';
 import { forEachCsvRecord } from './csv-stream.js';
-import { InputFileError, type ReadTable } from './read.js';
+import { type ReadTable } from './read.js';
 import {
   argb,
   checkOutPath,
   notesLayout,
-  OutputFileError,
   placeColumns,
   RESULT_HEADER_STYLE,
   ruleRange,
@@ -40,6 +39,7 @@ import {
 } from './layout.js';
 import type { WriteSummary } from './write.js';
 import { describeNotCarried, type SheetHead, type SheetTail, type StreamRow, XlsxStream } from './xlsx-stream.js';
+import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 
 export interface StreamWriteOptions {
   readonly force?: boolean;
@@ -173,9 +173,6 @@ interface WriterSheet extends Sheet {
   commit(): void;
   dataValidations: { model: Record<string, ExcelJS.DataValidation> };
 }
-interface WriterRow extends ExcelJS.Row {
-  commit(): void;
-}
 
 /** Write one streamed row (input cells and, when given, our cells) and commit it. */
 function writeRow(
@@ -185,7 +182,7 @@ function writeRow(
   x: XlsxStream | null,
   results: ResultWriter | null,
 ): void {
-  const row = ws.getRow(rowNo) as WriterRow;
+  const row = ws.getRow(rowNo);
   if (src) {
     if (src.height !== undefined) row.height = src.height;
     if (src.hidden) row.hidden = true;
@@ -296,7 +293,7 @@ export async function writeScoredWorkbookStreaming(
     useStyles: true,
     useSharedStrings: false,
     zip: { zlib: { level: options.zipLevel ?? 1 } },
-  } as Partial<ExcelJS.stream.xlsx.WorkbookStreamWriterOptions>);
+  });
   wb.creator = 'Tailmark';
 
   const setOurWidths = (ws: WriterSheet) => {
@@ -325,7 +322,7 @@ export async function writeScoredWorkbookStreaming(
       let rowNo = 0;
       await forEachCsvRecord(inputPath, (rec) => {
         rowNo++;
-        const row = ws.getRow(rowNo) as WriterRow;
+        const row = ws.getRow(rowNo);
         for (let c = 0; c < rec.length; c++) {
           const v = csvFieldValue(rec[c]);
           if (v !== null && !results.owns(rowNo, c + 1)) row.getCell(c + 1).value = v;
@@ -413,7 +410,7 @@ export async function writeScoredWorkbookStreaming(
       if (order.join('\u0000') !== sheetNames.join('\u0000')) {
         notCarried.push(`the order of the sheets (written in the order they are stored in the file: ${sheetNames.map((n) => `"${n}"`).join(', ')})`);
       }
-      if (!sawTarget) throw new InputFileError(`sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
+      if (!sawTarget) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
       const names = x.definedNameCount;
       if (names > 0) notCarried.push(`${names} named range${names === 1 ? '' : 's'} (defined names)`);
       if (replaced !== null) notesName = replaced;
@@ -459,7 +456,7 @@ export async function writeScoredWorkbookStreaming(
     };
   } catch (e) {
     await rm(tmp, { force: true });
-    if (e instanceof InputFileError || e instanceof OutputFileError) throw e;
-    throw new OutputFileError(`cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
+    if (isTailmarkError(e, 'input-file', 'output-file')) throw e;
+    throw new TailmarkError('output-file', `cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
   }
 }

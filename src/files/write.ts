@@ -13,10 +13,9 @@ import type { RawCell, SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell } from '../report/types.js';
 import { ruleFormula, isTailmarkFormula } from '../report/rules.js';
 import { REVIEW_STATUSES } from '../report/style.js';
-import { fileKind, InputFileError, readTable, type ReadTable } from './read.js';
-import { argb, checkOutPath, notesLayout, OutputFileError, placeColumns, RESULT_HEADER_STYLE, ruleRange, solid } from './layout.js';
-
-export { OutputFileError } from './layout.js';
+import { fileKind, readTable, type ReadTable } from './read.js';
+import { argb, checkOutPath, notesLayout, placeColumns, RESULT_HEADER_STYLE, ruleRange, solid } from './layout.js';
+import { TailmarkError } from '../pipeline/errors.js';
 
 export interface WriteOptions {
   /** Replace outPath if it exists (never the input). */
@@ -81,7 +80,7 @@ export async function writeScoredWorkbook(
   if (kind === 'xlsx') {
     wb = (options.workbook as ExcelJS.Workbook | undefined) ?? ((await readTable(inputPath, { sheet: table.sheetName })).workbook as ExcelJS.Workbook);
     const found = wb.getWorksheet(table.sheetName);
-    if (!found) throw new InputFileError(`sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
+    if (!found) throw new TailmarkError('input-file', `sheet "${table.sheetName}" not found in ${basename(inputPath)}`);
     ws = found;
   } else if (kind === 'csv') {
     const again = (table as ReadTable).csvRecords ?? (await readTable(inputPath)).csvRecords ?? [];
@@ -95,7 +94,7 @@ export async function writeScoredWorkbook(
       });
     });
   } else {
-    throw new InputFileError(`unsupported input type: ${inputPath}`);
+    throw new TailmarkError('input-file', `unsupported input type: ${inputPath}`);
   }
   wb.creator = wb.creator || 'Tailmark';
 
@@ -207,11 +206,11 @@ export async function writeScoredWorkbook(
   options.onProgress?.('saving', 0);
   const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);
   try {
-    await wb.xlsx.writeFile(tmp, { zip: ZIP_FAST } as unknown as Partial<ExcelJS.XlsxWriteOptions>);
+    await wb.xlsx.writeFile(tmp, { zip: ZIP_FAST });
     await rename(tmp, outPath);
   } catch (e) {
     await rm(tmp, { force: true });
-    throw new OutputFileError(`cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
+    throw new TailmarkError('output-file', `cannot write ${outPath} (${e instanceof Error ? e.message : String(e)})`);
   }
   options.onProgress?.('saving', 1);
   return { outPath, sheetName: ws.name, placed: placed.map(({ header, column }) => ({ header, column })), notesSheet: notes.name };

@@ -57,7 +57,7 @@ interface PartXform {
 
 const ExcelJSLib = require('exceljs') as ExcelJsModule;
 const parseSax = require('exceljs/lib/utils/parse-sax') as (it: AsyncIterable<unknown>) => AsyncIterable<SaxEvent[]>;
-const { slideFormula } = require('exceljs/lib/utils/shared-formula') as { slideFormula(f: string, from: string, to: string): string };
+const { slideFormula } = require('exceljs/lib/utils/shared-formula') as { slideFormula: (f: string, from: string, to: string) => string };
 const utils = require('exceljs/lib/utils/utils') as {
   isDateFmt(fmt: string | undefined): boolean;
   excelToDate(v: number, date1904?: boolean): Date;
@@ -299,7 +299,7 @@ export class XlsxStream {
           const text = sv.richText.map((r) => r.text ?? '').join('');
           // ExcelJS's shared-string reader (4.4.0) drops run colours given as rgb and strikethrough.
           notCarried.set('sharedRichText', (notCarried.get('sharedRichText') ?? 0) + 1);
-          return { raw: text === '' ? null : text, value: sv as ExcelJS.CellRichTextValue };
+          return { raw: text === '' ? null : text, value: sv };
         }
         if (cT === 'inlineStr') {
           const t = isText ?? '';
@@ -344,7 +344,7 @@ export class XlsxStream {
         if (formula === '') value = result.value; // a formula we cannot rebuild: keep its last value
         else if (t === 'array' && fAttrs?.ref) {
           value = { formula, shareType: 'array', ref: fAttrs.ref, result: res } as unknown as ExcelJS.CellValue;
-        } else value = res === undefined ? ({ formula } as ExcelJS.CellValue) : ({ formula, result: res } as ExcelJS.CellValue);
+        } else value = res === undefined ? { formula } : { formula, result: res };
       } else {
         const p = plain();
         raw = p.raw;
@@ -518,7 +518,8 @@ export class XlsxStream {
         return;
       }
       if (hfPart !== null && headerFooter) {
-        headerFooter[hfPart] += text;
+        const sofar = headerFooter[hfPart];
+        headerFooter[hfPart] = (typeof sofar === 'string' ? sofar : '') + text;
         return;
       }
       if (textTarget === 'v') vText += text;
@@ -606,8 +607,8 @@ export class XlsxStream {
       dataValidations,
       autoFilter,
       notCarried,
-      ...(pageSetup ? { pageSetup: pageSetup as Partial<ExcelJS.PageSetup> } : {}),
-      ...(headerFooter ? { headerFooter: headerFooter as Partial<ExcelJS.HeaderFooter> } : {}),
+      ...(pageSetup ? { pageSetup } : {}),
+      ...(headerFooter ? { headerFooter } : {}),
     };
   }
 }

@@ -13,4 +13,5 @@ export {
   statusLabel,
   type ReviewState,
 } from './style.js';
+export { planToJson, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';

@@ -57,7 +57,7 @@ function onDemandArray<T>(length: number, at: (r: number) => T): readonly T[] {
           if (Number.isInteger(r) && r >= 0 && r < length) return at(r);
         }
       }
-      return Reflect.get(t, p, receiver);
+      return Reflect.get(t, p, receiver) as unknown;
     },
     has(t, p) {
       if (typeof p === 'string' && /^\d+$/.test(p)) return Number(p) < length;
@@ -175,10 +175,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
 
   result.columns.forEach((col) => {
     const h = resultHeaders(col.column);
-    const score: PlanCell[] = new Array(rows);
-    const flag: PlanCell[] = new Array(rows);
+    const score: PlanCell[] = new Array<PlanCell>(rows);
+    const flag: PlanCell[] = new Array<PlanCell>(rows);
     const lazy = ctx.reasonText === 'on-demand';
-    const reason: PlanCell[] = lazy ? [] : new Array(rows);
+    const reason: PlanCell[] = lazy ? [] : new Array<PlanCell>(rows);
     for (let r = 0; r < rows; r++) {
       score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
@@ -192,8 +192,8 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 60 });
   });
   const open = statusLabel('open');
-  const status: PlanCell[] = new Array(rows);
-  const note: PlanCell[] = new Array(rows);
+  const status: PlanCell[] = new Array<PlanCell>(rows);
+  const note: PlanCell[] = new Array<PlanCell>(rows);
   let flaggedRows = 0;
   let scoredRows = 0;
   for (let r = 0; r < rows; r++) {
@@ -324,6 +324,9 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     notes: { name: NOTES_SHEET_NAME, sections },
     log,
     caution: CAUTION,
+    result,
+    table: ctx.table,
+    idColumn: ctx.idColumn ?? null,
   };
 }
 

@@ -3,6 +3,7 @@
  * (Office.js writer, xlsx writer, JSON). Pure data; sinks only translate it.
  */
 
+import type { ScoreResult, SourceTable } from '../scoring/types.js';
 /** A cell value a sink writes. Strings are always written as text (never as formulas). */
 export type PlanCell = string | number | boolean | null;
 
@@ -84,4 +85,8 @@ export interface Plan {
   readonly log: RunLogEntry;
   /** The caution shown wherever results are shown. */
   readonly caution: string;
+  /** What the plan was made from, for sinks that report the numbers themselves (JSON). */
+  readonly result: ScoreResult;
+  readonly table: SourceTable;
+  readonly idColumn: string | null;
 }

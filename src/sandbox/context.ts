@@ -88,7 +88,7 @@ export class SandboxContext {
     let respBytes = 2;
     this.memoResets = [];
     this.applying = true;
-    let failed: unknown = null;
+    let failed: { error: unknown } | null = null;
     if (!partial) model.begin();
     try {
       for (const a of actions) {
@@ -116,7 +116,7 @@ export class SandboxContext {
         throw err('ResponsePayloadSizeLimitExceeded', `The response payload (${respBytes} bytes) exceeds the limit of ${limit} bytes. Load fewer cells per sync.`, 'RequestContext.sync');
       }
     } catch (e) {
-      failed = e;
+      failed = { error: e };
     } finally {
       this.applying = false;
     }
@@ -125,7 +125,7 @@ export class SandboxContext {
       if (!partial) model.rollback();
       for (const f of this.memoResets) f();
       this.memoResets = [];
-      throw failed;
+      throw failed.error;
     }
     if (!partial) model.commit();
     this.memoResets = [];

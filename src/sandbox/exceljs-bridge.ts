@@ -244,7 +244,7 @@ export function sandboxToExcelJs(sb: SandboxWorkbook): ExcelJS.Workbook {
       const col = s.cols[c];
       if (!col) continue;
       let len = 0;
-      for (const a of Object.values(col)) if (a && a.length > len) len = a.length;
+      for (const a of Object.values(col) as (readonly unknown[] | undefined)[]) if (a && a.length > len) len = a.length;
       for (let r = 0; r < len; r++) {
         const value = cellValueOut(s, sb, r, c);
         const nf = col.nf?.[r];

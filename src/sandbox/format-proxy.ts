@@ -151,7 +151,6 @@ export class RangeFontProxy extends ProxyBase<RangeTarget> {
     return this.range.target();
   }
   protected read(t: RangeTarget, prop: string): unknown {
-    const m = this.context.model;
     if (prop === 'color') return uniform(t, 'font', '#000000');
     if (prop === 'bold') return uniform(t, 'bold', false);
     return undefined;

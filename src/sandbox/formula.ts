@@ -247,8 +247,8 @@ function compare(a: Val, b: Val): number {
   if (a === null) a = typeof b === 'number' ? 0 : typeof b === 'boolean' ? false : '';
   if (b === null) b = typeof a === 'number' ? 0 : typeof a === 'boolean' ? false : '';
   const rank = (x: Scalar) => (typeof x === 'number' ? 0 : typeof x === 'string' ? 1 : 2);
-  const ra = rank(a as Scalar);
-  const rb = rank(b as Scalar);
+  const ra = rank(a);
+  const rb = rank(b);
   if (ra !== rb) return ra - rb;
   if (typeof a === 'string' && typeof b === 'string') {
     const x = a.toLowerCase();

@@ -94,7 +94,7 @@ export abstract class ProxyBase<T> {
     /** @internal */ readonly orNull: boolean,
   ) {
     this.createdAt = context.syncCount;
-    if (orNull) context.pendingNull.push(this as ProxyBase<unknown>);
+    if (orNull) context.pendingNull.push(this);
   }
 
   /** Resolve the object path against the current model; null when it does not exist. */

@@ -45,7 +45,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
     const m = this.context.model;
     const { sheet, rect: r } = t;
     const grid = (f: (row: number, col: number) => unknown): unknown[][] => {
-      const out: unknown[][] = new Array(r.rows);
+      const out: unknown[][] = new Array<unknown[]>(r.rows);
       for (let i = 0; i < r.rows; i++) {
         const row = new Array(r.cols);
         for (let j = 0; j < r.cols; j++) row[j] = f(r.r0 + i, r.c0 + j);
@@ -97,7 +97,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
       const f = sheet.cols[r.c0 + j]?.f;
       if (f) for (let i = r.r0; i < Math.min(f.length, r.r0 + r.rows); i++) if (f[i] !== undefined) return null;
     }
-    const out: unknown[][] = new Array(r.rows);
+    const out: unknown[][] = new Array<unknown[]>(r.rows);
     for (let i = 0; i < r.rows; i++) out[i] = new Array(r.cols);
     for (let j = 0; j < r.cols; j++) {
       const v = sheet.cols[r.c0 + j]?.v;

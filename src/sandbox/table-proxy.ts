@@ -376,7 +376,7 @@ export class TableColumnProxy extends ProxyBase<ColumnTarget> {
     switch (prop) {
       case 'id': return t.index + 1;
       case 'index': return t.index;
-      case 'name': return generalText(val(table.rect.r0) as number | string | boolean);
+      case 'name': return generalText(val(table.rect.r0));
       case 'values': return Array.from({ length: table.rect.rows }, (_, i) => [val(table.rect.r0 + i)]);
     }
     return undefined;

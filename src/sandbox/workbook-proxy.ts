@@ -65,7 +65,7 @@ export class WorkbookProxy extends ProxyBase<WorkbookModel> {
 
 export class SelectionEventProxy {
   constructor(private readonly ctx: SandboxContext) {}
-  add(handler: (args: { workbook: unknown; type: string }) => Promise<unknown> | unknown): EventHandlerResultProxy {
+  add(handler: (args: { workbook: unknown; type: string }) => unknown): EventHandlerResultProxy {
     const result = new EventHandlerResultProxy(this.ctx);
     this.ctx.enqueue({
       statement: 'workbook.onSelectionChanged.add(handler)',

@@ -83,7 +83,7 @@ export interface SandboxRun {
   <T>(object: OfficeExtension.ClientRequestContext | OfficeExtension.ClientObject | { context: unknown }, batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
 }
 
-export type SelectionHandler = (args: { workbook: unknown; type: string }) => Promise<unknown> | unknown;
+export type SelectionHandler = (args: { workbook: unknown; type: string }) => unknown;
 
 function newBytes(): ByteStats {
   return { max: 0, total: 0, last: 0 };
@@ -133,7 +133,7 @@ export class SandboxWorkbook {
       return Promise.reject(new SandboxError('InvalidArgument', 'run(object, batch): the object must be a context or an object of this sandbox, and batch a function.'));
     }
     return this.runIn<T>(ctx, b as Batch<T>);
-  }) as SandboxRun;
+  });
 
   private async runIn<T>(ctx: SandboxContext, batch: Batch<T>): Promise<T> {
     this.stats.runs++;
@@ -256,7 +256,7 @@ export class SandboxWorkbook {
     const m = this.model;
     const c: SandboxCellInput =
       cell instanceof Date ? { value: dateToSerial(cell.getUTCFullYear(), cell.getUTCMonth() + 1, cell.getUTCDate()), numberFormat: 'yyyy-mm-dd' }
-        : cell === null || typeof cell !== 'object' || cell instanceof CellError ? { value: cell as SandboxCellInput['value'] } : cell;
+        : cell === null || typeof cell !== 'object' || cell instanceof CellError ? { value: cell } : cell;
     if ('value' in c || 'formula' in c) {
       const v = c.value;
       m.setAttr(s, row, col, 'v', v === null || v === '' ? undefined : v);
@@ -278,7 +278,7 @@ export class SandboxWorkbook {
     if (at.c0 + width > MAX_COLS || at.r0 + rows.length > MAX_ROWS) throw new SandboxError('InvalidArgument', 'Sandbox: block extends outside the grid.');
     for (let j = 0; j < width; j++) {
       // Fast path: plain scalars go straight into the column's value array.
-      const scalars: StoredValue[] = new Array(rows.length);
+      const scalars: StoredValue[] = new Array<StoredValue>(rows.length);
       let plain = true;
       for (let i = 0; i < rows.length; i++) {
         const v = rows[i][j];
@@ -296,7 +296,7 @@ export class SandboxWorkbook {
         if (v === undefined || v === null || v === '') continue;
         if (v instanceof Date || v instanceof CellError || typeof v !== 'object') {
           this.setCell(sheet, at.r0 + i, at.c0 + j, v as number | string | boolean | Date | CellError as never);
-        } else this.setCell(sheet, at.r0 + i, at.c0 + j, v as SandboxCellInput);
+        } else this.setCell(sheet, at.r0 + i, at.c0 + j, v);
       }
     }
   }

@@ -37,30 +37,18 @@ const NREASONS = EXCLUSION_REASONS.length;
 export const WHOLE_COLUMN_LABEL = '(whole column)';
 
 /**
- * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff) and checks the options,
- * throwing an Error that names the bad option.
+ * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff). The settings a user chose are
+ * checked once, by the pipeline (src/pipeline/settings.ts); what reaches the engine is assumed valid,
+ * and a value outside the contract is a programming error (RangeError, not a message for users).
  */
 export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const given = Object.fromEntries(Object.entries(options ?? {}).filter(([, v]) => v !== undefined)) as Partial<ScoreOptions>;
   const merged = { ...DEFAULT_OPTIONS, ...given };
   const method = getMethod(merged.method);
-  if (merged.direction !== 'high' && merged.direction !== 'low' && merged.direction !== 'both') {
-    throw new Error(`Unknown direction "${String(merged.direction)}": use high, low or both.`);
-  }
-  if (merged.smallGroups !== 'pool' && merged.smallGroups !== 'skip') {
-    throw new Error(`Unknown small-group policy "${String(merged.smallGroups)}": use pool or skip.`);
-  }
   const cutoff = merged.cutoff ?? method.defaultCutoff;
-  if (typeof cutoff !== 'number' || !Number.isFinite(cutoff) || cutoff < 0) {
-    throw new Error(
-      method.id === 'iqr'
-        ? `The IQR multiplier k must be a number of 0 or more (got ${String(cutoff)}).`
-        : `The cutoff must be a number of 0 or more (got ${String(cutoff)}).`,
-    );
-  }
   const minGroupSize = merged.minGroupSize;
-  if (typeof minGroupSize !== 'number' || !Number.isFinite(minGroupSize) || minGroupSize < 1) {
-    throw new Error(`The minimum group size must be a whole number of 1 or more (got ${String(minGroupSize)}).`);
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+    throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
     method: merged.method,
@@ -236,9 +224,9 @@ function scoreColumn(
   };
 
   // 3. Fit each group on what its method needs.
-  const fits: Fit[] = new Array(nGroups);
-  const scoringSummaries: (Summary | null)[] = new Array(nGroups);
-  const groupFallbacks: Fallback[][] = new Array(nGroups);
+  const fits: Fit[] = new Array<Fit>(nGroups);
+  const scoringSummaries: (Summary | null)[] = new Array<Summary | null>(nGroups);
+  const groupFallbacks: Fallback[][] = new Array<Fallback[]>(nGroups);
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
@@ -466,7 +454,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
   if (needPass) deviations(groupOf, exclusion, y, m0, sc);
   let ordered: Float64Array | null = null;
   if (extreme) ordered = buildOrdered(y, exclusion, groupOf, start, count);
-  const out: Summary[] = new Array(nGroups);
+  const out: Summary[] = new Array<Summary>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     const min = acc[4 * g + 1];
@@ -516,7 +504,7 @@ function buildGroups(
 ): GroupStats[] {
   const nGroups = count.length;
   const { start } = grouping;
-  const groups: GroupStats[] = new Array(nGroups);
+  const groups: GroupStats[] = new Array<GroupStats>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
     groups[g] = lazyGroupStats(

@@ -1,34 +1,24 @@
 /**
  * The pane's in-memory preview: scores the raw cells from `layer.readForPreview` with the same
- * engine the run uses (src/scoring), without writing anything. All scoring imports of the pane
+ * pipeline the run uses (src/pipeline), without writing anything. All scoring imports of the pane
  * go through this file.
  */
-import type { ColumnScores, GroupStats, MethodId, ScoreOptions, ScoreResult } from '../scoring/types.js';
+import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
-import { cutoffForBudget, defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, quantile, sampleStandardDeviation, scoreTable } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, quantile, sampleStandardDeviation } from '../scoring/index.js';
+import { scoreColumns } from '../pipeline/run.js';
+import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
 
 export function methodDefaultCutoff(method: MethodId): number {
   return defaultCutoff(method);
 }
 
-export function scoreOptions(s: RunSettings, override?: Partial<ScoreOptions>): ScoreOptions {
-  return {
-    method: s.method,
-    cutoff: s.cutoff,
-    direction: s.direction,
-    logScale: s.logScale,
-    minGroupSize: s.minGroupSize,
-    smallGroups: s.smallGroups,
-    decimalComma: s.decimalComma,
-    ...override,
-  };
-}
-
-export function scorePreview(data: PreviewData, s: RunSettings, override?: Partial<ScoreOptions>): ScoreResult {
-  return scoreTable(
-    { valueColumns: data.valueColumns, groupColumns: data.groupColumns },
-    scoreOptions(s, override),
-  );
+/**
+ * Score the preview's columns with the pipeline (src/pipeline), the same validation and engine
+ * options the run uses. `override` changes settings for a what-if (the chart's other method).
+ */
+export function scorePreview(data: PreviewData, s: RunSettings, override?: Partial<RunSettings>): ScoreResult {
+  return scoreColumns(data.valueColumns, data.groupColumns, { ...s, ...override });
 }
 
 export interface GroupCount {
@@ -77,18 +67,9 @@ export function summarisePreview(result: ScoreResult, s: RunSettings): PreviewSu
   return { columns, flaggedRows, meaning: describeCutoff(s.method, s.cutoff, s.direction) };
 }
 
-/**
- * The cutoff at which at most `budget` claims of the first value column are flagged, rounded up
- * to 2 decimals (a higher cutoff never flags more, so the budget still holds).
- */
-export function budgetCutoff(result: ScoreResult, budget: number): number | null {
-  const col = result.columns[0];
-  if (!col || !Number.isFinite(budget) || budget < 0) return null;
-  const c = cutoffForBudget(col, budget);
-  if (!Number.isFinite(c)) return null;
-  let r = Math.ceil(c * 100 - 1e-9) / 100;
-  if (r < c) r += 0.01;
-  return r;
+/** The cutoff for a review budget (see src/pipeline/budget.ts). */
+export function budgetCutoff(result: ScoreResult, budget: number): BudgetAnswer {
+  return cutoffForReviewBudget(result, budget);
 }
 
 export interface ChartLine {

@@ -168,7 +168,7 @@ export type Action =
 /** Turns anything thrown into what the pane shows. */
 export function toPaneError(error: unknown): PaneError {
   if (error instanceof TailmarkError) return { code: error.code, message: error.message };
-  const code = typeof error === 'object' && error !== null && 'code' in error ? String((error as { code: unknown }).code) : '';
+  const code = typeof error === 'object' && error !== null && 'code' in error ? String(error.code) : '';
   const message = error instanceof Error ? error.message : String(error);
   // Office.js errors carry a code such as "InvalidSelection" or "AccessDenied".
   return { code: code ? `office:${code}` : 'unexpected', message };
@@ -229,7 +229,9 @@ export function initialSettings(table: DetectedTable, saved: RunSettings | null)
     logScale: DEFAULT_OPTIONS.logScale,
     minGroupSize: DEFAULT_OPTIONS.minGroupSize,
     smallGroups: DEFAULT_OPTIONS.smallGroups,
-    decimalComma: DEFAULT_OPTIONS.decimalComma ?? false,
+    decimal: 'auto',
+    reviewer: null,
+    detailColumns: null,
   };
 }
 

@@ -358,21 +358,20 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
           dispatch({ type: 'notice', area: 'method', text: 'Enter how many claims you can review as a whole number of at least 1, e.g. 25.' });
           return;
         }
-        const scoredRows = scored.columns[0]?.scoredRows ?? 0;
-        if (n >= scoredRows) {
+        const answer = budgetCutoff(scored, n);
+        if (answer.kind === 'all-fit') {
           dispatch({
             type: 'notice',
             area: 'method',
-            text: `Only ${scoredRows.toLocaleString('en')} claims are scored, so a budget of ${n.toLocaleString('en')} would flag every one of them. Enter a smaller number.`,
+            text: `All ${answer.flaggable} claims that any cutoff could flag fit in ${n}, so the budget does not set a cutoff; it stays at ${s.cutoff}.`,
           });
           return;
         }
-        const cut = budgetCutoff(scored, n);
-        if (cut === null) {
+        if (answer.kind === 'none') {
           dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
           return;
         }
-        dispatch({ type: 'budget-applied', cutoff: cut, claims: n });
+        dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
       },
       setCutoffReason: (text) => dispatch({ type: 'cutoff-reason', text }),
       run: () => {

@@ -3,7 +3,8 @@
  * shape (backed by real Excel, or by the sandbox in tests and the preview page) and never calls
  * Office.js itself.
  */
-import type { Direction, MethodId, RawCell, SmallGroupPolicy } from '../scoring/types.js';
+import type { RawCell } from '../scoring/types.js';
+import type { Settings } from '../pipeline/settings.js';
 
 export type ColumnGuess = 'amount' | 'key' | 'id' | 'date' | 'text' | 'empty';
 
@@ -36,19 +37,8 @@ export interface DetectedTable {
   readonly selectedRow?: number | null;
 }
 
-/** What the reviewer chose; saved in workbook.settings and offered again next period. */
-export interface RunSettings {
-  readonly valueColumns: readonly string[];
-  readonly groupColumns: readonly string[];
-  readonly idColumn: string | null;
-  readonly method: MethodId;
-  readonly cutoff: number;
-  readonly direction: Direction;
-  readonly logScale: boolean;
-  readonly minGroupSize: number;
-  readonly smallGroups: SmallGroupPolicy;
-  readonly decimalComma: boolean;
-}
+/** What the reviewer chose; saved in workbook.settings and offered again next period (src/pipeline/settings.ts). */
+export type RunSettings = Settings;
 
 export interface RunProgress {
   readonly phase: 'reading' | 'scoring' | 'writing' | 'highlighting' | 'notes';
@@ -103,27 +93,8 @@ export interface ReviewPrefs {
   readonly detailColumns: readonly string[] | null;
 }
 
-/** Errors the pane shows: a short message that says what to do next. */
-export class TailmarkError extends Error {
-  constructor(
-    readonly code:
-      | 'no-selection'
-      | 'multi-area'
-      | 'no-numbers'
-      | 'protected'
-      | 'changed-during-run'
-      | 'column-limit'
-      | 'name-clash'
-      | 'too-large'
-      | 'cancelled'
-      | 'bad-settings'
-      | 'no-results',
-    message: string,
-  ) {
-    super(message);
-    this.name = 'TailmarkError';
-  }
-}
+/** Errors the pane shows: the pipeline's one user-facing error type. */
+export { TailmarkError } from '../pipeline/errors.js';
 
 export interface WorkbookLayer {
   /** Read the current selection and detect the table around it. */

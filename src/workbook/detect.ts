@@ -210,7 +210,7 @@ interface Sample {
 
 async function readSample(sync: Syncer, sheet: Excel.Worksheet, block: Rect, alsoLoaded: Excel.Range | null): Promise<Sample> {
   const n = Math.min(block.rowCount, SAMPLE_ROWS + 1);
-  const rows: RawCell[][] = new Array(n);
+  const rows: RawCell[][] = new Array<RawCell[]>(n);
   let bytes = 0;
   let cells = 0;
   await readRows(
@@ -224,7 +224,7 @@ async function readSample(sync: Syncer, sheet: Excel.Worksheet, block: Rect, als
         const vr = d.values[r];
         const tr = d.valueTypes![r];
         const fr = d.numberFormat![r];
-        const out: RawCell[] = new Array(vr.length);
+        const out: RawCell[] = new Array<RawCell>(vr.length);
         for (let c = 0; c < vr.length; c++) out[c] = toRawCell(vr[c], tr[c], fr[c]);
         rows[offset + r] = out;
       }

@@ -154,8 +154,9 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
         // Microsoft's pattern ("Work with events using the Excel JavaScript API"): register in one
         // Excel.run, keep the EventHandlerResult, and later remove it in a batch run on its context.
         const result = await run(async (context) => {
-          const r = context.workbook.onSelectionChanged.add(async () => {
+          const r = context.workbook.onSelectionChanged.add(() => {
             handler();
+            return Promise.resolve();
           });
           await context.sync();
           return r;
@@ -178,8 +179,9 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       });
       await new Promise<void>((registered, failed) => {
         run(async (context) => {
-          const result = context.workbook.onSelectionChanged.add(async () => {
+          const result = context.workbook.onSelectionChanged.add(() => {
             handler();
+            return Promise.resolve();
           });
           await context.sync();
           registered();

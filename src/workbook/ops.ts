@@ -2,6 +2,7 @@
  * The other pane actions: remove, mark, listExceptions, selectRow, readForPreview, loadSettings.
  * Each is one Excel.run with a small, fixed number of syncs plus row chunks where it reads data.
  */
+import { validateSettings } from '../pipeline/settings.js';
 import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
 import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, resultHeaders } from '../report/index.js';
@@ -10,7 +11,7 @@ import { cellText, toRawCell } from './cells.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
-import { REVIEW_KEY, SETTINGS_KEY, STATE_KEY, parseReviewPrefs, parseSettings, parseState, type LayerState } from './state.js';
+import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
 import type { Syncer } from './sync.js';
 
 function noResults(): TailmarkError {
@@ -298,7 +299,7 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
     const note = text('note', r);
     if (!anyFlag && status === '' && note === '') continue;
     const rawValue = got.get('value')?.[r];
-    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimalComma ?? false });
+    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimal === 'comma' });
     const group = (settings?.groupColumns ?? []).map((_, i) => text(`group${i}`, r) || '(blank)').join(' / ');
     out.push({
       row: r,
@@ -316,7 +317,7 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
 export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
   const res = await resolveTable(sync, table);
   const want = [
-    ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'amount') })),
+    ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'value') })),
     ...settings.groupColumns.map((name) => ({ name, kind: 'group' as const, column: columnOf(res, name, 'group') })),
   ];
   const cells: RawCell[][] = want.map(() => new Array<RawCell>(res.rows));
@@ -370,21 +371,22 @@ export async function readClaimRow(sync: Syncer, row: number): Promise<ClaimReco
   };
 }
 
+/** The reviewer's name and follow-up columns, as saved with the run settings. */
 export async function loadReviewPrefs(sync: Syncer): Promise<ReviewPrefs> {
-  const se = sync.context.workbook.settings.getItemOrNullObject(REVIEW_KEY);
-  se.load('value');
-  await sync.sync();
-  return parseReviewPrefs(se.isNullObject ? null : se.value);
+  const saved = await loadRunSettings(sync);
+  return { reviewer: saved?.reviewer ?? null, detailColumns: saved?.detailColumns ?? null };
 }
 
+/**
+ * Keep the reviewer's name and follow-up columns with the saved run settings (no run needed), so
+ * the next status change and the next run record them. Needs a workbook with a saved run.
+ */
 export async function saveReviewPrefs(sync: Syncer, prefs: ReviewPrefs): Promise<void> {
-  const reviewer = prefs.reviewer === null ? null : prefs.reviewer.trim().slice(0, 60);
-  const clean: ReviewPrefs = {
-    reviewer: reviewer === '' ? null : reviewer,
-    detailColumns: prefs.detailColumns === null ? null : prefs.detailColumns.slice(0, 40),
-  };
-  await sync.reserve(1024);
-  sync.context.workbook.settings.add(REVIEW_KEY, JSON.stringify(clean));
+  const saved = await loadRunSettings(sync);
+  if (!saved) throw noResults();
+  const next = validateSettings({ ...saved, reviewer: prefs.reviewer === null ? null : prefs.reviewer.trim() || null, detailColumns: prefs.detailColumns });
+  await sync.reserve(2048);
+  sync.context.workbook.settings.add(SETTINGS_KEY, JSON.stringify(next));
   await sync.flush();
 }
 

@@ -6,6 +6,7 @@
 import { LOG_SHEET_NAME } from './notes.js';
 import { NOTES_SHEET_NAME } from '../report/index.js';
 import { TailmarkError, type DetectedTable } from './api.js';
+import { findColumn } from '../pipeline/columns.js';
 import { MAX_COLUMNS, columnLetters, rectAddress } from './a1.js';
 import { cellText } from './cells.js';
 import { detectMemo, spanOf } from './detect.js';
@@ -171,17 +172,15 @@ export async function resolveTable(sync: Syncer, table: DetectedTable): Promise<
 }
 
 /** Sheet column of a user column by header name; TailmarkError naming the column when missing. */
-export function columnOf(res: Resolved, name: string, role: string): number {
-  const c = res.userColumns.find((u) => u.name === name) ?? res.userColumns.find((u) => u.name.toLowerCase() === name.toLowerCase());
-  if (!c) {
-    throw new TailmarkError(
-      'bad-settings',
-      `The ${role} column "${name}" is not in ${rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols })} (columns: ${res.userColumns
-        .map((u) => u.name)
-        .join(', ')}). Choose it again in the pane.`,
-    );
-  }
-  return c.column;
+/** Sheet column of a chosen column, resolved by the pipeline's one header match (src/pipeline/columns.ts). */
+export function columnOf(res: Resolved, name: string, role: 'value' | 'group' | 'id'): number {
+  const where = rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols });
+  return res.userColumns[findColumn(res.userColumns.map((u) => u.name), name, role, where)].column;
+}
+
+/** Header of each column of the data span as the pipeline takes it: null for our own result columns. */
+export function spanHeaders(res: Resolved): (string | null)[] {
+  return Array.from({ length: res.spanCols }, (_, i) => res.userColumns.find((u) => u.column === res.spanStart + i)?.name ?? null);
 }
 
 export function letter(column: number): string {

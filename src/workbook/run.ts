@@ -15,16 +15,14 @@
  *  - if a write sync fails part-way (only possible when the writes need several syncs), the
  *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
  */
-import { scoreTable } from '../scoring/index.js';
+import { runPipeline, validateSettings } from '../pipeline/index.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
   type RawCell,
   type ScoreResult,
-  type SourceTable,
 } from '../scoring/types.js';
 import {
-  buildPlan,
   isTailmarkFormula,
   NOTES_SHEET_NAME,
   PALETTE,
@@ -53,7 +51,7 @@ import {
   toCellValue,
 } from './notes.js';
 import { readRows } from './read.js';
-import { columnOf, protectedError, resolveTable, type Resolved } from './resolve.js';
+import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, isOurHeader, type BlockColumn, type LayerState } from './state.js';
 import type { Syncer } from './sync.js';
 
@@ -76,19 +74,6 @@ export interface RunOutcome {
 
 function cancelled(): TailmarkError {
   return new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
-}
-
-export function validateSettings(settings: RunSettings): void {
-  if (settings.valueColumns.length === 0) throw new TailmarkError('bad-settings', 'Choose at least one amount column to score.');
-  if (!Number.isFinite(settings.cutoff) || settings.cutoff <= 0) {
-    throw new TailmarkError('bad-settings', `The cutoff must be a number above 0 (got ${settings.cutoff}).`);
-  }
-  if (!Number.isInteger(settings.minGroupSize) || settings.minGroupSize < 1) {
-    throw new TailmarkError('bad-settings', `The minimum group size must be a whole number of at least 1 (got ${settings.minGroupSize}).`);
-  }
-  for (const v of settings.valueColumns) {
-    if (settings.groupColumns.includes(v)) throw new TailmarkError('bad-settings', `"${v}" cannot be both an amount column and a group column.`);
-  }
 }
 
 /** Raw cells of the data span, column-major, plus the fingerprint of their values. */
@@ -312,55 +297,41 @@ function columnFormat(col: PlanColumn): string {
   return col.values.some((v) => typeof v === 'string') ? '@' : 'General';
 }
 
-export async function runScoring(sync: Syncer, table: DetectedTable, settings: RunSettings, deps: RunDeps): Promise<RunOutcome> {
-  validateSettings(settings);
+export async function runScoring(sync: Syncer, table: DetectedTable, chosen: RunSettings, deps: RunDeps): Promise<RunOutcome> {
+  const settings = validateSettings(chosen);
   const { signal } = deps;
   if (signal?.aborted) throw cancelled();
   const ctx = sync.context;
 
-  // ---- resolve ----
+  // ---- resolve (the chosen columns are checked before the read) ----
   const res = await resolveTable(sync, table);
   if (res.protected) throw protectedError(res.sheetName);
   if (res.rows < 1) throw new TailmarkError('no-numbers', `The table at ${table.address} has no data rows under its header. Add claims, then run again.`);
-  const valueCols = settings.valueColumns.map((n) => columnOf(res, n, 'amount'));
-  const groupCols = settings.groupColumns.map((n) => columnOf(res, n, 'group'));
-  const idCol = settings.idColumn ? columnOf(res, settings.idColumn, 'claim ID') : null;
+  for (const n of settings.valueColumns) columnOf(res, n, 'value');
+  for (const n of settings.groupColumns) columnOf(res, n, 'group');
+  if (settings.idColumn) columnOf(res, settings.idColumn, 'id');
 
   // ---- read ----
   if (signal?.aborted) throw cancelled();
   const data = await readSpan(sync, res, deps);
   if (signal?.aborted) throw cancelled();
 
-  // ---- score + plan ----
+  // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
-  const at = (c: number) => data.columns[c - res.spanStart];
-  const result = scoreTable(
-    {
-      valueColumns: settings.valueColumns.map((name, i) => ({ name, cells: at(valueCols[i]) })),
-      groupColumns: settings.groupColumns.map((name, i) => ({ name, cells: at(groupCols[i]) })),
-    },
-    {
-      method: settings.method,
-      cutoff: settings.cutoff,
-      direction: settings.direction,
-      logScale: settings.logScale,
-      minGroupSize: settings.minGroupSize,
-      smallGroups: settings.smallGroups,
-      decimalComma: settings.decimalComma,
-    },
-  );
-  const spanHeaders = res.headerCells.slice(0, res.spanCols).map((h, i) => res.userColumns.find((u) => u.column === res.spanStart + i)?.name ?? h);
   const address = rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols });
-  const source: SourceTable = {
-    source: res.tableName ? `${address} (table ${res.tableName})` : address,
-    sheetName: res.sheetName,
-    headers: spanHeaders,
-    columns: data.columns,
-    rowCount: res.rows,
-    headerRow: res.headerRow + 1,
-    firstColumn: res.spanStart,
-  };
-  const plan = buildPlan(result, { source: source.source, when: deps.now(), table: source, idColumn: settings.idColumn });
+  const { result, plan, columns } = runPipeline(
+    {
+      source: res.tableName ? `${address} (table ${res.tableName})` : address,
+      sheetName: res.sheetName,
+      headers: spanHeaders(res),
+      columns: data.columns,
+      rowCount: res.rows,
+      headerRow: res.headerRow + 1,
+      firstColumn: res.spanStart,
+    },
+    settings,
+    { when: deps.now() },
+  );
   deps.onProgress?.({ phase: 'scoring', fraction: 1 });
   if (signal?.aborted) throw cancelled();
 
@@ -434,7 +405,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
   const statusValues: PlanCell[] = plan.columns[statusIdx].values.slice();
   const noteValues: PlanCell[] = plan.columns[noteIdx].values.slice();
   let marksKept = 0;
-  const ids = idCol !== null ? at(idCol).map(cellText) : null;
+  const ids = columns.id !== null ? data.columns[columns.id].map(cellText) : null;
   const byId = new Map<string, number>();
   const dupIds = new Set<string>();
   if (ids) {
@@ -495,8 +466,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, settings: R
 
 /** Queue the values of rows [r0, r0+n) of every plan column; returns bytes queued. */
 function chunkArrays(values: readonly (readonly PlanCell[])[], formats: readonly string[], i: number, r0: number, n: number) {
-  const v: (string | number | boolean)[][] = new Array(n);
-  const f: string[][] = new Array(n);
+  const v: (string | number | boolean)[][] = new Array<(string | number | boolean)[]>(n);
+  const f: string[][] = new Array<string[]>(n);
   const col = values[i];
   const fmt = formats[i];
   for (let r = 0; r < n; r++) {

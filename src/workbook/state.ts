@@ -3,14 +3,12 @@
  * period) and where our additions sit (so a re-run updates them in place and remove() deletes only
  * them). Values are stored as JSON text and validated on the way back in.
  */
-import { DIRECTIONS, METHOD_IDS, SMALL_GROUP_POLICIES, type Direction, type MethodId, type SmallGroupPolicy } from '../scoring/types.js';
+import { settingsFromSaved } from '../pipeline/settings.js';
 import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../report/index.js';
-import type { ReviewPrefs, RunSettings } from './api.js';
+import type { RunSettings } from './api.js';
 
 export const SETTINGS_KEY = 'tailmark.settings';
 export const STATE_KEY = 'tailmark.state';
-/** The reviewer's name or initials and the follow-up view's columns (ReviewPrefs). */
-export const REVIEW_KEY = 'tailmark.review';
 
 /** One of our result columns on a plain range. */
 export interface BlockColumn {
@@ -39,9 +37,6 @@ export interface LayerState {
   readonly notesSheet: string;
 }
 
-const METHODS: readonly MethodId[] = METHOD_IDS;
-const POLICIES: readonly SmallGroupPolicy[] = SMALL_GROUP_POLICIES;
-
 function parseJson(value: unknown): unknown {
   if (typeof value !== 'string') return value;
   try {
@@ -55,42 +50,9 @@ function isRecord(x: unknown): x is Record<string, unknown> {
   return typeof x === 'object' && x !== null && !Array.isArray(x);
 }
 
-const strings = (x: unknown): x is string[] => Array.isArray(x) && x.every((s) => typeof s === 'string');
-
-/** RunSettings from a stored setting value, or null when absent or malformed. */
+/** RunSettings from a stored setting value, or null when absent or malformed (the pipeline's one validation). */
 export function parseSettings(value: unknown): RunSettings | null {
-  const o = parseJson(value);
-  if (!isRecord(o)) return null;
-  const { valueColumns, groupColumns, idColumn, method, cutoff, direction, logScale, minGroupSize, smallGroups, decimalComma } = o;
-  if (!strings(valueColumns) || valueColumns.length === 0 || !strings(groupColumns)) return null;
-  if (!(idColumn === null || typeof idColumn === 'string')) return null;
-  if (typeof method !== 'string' || !METHODS.includes(method as MethodId)) return null;
-  if (typeof cutoff !== 'number' || !Number.isFinite(cutoff) || cutoff <= 0) return null;
-  if (typeof direction !== 'string' || !DIRECTIONS.includes(direction as Direction)) return null;
-  if (typeof smallGroups !== 'string' || !POLICIES.includes(smallGroups as SmallGroupPolicy)) return null;
-  if (typeof logScale !== 'boolean' || typeof decimalComma !== 'boolean') return null;
-  if (typeof minGroupSize !== 'number' || !Number.isInteger(minGroupSize) || minGroupSize < 1) return null;
-  return {
-    valueColumns,
-    groupColumns,
-    idColumn,
-    method: method as MethodId,
-    cutoff,
-    direction: direction as Direction,
-    logScale,
-    minGroupSize,
-    smallGroups: smallGroups as SmallGroupPolicy,
-    decimalComma,
-  };
-}
-
-/** ReviewPrefs from a stored setting value; absent or malformed parts read as "not chosen yet". */
-export function parseReviewPrefs(value: unknown): ReviewPrefs {
-  const o = parseJson(value);
-  if (!isRecord(o)) return { reviewer: null, detailColumns: null };
-  const reviewer = typeof o.reviewer === 'string' && o.reviewer.trim() !== '' ? o.reviewer.trim() : null;
-  const detailColumns = strings(o.detailColumns) ? o.detailColumns : null;
-  return { reviewer, detailColumns };
+  return settingsFromSaved(value);
 }
 
 export function parseState(value: unknown): LayerState | null {

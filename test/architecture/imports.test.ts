@@ -15,14 +15,15 @@ const allowed: Record<string, readonly string[]> = {
   demo: ['scoring'],
   sandbox: [],
   report: ['scoring'],
-  workbook: ['report', 'scoring'],
-  files: ['report', 'scoring', 'demo'],
-  taskpane: ['workbook', 'report', 'scoring'],
-  preview: ['taskpane', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
-  cli: ['files', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
+  pipeline: ['report', 'scoring'],
+  workbook: ['pipeline', 'report', 'scoring'],
+  files: ['pipeline', 'report', 'scoring', 'demo'],
+  taskpane: ['pipeline', 'workbook', 'report', 'scoring'],
+  preview: ['taskpane', 'pipeline', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
+  cli: ['files', 'pipeline', 'workbook', 'report', 'scoring', 'sandbox', 'demo'],
 };
 /** Layers that must stay free of Node built-ins (pure, or shipped to the browser). */
-const noNode = ['scoring', 'demo', 'sandbox', 'report', 'workbook', 'taskpane', 'preview'];
+const noNode = ['scoring', 'demo', 'sandbox', 'report', 'pipeline', 'workbook', 'taskpane', 'preview'];
 
 function walk(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {
@@ -76,5 +77,35 @@ describe('import direction (ARCHITECTURE.md)', () => {
       const uses = code.match(/\b(Excel|Office)\.(run|context|onReady|EventType)\b/g) ?? [];
       expect(uses, `${rel} calls Office.js directly`).toEqual([]);
     }
+  });
+
+  it('every host runs through the pipeline: only src/pipeline calls the engine or builds a plan', () => {
+    // The run (scoreTable), the plan (buildPlan) and the settings-to-engine mapping (resolveOptions)
+    // are the pipeline's; a host that called them itself would be a second orchestration.
+    const engineCalls = /\b(scoreTable|buildPlan|resolveOptions)\b/;
+    const offenders: string[] = [];
+    for (const file of files) {
+      const rel = relative(src, file);
+      const layer = rel.split(sep)[0];
+      if (layer === 'pipeline' || layer === 'scoring' || layer === 'report') continue;
+      const code = readFileSync(file, 'utf8').replace(/\/\*[\s\S]*?\*\/|\/\/.*$/gm, '');
+      if (engineCalls.test(code)) offenders.push(rel);
+    }
+    expect(offenders).toEqual([]);
+    // Within scoring and report, only their own definitions and re-exports name them.
+    const pipelineRun = readFileSync(join(src, 'pipeline', 'run.ts'), 'utf8');
+    expect(pipelineRun).toMatch(/scoreTable\(/);
+    expect(pipelineRun).toMatch(/buildPlan\(/);
+  });
+
+  it('one user-facing error type: no other class extends Error with a message for the user', () => {
+    const classes: string[] = [];
+    for (const file of files) {
+      const rel = relative(src, file);
+      if (rel.split(sep)[0] === 'sandbox') continue; // stands in for Excel: its errors are Excel's
+      const code = readFileSync(file, 'utf8');
+      for (const m of code.matchAll(/class\s+(\w+)\s+extends\s+Error\b/g)) classes.push(`${rel}: ${m[1]}`);
+    }
+    expect(classes).toEqual([join('pipeline', 'errors.ts') + ': TailmarkError']);
   });
 });

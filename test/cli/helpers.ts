@@ -21,6 +21,19 @@ export function sha256(path: string): string {
   return createHash('sha256').update(readFileSync(path)).digest('hex');
 }
 
+/** A sheet read by SheetJS as cells by A1 address (SheetJS types a sheet's entries as `any`); a missing cell reads as undefined. */
+export type SheetCells = Record<string, XLSX.CellObject>;
+export function cellsOf(ws: XLSX.WorkSheet): SheetCells {
+  return ws;
+}
+
+/** The part of SheetJS's bundled CFB (zip) reader used here; SheetJS types `XLSX.CFB` as `any`. */
+interface CfbReader {
+  read(data: Buffer, options: { type: 'buffer' }): unknown;
+  find(container: unknown, path: string): { content: Uint8Array } | null;
+}
+const CFB = XLSX.CFB as CfbReader;
+
 /** Read a workbook with SheetJS (independent of ExcelJS, which Tailmark writes with). */
 export function readBook(path: string): XLSX.WorkBook {
   return XLSX.read(readFileSync(path), { type: 'buffer', cellNF: true, cellStyles: true, cellFormula: true, cellDates: false });
@@ -28,10 +41,10 @@ export function readBook(path: string): XLSX.WorkBook {
 
 /** The raw XML of a part of an .xlsx (zip read by SheetJS's bundled CFB reader). */
 export function zipPart(path: string, part: string): string {
-  const cfb = XLSX.CFB.read(readFileSync(path), { type: 'buffer' });
-  const entry = XLSX.CFB.find(cfb, part);
+  const cfb = CFB.read(readFileSync(path), { type: 'buffer' });
+  const entry = CFB.find(cfb, part);
   if (!entry) throw new Error(`${part} not found in ${path}`);
-  return Buffer.from(entry.content as Uint8Array).toString('utf8');
+  return Buffer.from(entry.content).toString('utf8');
 }
 
 /** Map sheet name -> part path, from workbook.xml and its relationships. */

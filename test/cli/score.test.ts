@@ -7,7 +7,7 @@ import * as XLSX from 'xlsx';
 import { demoClaims, DEMO_GROUPS } from '../../src/demo/claims.js';
 import { writeDemoWorkbook } from '../../src/files/demo.js';
 import { CAUTION, REVIEW_STATUSES } from '../../src/report/index.js';
-import { amountOf, decodeXml, medianOf, readBook, run, sha256, sheetPart, zipPart } from './helpers.js';
+import { amountOf, cellsOf, decodeXml, medianOf, readBook, run, sha256, sheetPart, zipPart } from './helpers.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'tailmark-cli-'));
 const input = join(dir, 'claims.xlsx');
@@ -33,9 +33,10 @@ describe('tailmark score on the demo workbook', () => {
   });
 
   it('keeps every input cell: value, type, formula and number format (read back with SheetJS)', () => {
-    const a = readBook(input).Sheets.Claims;
-    const b = readBook(scored).Sheets.Claims;
-    const range = XLSX.utils.decode_range(a['!ref']!);
+    const inSheet = readBook(input).Sheets.Claims;
+    const a = cellsOf(inSheet);
+    const b = cellsOf(readBook(scored).Sheets.Claims);
+    const range = XLSX.utils.decode_range(inSheet['!ref']!);
     let compared = 0;
     for (let r = range.s.r; r <= range.e.r; r++) {
       for (let c = range.s.c; c <= range.e.c; c++) {
@@ -173,7 +174,7 @@ describe('tailmark score on the demo workbook', () => {
     const again = join(dir, 'reviewed-again.xlsx');
     const r = await run('score', reviewed, ...baseArgs, '--out', again);
     expect(r.code).toBe(0);
-    const sheet = readBook(again).Sheets.Claims;
+    const sheet = cellsOf(readBook(again).Sheets.Claims);
     expect(sheet[`K${marked}`].v).toBe('Cleared');
     expect(sheet[`L${marked}`].v).toBe('Receipt checked');
     expect(sheet.M1).toBeUndefined(); // no second set of columns
@@ -208,15 +209,15 @@ describe('tailmark score keeps the user own formulas, formats and rules', () => 
     expect(r.err).toBe('');
     expect(r.code).toBe(0);
 
-    const a = readBook(p).Sheets['Q1 claims'];
-    const b = readBook(out).Sheets['Q1 claims'];
+    const a = cellsOf(readBook(p).Sheets['Q1 claims']);
+    const b = cellsOf(readBook(out).Sheets['Q1 claims']);
     for (const addr of ['A1', 'A2', 'C2', 'C11', 'D2', 'D11', 'F3']) {
       expect({ t: b[addr].t, v: b[addr].v, f: b[addr].f, z: b[addr].z }, addr).toEqual({ t: a[addr].t, v: a[addr].v, f: a[addr].f, z: a[addr].z });
     }
     expect(b.D11.f).toBe('C11*2');
     const outBook = readBook(out);
     expect(outBook.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)']);
-    expect(outBook.Sheets['Tailmark notes'].A1.v).toBe('my own sheet that happens to share the name');
+    expect(cellsOf(outBook.Sheets['Tailmark notes']).A1.v).toBe('my own sheet that happens to share the name');
     // Column E is empty but F has the user's note, so results start in G.
     expect(b.G1.v).toBe('Amount · tail score');
     expect(b.E1).toBeUndefined();
@@ -243,7 +244,7 @@ describe('tailmark score on CSV', () => {
     expect(r.code).toBe(0);
     const book = readBook(out);
     expect(book.SheetNames).toEqual(['claims', 'Tailmark notes']);
-    const sheet = book.Sheets.claims;
+    const sheet = cellsOf(book.Sheets.claims);
     expect(sheet.C2.v).toBe('1,020.00');
     expect(sheet.C3.v).toBe(990);
     expect(sheet.D2.t).toBe('s');
@@ -264,11 +265,19 @@ describe('tailmark score with --decimal-comma on a semicolon CSV', () => {
     writeFileSync(p, ['Team;Amount', ...amounts.map((a) => `W;${a}`)].join('\n'));
     const r = await run('score', p, '--value', 'Amount', '--group', 'Team', '--decimal-comma', '--json');
     expect(r.err).toBe('');
-    const j = JSON.parse(r.out);
-    expect(j.rows.map((x: { value: number }) => x.value)).toEqual([100, 101.5, 99, 100.5, 98.75, 102, 100.25, 99.5, 1234.5]);
+    const j = JSON.parse(r.out) as JsonOutput;
+    expect(j.rows.map((x) => x.value)).toEqual([100, 101.5, 99, 100.5, 98.75, 102, 100.25, 99.5, 1234.5]);
     expect(j.rows[8].flagged).toBe(true);
   });
 });
+
+/** What `tailmark score --json` prints (the fields these tests read). */
+interface JsonOutput {
+  method: string;
+  cutoff: number;
+  rows: { row: number; group: string; value: number | null; score: number | null; flagged: boolean }[];
+  groups: { key: string; n: number; center: number | null; flagged: number }[];
+}
 
 describe('--json', () => {
   it('prints method, cutoff, rows and groups; writes no workbook unless --out is given', async () => {
@@ -277,19 +286,19 @@ describe('--json', () => {
     const r = await run('score', copy, ...baseArgs, '--json');
     expect(r.code).toBe(0);
     expect(existsSync(join(dir, 'json-in-tailmark.xlsx'))).toBe(false);
-    const j = JSON.parse(r.out);
+    const j = JSON.parse(r.out) as JsonOutput;
     expect(j.method).toBe('robust');
     expect(j.cutoff).toBe(3.5);
     expect(j.rows).toHaveLength(600);
     for (const k of ['row', 'group', 'value', 'score', 'flagged']) expect(j.rows[0]).toHaveProperty(k);
     expect(j.rows[0].row).toBe(1);
-    const receipt = j.rows.find((x: { value: unknown; score: unknown; row: number }) => x.value === null && x.score === null);
+    const receipt = j.rows.find((x) => x.value === null && x.score === null);
     expect(receipt).toBeDefined();
-    const g = j.groups.find((x: { key: string }) => x.key === `${DEMO_GROUPS.masking.costCentre} / ${DEMO_GROUPS.masking.category}`);
+    const g = j.groups.find((x) => x.key === `${DEMO_GROUPS.masking.costCentre} / ${DEMO_GROUPS.masking.category}`);
     expect(g).toMatchObject({ n: 23, flagged: 3 });
-    expect(g.center).toBe(144); // median of the 23 lodging amounts (hand-set, see src/demo/claims.ts)
+    expect(g?.center).toBe(144); // median of the 23 lodging amounts (hand-set, see src/demo/claims.ts)
     for (const k of ['key', 'n', 'center', 'scale', 'lower', 'upper', 'flagged']) expect(g).toHaveProperty(k);
-    const flaggedRows = j.rows.filter((x: { flagged: boolean }) => x.flagged);
-    expect(flaggedRows.every((x: { score: number }) => Math.abs(x.score) > 3.5)).toBe(true);
+    const flaggedRows = j.rows.filter((x) => x.flagged);
+    expect(flaggedRows.every((x) => x.score !== null && Math.abs(x.score) > 3.5)).toBe(true);
   });
 });

@@ -6,7 +6,7 @@ import ExcelJS from 'exceljs';
 import * as XLSX from 'xlsx';
 import { demoClaims } from '../../src/demo/claims.js';
 import { writeDemoWorkbook } from '../../src/files/demo.js';
-import { decodeXml, readBook, run, sha256, sheetPart, zipPart } from './helpers.js';
+import { cellsOf, decodeXml, readBook, run, sha256, sheetPart, zipPart } from './helpers.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'tailmark-stream-cli-'));
 const input = join(dir, 'claims.xlsx');
@@ -140,20 +140,21 @@ describe('large-file mode keeps the user own formulas, formats, rules and sheets
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Not carried over from the input: sheet "Q1 claims": 1 hyperlink target\(s\) \(the link text is kept\)/);
 
-    const a = readBook(p).Sheets['Q1 claims'];
-    const b = readBook(out).Sheets['Q1 claims'];
+    const a = cellsOf(readBook(p).Sheets['Q1 claims']);
+    const outSheet = readBook(out).Sheets['Q1 claims'];
+    const b = cellsOf(outSheet);
     for (const addr of ['A1', 'A2', 'B2', 'C2', 'C11', 'D2', 'D3', 'D11', 'F3', 'F5']) {
       expect({ t: b[addr].t, v: b[addr].v, f: b[addr].f, z: b[addr].z }, addr).toEqual({ t: a[addr].t, v: a[addr].v, f: a[addr].f, z: a[addr].z });
     }
     expect(b.D11.f).toBe('C11*2'); // the shared formula, written out for its own cell
     const book = readBook(out);
     expect(book.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)']);
-    expect(book.Sheets['Tailmark notes'].A1.v).toBe('my own sheet that happens to share the name');
+    expect(cellsOf(book.Sheets['Tailmark notes']).A1.v).toBe('my own sheet that happens to share the name');
     const notes = XLSX.utils.sheet_to_json<unknown[]>(book.Sheets['Tailmark notes (2)'], { header: 1 }).flat().join('\n');
     expect(notes).toMatch(/Not carried over \(found in the input\): sheet "Q1 claims": 1 hyperlink target\(s\)/);
     // Results skip column F (the user's note) and start in G... F5:G5 is merged, so G is not free either.
     expect(b.H1.v).toBe('Amount · tail score');
-    expect(b['!merges']?.map((m) => XLSX.utils.encode_range(m))).toEqual(['F5:G5']);
+    expect(outSheet['!merges']?.map((m) => XLSX.utils.encode_range(m))).toEqual(['F5:G5']);
     const xml = sheetXml(out, 'Q1 claims');
     expect(xml).toContain('<formula>$C2>50</formula>');
     expect(xml).toContain('ISTEXT("tailmark:open")');
@@ -183,7 +184,7 @@ describe('large-file mode keeps the user own formulas, formats, rules and sheets
     const again = join(dir, 'reviewed-again.xlsx');
     const r = await run('score', reviewed, ...baseArgs, '--out', again, '--stream');
     expect(r.code, r.err).toBe(0);
-    const sheet = readBook(again).Sheets.Claims;
+    const sheet = cellsOf(readBook(again).Sheets.Claims);
     expect(sheet[`K${marked}`].v).toBe('Asked claimant');
     expect(sheet[`L${marked}`].v).toBe('Email sent');
     expect(sheet.M1).toBeUndefined();

@@ -2,8 +2,9 @@ import { describe, expect, it } from 'vitest';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { CsvSyntaxError, detectDelimiter, parseCsv } from '../../src/files/csv.js';
+import { detectDelimiter, parseCsv } from '../../src/files/csv.js';
 import { readTable } from '../../src/files/read.js';
+import { TailmarkError } from '../../src/pipeline/errors.js';
 
 // Expected records follow RFC 4180 section 2 (rules 1-7), written out by hand.
 describe('parseCsv (RFC 4180)', () => {
@@ -59,11 +60,11 @@ describe('parseCsv (RFC 4180)', () => {
 
   it('throws on a quoted field that never closes, naming the line it opened on', () => {
     const text = 'a,b\r\nc,"open\r\nstill open';
-    expect(() => parseCsv(text)).toThrow(CsvSyntaxError);
+    expect(() => parseCsv(text)).toThrow(TailmarkError);
     try {
       parseCsv(text);
     } catch (e) {
-      expect((e as CsvSyntaxError).line).toBe(2);
+      expect((e as TailmarkError).line).toBe(2);
     }
   });
 

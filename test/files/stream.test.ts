@@ -4,10 +4,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import ExcelJS from 'exceljs';
-import { CsvSyntaxError, parseCsv } from '../../src/files/csv.js';
+import { parseCsv } from '../../src/files/csv.js';
 import { CsvChunkParser, forEachCsvRecord } from '../../src/files/csv-stream.js';
 import { readTable } from '../../src/files/read.js';
 import { readTableStreaming } from '../../src/files/stream-read.js';
+import { TailmarkError } from '../../src/pipeline/errors.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'tailmark-stream-'));
 
@@ -71,8 +72,8 @@ describe('CsvChunkParser', () => {
         chunked(text, [cut]);
         expect.unreachable();
       } catch (e) {
-        expect(e).toBeInstanceOf(CsvSyntaxError);
-        expect((e as CsvSyntaxError).line).toBe(3);
+        expect(e).toBeInstanceOf(TailmarkError);
+        expect((e as TailmarkError).line).toBe(3);
       }
     }
   });

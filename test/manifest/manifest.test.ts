@@ -171,7 +171,7 @@ describe('manifest conversion (office-addin-manifest-converter, offline) and JSO
   });
   afterAll(() => rmSync(out, { recursive: true, force: true }));
 
-  it('validates against the v1.23 schema shipped in @microsoft/app-manifest', async () => {
+  it('validates against the v1.23 schema shipped in @microsoft/app-manifest', () => {
     // The package's own validator needs fs-extra, which it does not depend on; so validate with the
     // same ajv (draft-04) + ajv-formats it uses, resolved from the package, against its schema file.
     const fromRoot = createRequire(import.meta.url);

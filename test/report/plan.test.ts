@@ -15,7 +15,7 @@ import type { Plan, PlanCell } from '../../src/report/types.js';
 
 // A small invented table: group "=G1" (a label that looks like a formula) of 10 claims with one
 // large amount, and group "B" of 3 claims (below the minimum group size of 8).
-const groupCells: RawCell[] = [...Array(10).fill('=G1'), 'B', 'B', 'B', '=G1'];
+const groupCells: RawCell[] = [...new Array<RawCell>(10).fill('=G1'), 'B', 'B', 'B', '=G1'];
 const amountCells: RawCell[] = [10, 11, 12, 13, 14, 15, 16, 17, 18, 500, 20, 21, 22, null];
 const table: SourceTable = {
   source: 'invented.xlsx, sheet Claims, B2:C16',

@@ -34,7 +34,7 @@ describe('exceljs bridge', () => {
     const sb = sample();
     const buf = await sandboxToExcelJs(sb).xlsx.writeBuffer();
     const wb = new ExcelJS.Workbook();
-    await wb.xlsx.load(buf as ArrayBuffer);
+    await wb.xlsx.load(buf);
     const back = sandboxFromExcelJs(wb);
     expect(back.importNotes).toEqual([]);
     const a = sb.snapshot();
@@ -46,8 +46,8 @@ describe('exceljs bridge', () => {
     expect(back.validationAt('Claims', 3, 5)).toEqual(['open', 'cleared']);
 
     // Independent reader: SheetJS sees the same cells.
-    const x = XLSX.read(new Uint8Array(buf as ArrayBuffer), { type: 'array', cellFormula: true });
-    const s = x.Sheets.Claims;
+    const x = XLSX.read(new Uint8Array(buf), { type: 'array', cellFormula: true });
+    const s = x.Sheets.Claims as Record<string, XLSX.CellObject>;
     expect(s.A2.v).toBe('C-001');
     expect(s.C2.v).toBe(120.5);
     expect(s.C3.v).toBe('1,234.50');

@@ -308,7 +308,8 @@ describe('more members', () => {
     await sb.run(async (context) => {
       const r = context.workbook.worksheets.getItem('S').getRange('A1:C5').load('values');
       await context.sync();
-      r.values = r.values;
+      const read = r.values;
+      r.values = read; // write back exactly what was read
       await context.sync();
     });
     expect(sb.stats.runs).toBe(1);

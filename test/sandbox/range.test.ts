@@ -74,7 +74,7 @@ describe('values, types, formulas', () => {
       await context.sync();
       ws.getRange('A1').values = [[Number.NaN]];
       expect(await codeOf(context.sync())).toBe('InvalidArgument');
-      ws.getRange('A1').values = [[new Date() as unknown as string]];
+      ws.getRange('A1').values = [[new Date()]];
       expect(await codeOf(context.sync())).toBe('InvalidArgument');
     });
     expect(sb.valuesOf('S', 'A1:D2')).toEqual([['a', 'B', 7, 7], ['', '', 7, 7]]);
@@ -148,7 +148,7 @@ describe('addresses and navigation', () => {
     let fired = 0;
     let handler: { remove(): void } | null = null;
     await sb.run(async (context) => {
-      handler = context.workbook.onSelectionChanged.add(async () => { fired++; });
+      handler = context.workbook.onSelectionChanged.add(() => { fired++; return Promise.resolve(); });
       await context.sync();
     });
     expect(sb.selectionListenerCount).toBe(1);

@@ -75,8 +75,9 @@ describe('load + sync strictness', () => {
 
   it('Excel.run syncs work left queued at the end of the batch', async () => {
     const sb = book();
-    await sb.run(async (context) => {
+    await sb.run((context) => {
       context.workbook.worksheets.getItem('Claims').getRange('E1').values = [['x']];
+      return Promise.resolve();
     });
     expect(sb.valueAt('Claims', 0, 4)).toBe('x');
   });
@@ -84,8 +85,9 @@ describe('load + sync strictness', () => {
   it('objects cannot queue work after their run finished', async () => {
     const sb = book();
     let leaked: Excel.Range | null = null;
-    await sb.run(async (context) => {
+    await sb.run((context) => {
       leaked = context.workbook.worksheets.getItem('Claims').getRange('A1');
+      return Promise.resolve();
     });
     expect(() => { leaked!.values = [[1]]; }).toThrow(/finished/);
   });

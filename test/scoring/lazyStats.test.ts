@@ -218,7 +218,7 @@ describe('lazy fields behave as ordinary own fields', () => {
   it('the whole column (`pooled`) too, and `pooled` itself is an own enumerable field of ColumnScores', () => {
     check(col.pooled);
     expect(Object.keys(col)).toContain('pooled');
-    expect(JSON.parse(JSON.stringify({ pooled: col.pooled })).pooled.n).toBe(11);
+    expect((JSON.parse(JSON.stringify({ pooled: col.pooled })) as { pooled: { n: number } }).pooled.n).toBe(11);
     expect(col.pooled).toBe(col.pooled); // built once, then cached
   });
   it("a small group's pooled rows are scored against the whole column's median and scaled MAD", () => {

@@ -4,6 +4,7 @@ import { scoreTable } from '../../src/scoring/index.js';
 import type { RawCell } from '../../src/scoring/types.js';
 import * as ss from 'simple-statistics';
 import { budgetCutoff, chartFor, claimContext, followColumn, scorePreview, summarisePreview } from '../../src/taskpane/engine.js';
+import { validateSettings } from '../../src/pipeline/settings.js';
 import { errorText } from '../../src/taskpane/messages.js';
 import {
   guessGroupColumns,
@@ -251,7 +252,9 @@ describe('in-memory preview', () => {
     logScale: false,
     minGroupSize: 8,
     smallGroups: 'pool',
-    decimalComma: false,
+    decimal: 'auto',
+    reviewer: null,
+    detailColumns: null,
   };
 
   it('counts the same flagged rows as scoring the table directly', () => {
@@ -265,9 +268,10 @@ describe('in-memory preview', () => {
   it('finds a cutoff that keeps within a review budget', () => {
     const scored = scorePreview(data, settings);
     for (const budget of [0, 5, 12]) {
-      const cut = budgetCutoff(scored, budget);
-      expect(cut).not.toBeNull();
-      const at = scoreTable(data, { method: 'robust', cutoff: cut!, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' });
+      const answer = budgetCutoff(scored, budget);
+      expect(answer.kind).toBe('cutoff');
+      const cut = answer.kind === 'cutoff' ? answer.cutoff : Number.NaN;
+      const at = scoreTable(data, { method: 'robust', cutoff: cut, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' });
       expect(at.columns[0].flaggedRows).toBeLessThanOrEqual(budget);
     }
   });
@@ -296,6 +300,22 @@ describe('in-memory preview', () => {
     expect(classic.centreName).toBe('mean');
     expect(classic.centre).toBeCloseTo(ss.mean(peers), 9);
     expect(classic.spread).toBeCloseTo(ss.sampleStandardDeviation(peers), 9);
+  });
+
+  it('issue 7: a budget of at least the number of claims never gives cutoff 0 (which the run refuses)', () => {
+    // Before: budgetCutoff returned 0 here, the preview flagged nearly every claim and Run refused
+    // "cutoff must be above 0". Now the budget does not bind and says so; any cutoff it gives is valid.
+    const scored = scorePreview(data, settings);
+    const rows = scored.rowCount;
+    for (const budget of [rows, rows + 1, 10 * rows]) {
+      const answer = budgetCutoff(scored, budget);
+      expect(answer.kind).toBe('all-fit');
+      if (answer.kind === 'all-fit') expect(answer.flaggable).toBeLessThanOrEqual(rows);
+    }
+    for (const budget of [0, 1, 5, 12, 50, 200]) {
+      const answer = budgetCutoff(scored, budget);
+      if (answer.kind === 'cutoff') expect(validateSettings({ ...settings, cutoff: answer.cutoff }).cutoff).toBeGreaterThan(0);
+    }
   });
 
   it('shows masking in the planted group: robust z flags the three large claims, classic z fewer', () => {

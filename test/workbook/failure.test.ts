@@ -21,7 +21,7 @@ function failingRunner(sb: SandboxWorkbook, failAt: number): ExcelRunner {
         } finally {
           sb.setProtected('Claims', false);
         }
-      }) as typeof context.sync;
+      });
       return batch(context);
     });
 }

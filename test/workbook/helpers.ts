@@ -46,5 +46,7 @@ export const SETTINGS: RunSettings = {
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
-  decimalComma: false,
+  decimal: 'auto',
+  reviewer: null,
+  detailColumns: null,
 };

@@ -41,11 +41,21 @@ describe('tailmark sandbox', () => {
     const r = await capture([input, '--group', 'Cost centre', '--group', 'Category', '--id', 'Claim ID', '--rerun', '--out', out, '--json']);
     expect(r.err).toBe('');
     expect(r.code).toBe(0);
-    const j = JSON.parse(r.out);
+    const j = JSON.parse(r.out) as {
+      syncs: number;
+      maxRequestBytes: number;
+      userCellsChanged: number;
+      resultColumns: { column: string }[];
+      highlightedRows: number;
+      flagged: number;
+      notesSheet: string;
+      reviewMarksKept: boolean;
+      reviewMarks: { marked: number };
+    };
     expect(j.syncs).toBeLessThanOrEqual(8);
     expect(j.maxRequestBytes).toBeLessThan(5 * 1024 * 1024);
     expect(j.userCellsChanged).toBe(0);
-    expect(j.resultColumns.map((c: { column: string }) => c.column)).toEqual(['F', 'G', 'H', 'I', 'J']);
+    expect(j.resultColumns.map((c) => c.column)).toEqual(['F', 'G', 'H', 'I', 'J']);
     expect(j.highlightedRows).toBe(j.flagged);
     expect(j.flagged).toBeGreaterThan(0);
     expect(j.notesSheet).toBe('Tailmark notes');
@@ -67,7 +77,7 @@ describe('tailmark sandbox', () => {
     expect(badOpt.err).toBe('tailmark: unknown option --colour for "sandbox" (see tailmark --help)\n');
     const badCol = await capture([input, '--value', 'Amnt']);
     expect(badCol.code).toBe(2);
-    expect(badCol.err).toMatch(/no value column "Amnt"/);
+    expect(badCol.err).toMatch(/value column "Amnt" not found/);
     const exists = await capture([input, '--out', input]);
     expect(exists.code).toBe(2);
     expect(existsSync(input)).toBe(true);

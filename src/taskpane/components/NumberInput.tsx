@@ -1,5 +1,5 @@
 import { Input, type InputProps } from '@fluentui/react-components';
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 
 /**
  * A number box that lets the reviewer type freely ("3.", "") and reports only valid numbers.
@@ -13,10 +13,13 @@ export function NumberInput({
 }: Omit<InputProps, 'value' | 'onChange' | 'type'> & { value: number; onValue: (n: number) => void; valid: (n: number) => boolean }) {
   const [text, setText] = useState(String(value));
   const [focused, setFocused] = useState(false);
-  useEffect(() => {
+  // When the number changes from outside, show it, unless the box already shows it while being typed in
+  // (React's "adjust state when a prop changes" pattern).
+  const [shown, setShown] = useState(value);
+  if (!Object.is(value, shown)) {
+    setShown(value);
     if (!focused || Number(text) !== value) setText(String(value));
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [value]);
+  }
   return (
     <Input
       {...rest}

@@ -1,0 +1,79 @@
+/**
+ * runPipeline: settings -> resolve columns -> parse -> group -> score -> plan, the one run every
+ * host calls (the workbook layer, the batch command, the pane's live preview, the preview page).
+ * Pure: hosts read their source into a `SourceTable` and hand the plan to their sink.
+ */
+import { scoreTable } from '../scoring/scoreTable.js';
+import { EXCLUSION_LABELS, EXCLUSION_REASONS, type RawCell, type ScoreResult, type SourceTable } from '../scoring/types.js';
+import { buildPlan } from '../report/plan.js';
+import type { Plan } from '../report/types.js';
+import { resolveColumns, type ResolvedColumns } from './columns.js';
+import { TailmarkError } from './errors.js';
+import { engineOptions, validateSettings, type SettingWords, type Settings, type SettingsInput } from './settings.js';
+
+export interface PipelineContext {
+  /** Time of the run (the notes and the run log say it). */
+  readonly when: Date;
+  /** How the host names settings in messages (e.g. the batch command's option names). */
+  readonly words?: SettingWords;
+  /** 'on-demand' words each row's explanation when a streaming sink reads it (see PlanContext). */
+  readonly reasonText?: 'eager' | 'on-demand';
+  /** Called after scoring, before the plan is built (progress). */
+  readonly onScored?: () => void;
+}
+
+export interface PipelineRun {
+  readonly settings: Settings;
+  readonly columns: ResolvedColumns;
+  readonly result: ScoreResult;
+  readonly plan: Plan;
+}
+
+/** A named column of raw cells, as the engine takes it. */
+export interface NamedCells {
+  readonly name: string;
+  readonly cells: ArrayLike<RawCell>;
+}
+
+/**
+ * Score already-chosen columns with validated settings, no plan (the pane's live preview and its
+ * chart). Throws TailmarkError when the settings are wrong.
+ */
+export function scoreColumns(valueColumns: readonly NamedCells[], groupColumns: readonly NamedCells[], input: SettingsInput): ScoreResult {
+  const settings = validateSettings(input);
+  return scoreTable({ valueColumns, groupColumns }, engineOptions(settings));
+}
+
+/** A value column without a single number cannot be scored: say what its cells are instead. */
+function checkNumbers(result: ScoreResult, where: string): void {
+  for (const col of result.columns) {
+    if (col.scoredRows === 0 && col.values.every((x) => !Number.isFinite(x))) {
+      const why = EXCLUSION_REASONS.filter((r) => col.excludedCounts[r] > 0)
+        .map((r) => `${col.excludedCounts[r]} ${EXCLUSION_LABELS[r]}`)
+        .join('; ');
+      throw new TailmarkError('no-numbers', `value column "${col.column}" has no numbers in ${where}${why ? ` (${why})` : ''}`);
+    }
+  }
+}
+
+/** A source's table as the pipeline takes it: `headers[i]` null marks a column that cannot be chosen (ours). */
+export type PipelineTable = Omit<SourceTable, 'headers'> & { readonly headers: readonly (string | null)[] };
+
+/** The run: validate, resolve, score, plan. */
+export function runPipeline(table: PipelineTable, input: SettingsInput, ctx: PipelineContext): PipelineRun {
+  const settings = validateSettings(input, ctx.words);
+  if (table.rowCount < 1) throw new TailmarkError('no-numbers', `${table.source} has a header row but no data rows`);
+  const columns = resolveColumns(table.headers, settings, table.source);
+  const named = (i: number): NamedCells => ({ name: table.headers[i] ?? '', cells: table.columns[i] });
+  const result = scoreTable({ valueColumns: columns.value.map(named), groupColumns: columns.group.map(named) }, engineOptions(settings));
+  checkNumbers(result, table.source);
+  ctx.onScored?.();
+  const plan = buildPlan(result, {
+    source: table.source,
+    when: ctx.when,
+    table: { ...table, headers: table.headers.map((h) => h ?? '') },
+    idColumn: columns.id !== null ? table.headers[columns.id] : null,
+    ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}),
+  });
+  return { settings, columns, result, plan };
+}
