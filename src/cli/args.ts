@@ -187,6 +187,7 @@ score options:
   --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
   --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)
                           (default: decided per column from its cells, and said in the notes)
+  --reviewer <name>       your name or initials, recorded with the run in the log sheet
   --sheet <name>          worksheet to read (.xlsx; default the first)
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)

@@ -15,3 +15,15 @@ export {
 } from './style.js';
 export { planToJson, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';
+export {
+  LOG_HEADER,
+  LOG_MARKER,
+  LOG_SHEET_NAME,
+  LOG_TITLE,
+  NO_NAME,
+  cutoffLine,
+  isLogMarker,
+  markLine,
+  runLine,
+  type CutoffChange,
+} from './log.js';

@@ -229,6 +229,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       [`${scoredRows} of ${rows} rows scored; ${flaggedRows} flagged.`],
     ],
   });
+  sections.push(termsSection(result));
   sections.push({
     title: 'How the cutoff was chosen and what it means',
     rows: [
@@ -327,6 +328,37 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     result,
     table: ctx.table,
     idColumn: ctx.idColumn ?? null,
+  };
+}
+
+/** Every term the result columns use, in plain words (shown near the top of the notes sheet). */
+function termsSection(result: ScoreResult): NotesSection {
+  const h = resultHeaders(result.columns[0]?.column ?? 'Amount');
+  return {
+    title: 'Terms used',
+    table: true,
+    rows: [
+      ['Term', 'Meaning'],
+      [
+        'Peer group',
+        result.groupColumns.length
+          ? `Claims with the same ${result.groupColumns.join(' and ')}. Each claim is compared only with its own peer group.`
+          : 'No group columns were chosen, so every claim is compared with the whole column.',
+      ],
+      [
+        `Tail score ("${h.score}")`,
+        'How far an amount sits from the middle of its peer group, measured in the group\'s usual spread. About 0 is typical; ' +
+          'a positive score is above the middle, a negative one below. Robust z uses the median and 1.4826 x MAD, classic z the ' +
+          'mean and standard deviation, IQR fences the quartiles and the interquartile range.',
+      ],
+      ['Cutoff', 'The size of tail score beyond which a claim is flagged. A higher cutoff flags fewer claims.'],
+      [`Flag ("${h.flag}")`, `${FLAG_WORDS.high} or ${FLAG_WORDS.low}: the score passed the cutoff. It means "look here", nothing more.`],
+      [`Why ("${h.reason}")`, 'The amount, the middle and spread of the group it was compared with, its score and the cutoff, in words.'],
+      ['MAD', 'Median absolute deviation: the median distance of the amounts from their median. 1.4826 x MAD matches the standard deviation for normally distributed amounts.'],
+      ['IQR', 'Interquartile range: Q3 - Q1, the width of the middle half of the amounts.'],
+      [STATUS_HEADER, 'Where the follow-up stands (see "Review statuses" below). Kept with its claim when the sheet is scored again.'],
+      [NOTE_HEADER, 'The reviewer\'s own note on the claim, kept like the status.'],
+    ],
   };
 }
 

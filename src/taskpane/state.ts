@@ -183,9 +183,14 @@ export function valueCandidates(table: DetectedTable): readonly DetectedColumn[]
   return table.columns.filter((c) => c.numericShare > 0 && c.guess !== 'empty' && c.guess !== 'date' && c.guess !== 'id');
 }
 
-/** Columns offered as group columns: keys and short text. */
-export function groupCandidates(table: DetectedTable): readonly DetectedColumn[] {
-  return table.columns.filter((c) => c.guess !== 'empty' && c.guess !== 'amount' && c.guess !== 'date' && c.guess !== 'id');
+/**
+ * Columns offered as group columns: key-like columns only. Free text (notes, descriptions), dates,
+ * ids and amounts would make a group per claim; a column already chosen stays offered.
+ */
+const NOT_A_PEER_GROUP = /note|comment|descr|memo|remark|purpose|detail|reason|date|time|\bday\b|when/i;
+
+export function groupCandidates(table: DetectedTable, chosen: readonly string[] = []): readonly DetectedColumn[] {
+  return table.columns.filter((c) => (c.guess === 'key' && !NOT_A_PEER_GROUP.test(c.header)) || chosen.includes(c.header));
 }
 
 /** True when every column a saved setting names is present in the table. */

@@ -221,15 +221,19 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   }, [data, settings, chartGroups, state.chartGroup, state.chartColumn]);
 
   const runWith = useCallback(
-    async (chosen: RunSettings) => {
+    async (picked: RunSettings) => {
       const table = stateRef.current.table;
       if (!table) return;
+      // The reviewer's name and follow-up columns travel with the run settings (kept in the workbook).
+      const { prefs } = stateRef.current;
+      const chosen: RunSettings = { ...picked, reviewer: prefs.reviewer, detailColumns: prefs.detailColumns };
       const controller = new AbortController();
       abortRef.current = controller;
       dispatch({ type: 'run-start' });
       const timer = setTimeout(() => dispatch({ type: 'show-progress' }), PROGRESS_DELAY_MS);
       try {
-        const summary = await layer.run(table, chosen, (progress) => dispatch({ type: 'run-progress', progress }), controller.signal);
+        const record = { cutoffReason: stateRef.current.cutoffReason, budget: stateRef.current.budgetUsed };
+        const summary = await layer.run(table, chosen, (progress) => dispatch({ type: 'run-progress', progress }), controller.signal, record);
         clearTimeout(timer);
         if (!mounted.current) return;
         dispatch({ type: 'run-done', summary, settings: chosen });

@@ -40,6 +40,14 @@ export interface DetectedTable {
 /** What the reviewer chose; saved in workbook.settings and offered again next period (src/pipeline/settings.ts). */
 export type RunSettings = Settings;
 
+/** What the log sheet records about a run besides its settings (the add-in's cutoff field and budget). */
+export interface RunRecord {
+  /** The reviewer's reason for a cutoff other than the last run's; empty or absent = none given. */
+  readonly cutoffReason?: string;
+  /** The review budget (claims) that set the cutoff; null or absent = set by hand. */
+  readonly budget?: number | null;
+}
+
 export interface RunProgress {
   readonly phase: 'reading' | 'scoring' | 'writing' | 'highlighting' | 'notes';
   /** 0..1 */
@@ -102,7 +110,7 @@ export interface WorkbookLayer {
   /** Read the chosen columns (for previewing cutoffs in the pane without writing). */
   readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData>;
   /** Score and write results, highlights, notes and log. Cancelling via `signal` leaves the workbook unchanged. */
-  run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal): Promise<RunSummary>;
+  run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary>;
   /**
    * Remove everything Tailmark added. `includeNotes` also deletes the notes sheet. `keepMarks`
    * leaves the status and note columns in place as plain cells (no dropdown, no highlighting).

@@ -7,7 +7,7 @@
  * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
  * that grows with the number of cells only.
  */
-import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
 import {
@@ -112,13 +112,14 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
     readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
       return act('preview', (s) => previewColumns(s, table, settings));
     },
-    async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal): Promise<RunSummary> {
+    async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary> {
       if (signal?.aborted) throw new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
       const out = await act('run', (s) =>
         runScoring(s, table, settings, {
           now,
           ...(onProgress ? { onProgress } : {}),
           ...(signal ? { signal } : {}),
+          ...(record ? { record } : {}),
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
@@ -146,7 +147,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('selectRow', (s) => selectDataRow(s, row));
     },
     mark(rows: readonly number[], status: string | null, note: string | null): Promise<void> {
-      return act('mark', (s) => markRows(s, rows, status, note));
+      return act('mark', (s) => markRows(s, rows, status, note, now()));
     },
     async onSelectionChanged(handler: () => void): Promise<() => void> {
       const runIn = options.runInContext;

@@ -3,20 +3,14 @@
  * Both carry a marker in A1 so we recognise them as ours; a sheet of that name without the marker
  * is the user's and is never touched (TailmarkError 'name-clash').
  */
-import { PALETTE, type NotesSheet, type PlanCell, type RunLogEntry } from '../report/index.js';
+import { PALETTE, type NotesSheet, type PlanCell } from '../report/index.js';
 
+export { LOG_HEADER, LOG_MARKER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker } from '../report/index.js';
 export const NOTES_MARKER = 'tm:notes:v1';
-export const LOG_MARKER = 'tm:log:v1';
-export const LOG_SHEET_NAME = 'Tailmark log';
 export const NOTES_TITLE = `Tailmark notes (${NOTES_MARKER}) · rewritten on every run; keep your own notes on another sheet.`;
-export const LOG_TITLE = `Tailmark run log (${LOG_MARKER}) · one row per run, newest last.`;
-export const LOG_HEADER: readonly string[] = ['When (UTC)', 'Source', 'Method', 'Cutoff', 'Rows scored', 'Flagged'];
 
 export function isNotesMarker(v: unknown): boolean {
   return typeof v === 'string' && v.includes(NOTES_MARKER);
-}
-export function isLogMarker(v: unknown): boolean {
-  return typeof v === 'string' && v.includes(LOG_MARKER);
 }
 
 export interface NotesGrid {
@@ -47,9 +41,6 @@ export function notesGrid(notes: NotesSheet, caution: string): NotesGrid {
   return { rows, width, titleRows, headerRows };
 }
 
-export function logRow(e: RunLogEntry): PlanCell[] {
-  return [e.when, e.source, e.method, e.cutoff, e.rowsScored, e.flagged];
-}
 
 /** A cell for Range.values: null stays empty (""), text is written under the text format "@". */
 export function toCellValue(v: PlanCell): string | number | boolean {

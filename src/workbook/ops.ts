@@ -5,9 +5,10 @@
 import { validateSettings } from '../pipeline/settings.js';
 import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
-import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, resultHeaders } from '../report/index.js';
+import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, resultHeaders, type PlanCell } from '../report/index.js';
 import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
 import { cellText, toRawCell } from './cells.js';
+import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
@@ -187,7 +188,13 @@ function statusText(status: string): string {
   return s.label;
 }
 
-export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null): Promise<void> {
+/**
+ * Set the status and/or note of data rows, and add one line per changed claim to the log sheet:
+ * who (the name the reviewer typed once, kept in the workbook's settings; never a guessed
+ * identity), when, the claim, the status before and after, and the note. Syncs: locate 2-3, the
+ * marks before 1, the log sheet 1-2, writes 1 (more only when the marks pass the payload budget).
+ */
+export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null, now: Date = new Date()): Promise<void> {
   const label = status === null ? null : statusText(status);
   const loc = await locate(sync);
   if (!loc) throw noResults();
@@ -205,25 +212,57 @@ export async function markRows(sync: Syncer, rows: readonly number[], status: st
   const sorted = [...new Set(rows)].sort((a, b) => a - b);
   const target = sync.budget.target;
   // Contiguous runs of rows become one range each.
-  let i = 0;
-  while (i < sorted.length) {
+  const runs: { start: number; n: number }[] = [];
+  for (let i = 0; i < sorted.length; ) {
     let j = i;
     while (j + 1 < sorted.length && sorted[j + 1] === sorted[j] + 1) j++;
-    const n = j - i + 1;
+    runs.push({ start: sorted[i], n: j - i + 1 });
+    i = j + 1;
+  }
+  // What the claims hold now (for the log's "before"), their claim IDs and the reviewer's name.
+  const idCol = loc.settings?.idColumn ? loc.userColumns.get(loc.settings.idColumn) : undefined;
+  const before = runs.map((run) => {
+    const st = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, sc, run.n, 1);
+    const nt = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, nc, run.n, 1);
+    const id = idCol === undefined ? null : loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, idCol, run.n, 1);
+    st.load('values');
+    nt.load('values');
+    id?.load('values');
+    return { st, nt, id };
+  });
+  await sync.sync();
+  const who = loc.settings?.reviewer ?? null;
+  const text = (v: unknown) => (v === null || v === undefined ? '' : String(v).trim());
+  const lines: PlanCell[][] = [];
+  runs.forEach((run, k) => {
+    const b = before[k];
+    for (let i = 0; i < run.n; i++) {
+      const oldStatus = text(b.st.values[i][0]);
+      const oldNote = text(b.nt.values[i][0]);
+      const newStatus = label ?? oldStatus;
+      const newNote = note ?? oldNote;
+      if (newStatus === oldStatus && newNote === oldNote) continue;
+      const id = b.id ? text(b.id.values[i][0]) : '';
+      const claim = id !== '' ? id : `sheet row ${loc.firstDataRow + run.start + i + 1}`;
+      lines.push(markLine(now.toISOString(), who, claim, oldStatus, newStatus, newNote === oldNote ? null : newNote));
+    }
+  });
+  await appendLog(sync, lines);
+  for (const run of runs) {
+    const n = run.n;
     const bytes = n * ((label?.length ?? 0) + (note?.length ?? 0) + 16);
     if (bytes > target) throw new TailmarkError('too-large', 'Too many rows or too long a note to mark at once; mark fewer rows.');
     await sync.reserve(bytes);
     if (label !== null) {
-      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], sc, n, 1);
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, sc, n, 1);
       r.numberFormat = Array.from({ length: n }, () => ['@']);
       r.values = Array.from({ length: n }, () => [label]);
     }
     if (note !== null) {
-      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], nc, n, 1);
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, nc, n, 1);
       r.numberFormat = Array.from({ length: n }, () => ['@']);
       r.values = Array.from({ length: n }, () => [note]);
     }
-    i = j + 1;
   }
   await sync.flush();
 }

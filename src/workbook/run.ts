@@ -22,8 +22,11 @@ import {
   type RawCell,
   type ScoreResult,
 } from '../scoring/types.js';
+import { defaultCutoff } from '../scoring/cutoff.js';
 import {
+  cutoffLine,
   isTailmarkFormula,
+  runLine,
   NOTES_SHEET_NAME,
   PALETTE,
   REVIEW_STATUSES,
@@ -33,23 +36,21 @@ import {
   type PlanCell,
   type PlanColumn,
 } from '../report/index.js';
-import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunSettings, type RunSummary } from './api.js';
+import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
 import { MAX_COLUMNS, columnLetters, rectAddress } from './a1.js';
 import { cellText, toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
   HEADER_SWATCH,
-  LOG_HEADER,
   LOG_SHEET_NAME,
-  LOG_TITLE,
   TITLE_SWATCH,
   formatFor,
   isLogMarker,
   isNotesMarker,
-  logRow,
   notesGrid,
   toCellValue,
 } from './notes.js';
+import { queueLogLines } from './log.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, isOurHeader, type BlockColumn, type LayerState } from './state.js';
@@ -62,6 +63,8 @@ export interface RunDeps {
   readonly now: () => Date;
   readonly onProgress?: (p: RunProgress) => void;
   readonly signal?: AbortSignal;
+  /** Why the cutoff was changed and whether a review budget set it (for the log sheet). */
+  readonly record?: RunRecord;
 }
 
 export interface RunOutcome {
@@ -447,7 +450,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   };
   try {
     await writeAll(sync, res, plan, placement, values, ourRules, firstDataRow, deps);
-    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed);
+    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed, settings, deps.record);
     await sync.reserve(2048);
     ctx.workbook.settings.add(SETTINGS_KEY, JSON.stringify(settings));
     ctx.workbook.settings.add(STATE_KEY, JSON.stringify(newState));
@@ -620,6 +623,8 @@ async function writeNotes(
   createdNotes: boolean,
   createdLog: boolean,
   logUsed: Excel.Range | null,
+  settings: RunSettings,
+  record: RunRecord | undefined,
 ): Promise<void> {
   const wb = sync.context.workbook;
   await sync.reserve(1024);
@@ -638,16 +643,24 @@ async function writeNotes(
   for (const r of grid.headerRows) notes.getRangeByIndexes(r, 0, 1, grid.width).format.font.bold = true;
   if (createdNotes) notes.getRange('A:A').format.columnWidth = 200;
 
-  // Run log: append one row.
+  // Log: append the run's line, and a cutoff-change line when the cutoff differs from the last run's.
   const log = createdLog ? wb.worksheets.add(LOG_SHEET_NAME) : res.logSheet;
-  if (createdLog) {
-    await writeGrid(sync, log, 0, [[LOG_TITLE, null, null, null, null, null], [...LOG_HEADER]], LOG_HEADER.length);
-    log.getRangeByIndexes(1, 0, 1, LOG_HEADER.length).format.font.bold = true;
-    log.getRange('A:B').format.columnWidth = 160;
-  }
   const next = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
-  await writeGrid(sync, log, next, [logRow(plan.log)], LOG_HEADER.length);
+  await queueLogLines(sync, log, createdLog, next, logLines(plan, settings, res.savedSettings, record));
   void PALETTE;
+}
+
+/**
+ * The log lines of a run: the run itself, and a cutoff change when the cutoff differs from the
+ * last run's with the same method (on a first run: from the method's default).
+ */
+export function logLines(plan: Plan, settings: RunSettings, saved: RunSettings | null, record: RunRecord | undefined): PlanCell[][] {
+  const lines = [runLine(plan.log, settings.reviewer)];
+  const before = saved && saved.method === settings.method ? saved.cutoff : defaultCutoff(settings.method);
+  if (settings.cutoff !== before) {
+    lines.push(cutoffLine(plan.log.when, settings.reviewer, plan.log.method, settings.cutoff, { before, reason: record?.cutoffReason ?? '', budget: record?.budget ?? null }));
+  }
+  return lines;
 }
 
 /** Undo a write phase that failed part-way (see the module comment). Never hides the original error. */

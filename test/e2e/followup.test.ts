@@ -179,3 +179,66 @@ describe('follow-up view', () => {
     await page.close();
   });
 });
+
+/** The log sheet's lines as records keyed by its header (row 2 of the sheet). */
+async function logLines(page: Page): Promise<Record<string, string>[]> {
+  return page.evaluate(() => {
+    const h = window.tailmarkPreview!;
+    const sheet = 'Tailmark log';
+    if (!h.sheetNames().includes(sheet)) return [];
+    const header: string[] = [];
+    for (let c = 0; c < 30; c++) header.push(h.text(sheet, 1, c));
+    const out: Record<string, string>[] = [];
+    for (let r = 2; r < 200; r++) {
+      const line: Record<string, string> = {};
+      let any = false;
+      header.forEach((name, c) => {
+        if (name === '') return;
+        const t = h.text(sheet, r, c);
+        if (t !== '') any = true;
+        line[name] = t;
+      });
+      if (!any) break;
+      out.push(line);
+    }
+    return out;
+  });
+}
+
+describe('audit trail', () => {
+  it('logs who set which status when, and each run with its cutoff change, reason and review budget', async () => {
+    const { page, errors } = await openPage(session, 'preview.html');
+    await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+    await page.getByTestId('preview-flagged').waitFor({ timeout: 30_000 });
+    // A cutoff from "I can review 10 claims", with a reason.
+    await page.getByTestId('budget').fill('10');
+    await page.getByTestId('apply-budget').click();
+    await page.getByTestId('cutoff-reason').fill('two days for this quarter');
+    const cut = Number(await page.getByTestId('cutoff').inputValue());
+    await page.getByTestId('run').click();
+    await page.getByTestId('summary').waitFor({ timeout: 60_000 });
+    await page.getByTestId('claim-card').waitFor({ timeout: 30_000 });
+    await page.getByTestId('reviewer-input').fill('T.R.');
+    await page.getByTestId('reviewer-save').click();
+    const first = await currentId(page);
+    await page.getByTestId('status').selectOption(label('asked'));
+    await page.getByTestId('note').fill('emailed the approver');
+    await page.getByTestId('note').press('Enter');
+    await expect.poll(() => currentId(page)).not.toBe(first);
+    const lines = await logLines(page);
+    const run = lines.find((l) => l.Event === 'Run')!;
+    expect(run).toBeDefined();
+    expect(Number(run.Cutoff)).toBeCloseTo(cut, 6);
+    const change = lines.find((l) => l.Event === 'Cutoff changed')!;
+    expect(change).toMatchObject({ 'Reason given': 'two days for this quarter', 'From a review budget': 'yes: at most 10 claims', 'Previous cutoff': '3.5' });
+    const mark = lines.find((l) => l.Event === 'Status set')!;
+    expect(mark).toMatchObject({ Who: 'T.R.', Claim: first, Status: `${label('open')} → ${label('asked')}`, Note: 'emailed the approver' });
+    expect(Date.parse(mark['When (UTC)'])).toBeGreaterThan(Date.parse('2020-01-01'));
+    // A second run adds lines below; the earlier ones stay as they were.
+    await page.getByTestId('run').click();
+    await expect.poll(async () => (await logLines(page)).filter((l) => l.Event === 'Run').length, { timeout: 60_000 }).toBe(2);
+    expect((await logLines(page)).slice(0, lines.length)).toEqual(lines);
+    expect(errors).toEqual([]);
+    await page.close();
+  });
+});

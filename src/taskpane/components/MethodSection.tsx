@@ -86,6 +86,8 @@ export function MethodSection({ model }: { model: PaneModel }) {
             step={0.1}
             value={Math.min(m.range[1], Math.max(m.range[0], settings.cutoff))}
             onChange={(_, d) => actions.setSettings({ cutoff: Math.round(d.value * 10) / 10 })}
+            // Marks at whole units only (the 0.1 steps would draw a dense barcode of marks).
+            style={{ ['--fui-Slider--steps-percent' as string]: `${100 / (m.range[1] - m.range[0])}%` }}
             aria-label="Cutoff slider"
           />
           <NumberInput

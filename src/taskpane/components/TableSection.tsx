@@ -68,7 +68,7 @@ export function TableSection({ model }: { model: PaneModel }) {
           </fieldset>
           <fieldset className={s.fieldset}>
             <legend className={s.legend}>Compare within (peer group)</legend>
-            {groupCandidates(table)
+            {groupCandidates(table, settings.groupColumns)
               .filter((c) => !settings.valueColumns.includes(c.header))
               .map((c) => (
                 <Checkbox

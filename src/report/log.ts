@@ -1,0 +1,83 @@
+/**
+ * The log sheet's format, shared by every sink (the add-in and the batch command): an append-only
+ * record that defends the selection. One line per run, per cutoff change (with the reviewer's
+ * reason and whether a review budget set it) and per status or note the reviewer saves (who and
+ * when). Sinks only ever add lines below the last one; nothing in the log is rewritten by a later
+ * run. The title in A1 carries our marker; a sheet of that name without it is the user's.
+ */
+import type { PlanCell, RunLogEntry } from './types.js';
+
+export const LOG_MARKER = 'tm:log:v1';
+export const LOG_SHEET_NAME = 'Tailmark log';
+export const LOG_TITLE = `Tailmark log (${LOG_MARKER}) · one line per run, cutoff change and saved status or note, newest last; lines are never rewritten.`;
+/** The log's columns: the first six are a run's (the log's first format); the rest came with the audit trail. */
+export const LOG_HEADER: readonly string[] = [
+  'When (UTC)', 'Source', 'Method', 'Cutoff', 'Rows scored', 'Flagged',
+  'Event', 'Who', 'Claim', 'Status', 'Note', 'Previous cutoff', 'Reason given', 'From a review budget',
+];
+
+/** Written as "who" when the reviewer has not typed a name: Office gives add-ins no user identity. */
+export const NO_NAME = '(name not given)';
+
+export function isLogMarker(v: unknown): boolean {
+  return typeof v === 'string' && v.includes(LOG_MARKER);
+}
+
+function line(values: Readonly<Record<string, PlanCell>>): PlanCell[] {
+  const out: PlanCell[] = LOG_HEADER.map(() => null);
+  for (const [k, v] of Object.entries(values)) {
+    const i = LOG_HEADER.indexOf(k);
+    if (i < 0) throw new RangeError(`log line: no column "${k}"`);
+    out[i] = v;
+  }
+  return out;
+}
+
+/** A run's line. */
+export function runLine(e: RunLogEntry, who: string | null): PlanCell[] {
+  return line({
+    'When (UTC)': e.when,
+    Source: e.source,
+    Method: e.method,
+    Cutoff: e.cutoff,
+    'Rows scored': e.rowsScored,
+    Flagged: e.flagged,
+    Event: 'Run',
+    Who: who ?? NO_NAME,
+  });
+}
+
+/** Why the cutoff differs from the last run's (or from the method's default on a first run). */
+export interface CutoffChange {
+  readonly before: number;
+  /** The reviewer's reason; empty = none given. */
+  readonly reason: string;
+  /** The review budget (claims) that set the cutoff; null = set by hand. */
+  readonly budget: number | null;
+}
+
+/** A cutoff change, logged with the run that used it. */
+export function cutoffLine(when: string, who: string | null, method: string, after: number, change: CutoffChange): PlanCell[] {
+  return line({
+    'When (UTC)': when,
+    Method: method,
+    Cutoff: after,
+    Event: 'Cutoff changed',
+    Who: who ?? NO_NAME,
+    'Previous cutoff': change.before,
+    'Reason given': change.reason.trim() === '' ? '(none given)' : change.reason.trim(),
+    'From a review budget': change.budget === null ? 'no' : `yes: at most ${change.budget} claims`,
+  });
+}
+
+/** A status or note the reviewer saved for one claim. `note` null = the note did not change. */
+export function markLine(when: string, who: string | null, claim: string, before: string, after: string, note: string | null): PlanCell[] {
+  return line({
+    'When (UTC)': when,
+    Event: before === after ? 'Note set' : 'Status set',
+    Who: who ?? NO_NAME,
+    Claim: claim,
+    Status: `${before === '' ? '(none)' : before} → ${after === '' ? '(none)' : after}`,
+    Note: note,
+  });
+}
