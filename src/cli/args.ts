@@ -171,15 +171,16 @@ export const HELP = `tailmark: flag expense claims that are unusual for their pe
 Usage:
   tailmark score <input.xlsx|input.csv> --value <header> [options]
   tailmark demo [--out <path.xlsx>] [--force]
-  tailmark sandbox ...
+  tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--json]
   tailmark --help
 
 score options:
   --value <header>        amount column to score (repeat for several)
   --group <header>        peer-group column, e.g. "Cost centre" (repeat; groups combine)
   --id <header>           claim identifier column, shown in --json output
-  --method <m>            robust (median/MAD, default) | classic (mean/SD) | iqr (quartile fences)
-  --cutoff <n>            score beyond which a claim is flagged (default robust 3.5, classic 3, iqr k 1.5)
+  --method <m>            robust (median/MAD, default) | classic (mean/SD) | iqr (quartile fences) |
+                          adjusted (quartile fences adjusted for skew by the medcouple)
+  --cutoff <n>            score beyond which a claim is flagged (default robust 3.5, classic 3, iqr/adjusted k 1.5)
   --direction <d>         high | low | both (default both)
   --min-group <n>         smallest group scored on its own (default 8)
   --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)

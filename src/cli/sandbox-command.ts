@@ -1,5 +1,5 @@
 /**
- * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--out <path>] [--force] [--json]`
+ * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--force] [--json]`
  *
  * Runs the add-in's workbook layer headless, exactly as the task pane does (detect -> run), on an
  * in-memory copy of the file (the sandbox), then optionally writes the result as .xlsx and prints
@@ -19,6 +19,7 @@ import { TailmarkError, type DetectedTable, type RunSettings } from '../workbook
 import { findColumn, validateSettings, type SettingWords, type SettingsInput } from '../pipeline/index.js';
 import { parseFlags, settingOptionSpec, settingsFromOptions, settingWords } from './args.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
+import { officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
 
 interface SandboxArgs {
@@ -31,12 +32,14 @@ interface SandboxArgs {
   readonly out: string | undefined;
   readonly force: boolean;
   readonly json: boolean;
+  /** Run through Microsoft's real Office.js client (requests answered by the sandbox). */
+  readonly officeClient: boolean;
 }
 
 export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
   const { positional, opts } = parseFlags(
     argv,
-    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag' },
+    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag', 'office-client': 'flag' },
     'sandbox',
   );
   if (positional.length !== 1) {
@@ -61,6 +64,7 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
     out: one('out'),
     force: opts.has('force'),
     json: opts.has('json'),
+    officeClient: opts.has('office-client'),
   };
 }
 
@@ -182,15 +186,19 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     const sheet = args.sheet ?? sheets[0];
     if (!sheets.includes(sheet)) throw new TailmarkError('usage', `no sheet "${sheet}" in ${args.input}; sheets: ${sheets.join(', ')}`);
     sb.setSelection(sheet, 'A1');
-    const layer = createWorkbookLayer(sb.run);
+    const host = args.officeClient ? officeClientFor(sb) : null;
+    const run = host ? (host.run as SandboxWorkbook['run']) : sb.run;
+    const layer = createWorkbookLayer(run, { runInContext: run });
     const before = sb.snapshot();
     sb.stats.reset();
+    host?.wire.reset();
     const table = await layer.detect();
     const settings = settingsFor(table, args);
     const summary = await layer.run(table, settings);
     const syncs = sb.stats.syncs;
-    const maxRequestBytes = sb.stats.requestBytes.max;
-    const maxResponseBytes = sb.stats.responseBytes.max;
+    // Through the real client these are the sizes of the JSON it sent and received.
+    const maxRequestBytes = host ? host.wire.requestBytes.max : sb.stats.requestBytes.max;
+    const maxResponseBytes = host ? host.wire.responseBytes.max : sb.stats.responseBytes.max;
     const firstRun = layer.lastRun!;
     const afterFirst = sb.snapshot();
     const ourCols = firstRun.resultColumns.map(letterIndex);
@@ -224,7 +232,9 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
       await sandboxToExcelJs(sb).xlsx.writeFile(resolve(args.out));
     }
     const report = {
+      client: host ? 'office-js' : 'sandbox',
       syncs,
+      ...(host ? { clientCleanupRequests: host.wire.releaseRequests } : {}),
       maxRequestBytes,
       maxResponseBytes,
       userCellsChanged,
@@ -242,7 +252,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     else {
       process.stdout.write(
         `sandbox run on ${table.address}: ${summary.rowsScored} rows scored, ${summary.flagged} flagged, ${highlightedRows} rows highlighted\n` +
-          `  ${syncs} syncs, largest request ${maxRequestBytes} B, largest response ${maxResponseBytes} B, user cells changed: ${userCellsChanged}\n` +
+          `  ${host ? 'through the Office.js client: ' : ''}${syncs} syncs, largest request ${maxRequestBytes} B, largest response ${maxResponseBytes} B, user cells changed: ${userCellsChanged}\n` +
           `  result columns ${firstRun.resultColumns.join(', ')}; notes on sheet "${summary.notesSheet}"\n` +
           (marks ? `  re-run: ${marks.kept} of ${marks.marked} review marks kept\n` : '') +
           (args.out ? `  written to ${args.out}\n` : '') +

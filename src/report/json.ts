@@ -56,6 +56,7 @@ export function planToJson(plan: Plan): PlanJson {
         lower: g.lower,
         upper: g.upper,
         flagged: g.flagged,
+        medcouple: g.medcouple,
       };
       if (multi) entry.column = col.column;
       groups.push(entry);

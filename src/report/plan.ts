@@ -79,6 +79,19 @@ const METHOD_WORDS: Record<MethodId, string> = {
   iqr:
     'Interquartile fences: an amount is flagged below Q1 - k x IQR or above Q3 + k x IQR, with quartiles computed ' +
     'as QUARTILE.INC does (Hyndman & Fan type 7). The score is the distance beyond the nearer quartile in IQRs.',
+  adjusted:
+    'Adjusted boxplot (Hubert & Vandervieren 2008): IQR fences widened on the long side of a skewed group and ' +
+    'narrowed on the short side by e^(3 MC) and e^(-4 MC), where MC is the group\'s medcouple (robust skewness, ' +
+    'Brys, Hubert & Struyf 2004; mirrored when MC < 0). Quartiles are Tukey\'s hinges, as R\'s robustbase computes ' +
+    'them. The score is the distance beyond the fence in skew-adjusted IQRs. The medcouple of each group is in the ' +
+    'group table.',
+};
+
+const METHOD_NAMES: Record<MethodId, string> = {
+  robust: 'robust z (median/MAD)',
+  classic: 'classic z (mean/SD)',
+  iqr: 'IQR fences',
+  adjusted: 'adjusted boxplot (medcouple)',
 };
 
 const FALLBACK_WORDS: Record<Fallback, string> = {
@@ -155,6 +168,7 @@ function groupRow(g: GroupStats): PlanCell[] {
     g.flagged,
     g.fallbacks.length ? g.fallbacks.map((f) => FALLBACK_WORDS[f]).join('; ') : '',
     POPULATION_WORDS[g.population],
+    g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
   ];
 }
 
@@ -162,7 +176,7 @@ const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.la
 
 const GROUP_TABLE_HEADER: PlanCell[] = [
   'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
-  'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with',
+  'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)',
 ];
 
 /** Build the plan of a run. */
@@ -206,7 +220,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: 32 });
 
   const when = ctx.when.toISOString();
-  const methodName = options.method === 'robust' ? 'robust z (median/MAD)' : options.method === 'classic' ? 'classic z (mean/SD)' : 'IQR fences';
+  const methodName = METHOD_NAMES[options.method];
   const log: RunLogEntry = {
     when,
     source: ctx.source,
@@ -368,6 +382,7 @@ function cutoffOrigin(result: ScoreResult): string {
     robust: 'Iglewicz and Hoaglin (1993) recommend 3.5 for modified (robust) z-scores.',
     classic: 'A cutoff of 3 standard deviations is common practice (no single published source).',
     iqr: 'Tukey (1977) drew fences at 1.5 x IQR beyond the quartiles.',
+    adjusted: 'Hubert and Vandervieren (2008) keep Tukey\'s k = 1.5 and adjust the fences for skew.',
   };
   const def = defaultCutoff(method);
   return cutoff === def

@@ -25,7 +25,7 @@ function mutateCf(ctx: SandboxContext, t: CfTarget, f: (cf: ConditionalFormatMod
 export class ConditionalFormatCollectionProxy extends CollectionBase<RangeTarget, ConditionalFormatProxy> {
   protected readonly entity = 'ConditionalFormatCollection';
   protected readonly scalars = [] as const;
-  protected readonly itemScalars = ['id', 'type', 'priority', 'stopIfTrue'] as const;
+  readonly itemScalars = ['id', 'type', 'priority', 'stopIfTrue'] as const;
   constructor(ctx: SandboxContext, path: string, private readonly range: RangeProxy) {
     super(ctx, path, false);
   }
@@ -50,6 +50,7 @@ export class ConditionalFormatCollectionProxy extends CollectionBase<RangeTarget
     let created: CfTarget | null = null;
     const p = new ConditionalFormatProxy(this.context, `${this.path}.add(${JSON.stringify(type)})`, false, () => created);
     this.context.enqueue({
+      write: true,
       statement: `${this.path}.add(${JSON.stringify(type)})`,
       payload: type,
       run: () => {
@@ -105,7 +106,7 @@ export class ConditionalFormatProxy extends ProxyBase<CfTarget> {
   protected override stillValid(t: CfTarget): boolean {
     return t.sheet.cfs.some((c) => c.id === t.id);
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     return name === 'custom' ? this.custom : undefined;
   }
   protected read(t: CfTarget, prop: string): unknown {
@@ -183,7 +184,7 @@ export class CustomConditionalFormatProxy extends ProxyBase<CfTarget> {
   protected read(): unknown {
     return undefined;
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     return name === 'rule' ? this.rule : name === 'format' ? this.format : undefined;
   }
 }
@@ -228,7 +229,7 @@ export class ConditionalRangeFormatProxy extends ProxyBase<CfTarget> {
   protected read(): unknown {
     return undefined;
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     return name === 'fill' ? this.fill : name === 'font' ? this.font : undefined;
   }
 }

@@ -47,6 +47,10 @@ export class SandboxContext {
   /** @internal */ syncCount = 0;
   /** @internal */ closed = false;
   /** @internal */ applying = false;
+  /** @internal Queue index of the statement that failed the last sync (-1: none, or not a statement). */
+  lastFailedIndex = -1;
+  /** @internal Excel.run's `delayForCellEdit` for this context (request flag 64 through the Office.js client). */
+  delayForCellEdit = false;
 
   constructor(readonly sandbox: SandboxWorkbook) {
     this.workbook = new WorkbookProxy(this);
@@ -72,6 +76,7 @@ export class SandboxContext {
     this.queue = [];
     this.pendingNull = [];
     this.syncCount++;
+    this.lastFailedIndex = -1;
     const sb = this.sandbox;
     const limit = sb.options.payloadLimitBytes;
     let reqBytes = 2;
@@ -79,6 +84,7 @@ export class SandboxContext {
     sb.recordSync(actions.length, reqBytes);
     // Office.js resolves the promise asynchronously; so do we.
     await Promise.resolve();
+    await sb.admit(this.delayForCellEdit);
     if (reqBytes > limit) {
       throw err('RequestPayloadSizeLimitExceeded', `The request payload (${reqBytes} bytes) exceeds the limit of ${limit} bytes. Split the work into smaller batches (fewer cells per sync).`, 'RequestContext.sync');
     }
@@ -91,9 +97,11 @@ export class SandboxContext {
     let failed: { error: unknown } | null = null;
     if (!partial) model.begin();
     try {
-      for (const a of actions) {
+      for (let i = 0; i < actions.length; i++) {
+        const a = actions[i];
         if (partial) model.begin();
         try {
+          if (a.write && sb.mode.readOnly) throw err('AccessDenied', 'The workbook is open read-only: it cannot be changed. Save a copy or ask for edit access, then try again.', 'Workbook.readOnly');
           const r = a.run();
           if (r?.commit) commits.push(r.commit);
           if (r?.responseBytes) respBytes += r.responseBytes + 1;
@@ -104,6 +112,7 @@ export class SandboxContext {
             continue;
           }
           if (partial) model.rollback();
+          this.lastFailedIndex = i;
           throw decorate(e, a.statement);
         }
         if (partial) model.commit();

@@ -26,7 +26,8 @@ export type SandboxErrorCode =
   | 'GeneralException'
   | 'InvalidObjectPath'
   | 'NotImplemented'
-  | 'InvalidRequestContext';
+  | 'InvalidRequestContext'
+  | 'InvalidOperationInCellEditMode';
 
 export interface SandboxDebugInfo {
   readonly code: string;

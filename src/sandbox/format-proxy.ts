@@ -39,7 +39,7 @@ export class RangeFormatProxy extends ProxyBase<RangeTarget> {
   protected resolveRaw() {
     return this.range.target();
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     return name === 'fill' ? this.fill : name === 'font' ? this.font : undefined;
   }
   protected read(t: RangeTarget, prop: string): unknown {

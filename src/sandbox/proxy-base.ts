@@ -50,6 +50,8 @@ export function parseLoadArg(arg: LoadArg): string[] {
 export interface Action {
   readonly statement: string;
   readonly payload: unknown;
+  /** Changes the workbook (refused when the workbook is read-only). */
+  readonly write?: boolean;
   /** Runs against the model; may return a commit callback (applied when the sync succeeds) and response bytes. */
   readonly run: () => { commit?: () => void; responseBytes?: number } | void;
 }
@@ -105,8 +107,12 @@ export abstract class ProxyBase<T> {
   }
   /** Read one scalar property from the target. */
   protected abstract read(t: T, prop: string): unknown;
-  /** Child proxies reachable by name for nested load paths ("format/fill/color"). */
-  protected nav(_name: string): ProxyBase<unknown> | undefined {
+  /** @internal Whether `load()` knows this scalar property. */
+  hasScalar(name: string): boolean {
+    return this.scalars.includes(name);
+  }
+  /** @internal Child proxies reachable by name for nested load paths ("format/fill/color"). */
+  nav(_name: string): ProxyBase<unknown> | undefined {
     return undefined;
   }
 
@@ -175,6 +181,7 @@ export abstract class ProxyBase<T> {
     this.context.enqueue({
       statement: `${this.path}.${prop} = ...`,
       payload: value,
+      write: true,
       run: () => { apply(this.target()); },
     });
     this._data[prop] = value;
@@ -182,7 +189,8 @@ export abstract class ProxyBase<T> {
 
   /** Queue a method call. */
   protected call(method: string, payload: unknown, apply: (t: T) => void): void {
-    this.context.enqueue({ statement: `${this.path}.${method}(...)`, payload, run: () => { apply(this.target()); } });
+    const write = method !== 'select' && method !== 'activate';
+    this.context.enqueue({ statement: `${this.path}.${method}(...)`, payload, write, run: () => { apply(this.target()); } });
   }
 
   /** Queue a method returning a primitive ClientResult. */
@@ -263,7 +271,7 @@ export abstract class ProxyBase<T> {
 export abstract class CollectionBase<T, I extends ProxyBase<unknown>> extends ProxyBase<T> {
   private _items: I[] | undefined;
   protected abstract list(t: T): I[];
-  protected abstract readonly itemScalars: readonly string[];
+  /** @internal */ abstract readonly itemScalars: readonly string[];
 
   get items(): I[] {
     if (this._items === undefined) throw notLoaded(this.entity, 'items');

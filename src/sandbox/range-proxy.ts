@@ -21,6 +21,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
   protected readonly entity = 'Range';
   protected readonly scalars = RANGE_SCALARS;
   private _format?: RangeFormatProxy;
+  private _ws?: WorksheetProxy;
   private _cfs?: ConditionalFormatCollectionProxy;
   private _dv?: DataValidationProxy;
 
@@ -33,7 +34,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
   protected override stillValid(t: RangeTarget): boolean {
     return this.context.model.sheets.includes(t.sheet);
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     if (name === 'format') return this.format;
     if (name === 'worksheet') return this.worksheet;
     if (name === 'dataValidation') return this.dataValidation;
@@ -199,7 +200,7 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
   }
 
   get worksheet(): WorksheetProxy {
-    return new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.target().sheet);
+    return (this._ws ??= new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.target().sheet));
   }
   get format(): RangeFormatProxy {
     return (this._format ??= new RangeFormatProxy(this.context, `${this.path}.format`, this));
@@ -353,6 +354,7 @@ export class RangeAreasProxy extends ProxyBase<{ sheet: SheetModel; rects: Rect[
   protected readonly entity = 'RangeAreas';
   protected readonly scalars = ['address', 'addressLocal', 'areaCount', 'cellCount'] as const;
   private _areas?: RangeCollectionProxy;
+  private _ws?: WorksheetProxy;
   constructor(ctx: SandboxContext, path: string, orNull: boolean, private readonly resolver: () => { sheet: SheetModel; rects: Rect[] } | null) {
     super(ctx, path, orNull);
   }
@@ -369,7 +371,7 @@ export class RangeAreasProxy extends ProxyBase<{ sheet: SheetModel; rects: Rect[
     }
     return undefined;
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     return name === 'areas' ? this.areas : undefined;
   }
   get address(): string { return this.get('address'); }
@@ -379,14 +381,14 @@ export class RangeAreasProxy extends ProxyBase<{ sheet: SheetModel; rects: Rect[
     return (this._areas ??= new RangeCollectionProxy(this.context, `${this.path}.areas`, this));
   }
   get worksheet(): WorksheetProxy {
-    return new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.target().sheet);
+    return (this._ws ??= new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.target().sheet));
   }
 }
 
 export class RangeCollectionProxy extends CollectionBase<{ sheet: SheetModel; rects: Rect[] }, RangeProxy> {
   protected readonly entity = 'RangeCollection';
   protected readonly scalars = [] as const;
-  protected readonly itemScalars = RANGE_SCALARS;
+  readonly itemScalars = RANGE_SCALARS;
   constructor(ctx: SandboxContext, path: string, private readonly owner: RangeAreasProxy) {
     super(ctx, path, false);
   }
@@ -401,6 +403,14 @@ export class RangeCollectionProxy extends CollectionBase<{ sheet: SheetModel; re
       const p = new RangeProxy(this.context, `${this.path}.getItemAt(${i})`, false, () => ({ sheet: t.sheet, rect: r }));
       p.bind({ sheet: t.sheet, rect: r });
       return p;
+    });
+  }
+  getItemAt(index: number): RangeProxy {
+    return new RangeProxy(this.context, `${this.path}.getItemAt(${index})`, false, () => {
+      const t = this.owner.target();
+      const r = t.rects[index];
+      if (!r) throw err('ItemNotFound', `There is no area ${index} (the range has ${t.rects.length}).`, 'RangeCollection.getItemAt');
+      return { sheet: t.sheet, rect: r };
     });
   }
   override load(arg?: LoadArg): this {

@@ -8,7 +8,7 @@ import { err, CollectionBase, ProxyBase } from './proxy-base.js';
 export class SettingCollectionProxy extends CollectionBase<WorkbookModel, SettingProxy> {
   protected readonly entity = 'SettingCollection';
   protected readonly scalars = [] as const;
-  protected readonly itemScalars = ['key', 'value'] as const;
+  readonly itemScalars = ['key', 'value'] as const;
   constructor(ctx: SandboxContext) {
     super(ctx, 'workbook.settings', false);
   }
@@ -29,6 +29,7 @@ export class SettingCollectionProxy extends CollectionBase<WorkbookModel, Settin
   add(key: string, value: unknown): SettingProxy {
     const p = new SettingProxy(this.context, `settings.getItem(${JSON.stringify(key)})`, false, () => (this.context.model.settings.has(key) ? key : null));
     this.context.enqueue({
+      write: true,
       statement: `settings.add(${JSON.stringify(key)}, ...)`,
       payload: { key, value: value === undefined ? null : value },
       run: () => {

@@ -33,7 +33,7 @@ function tableNameOk(m: WorkbookModel, name: string, exceptId?: string): void {
 export class TableCollectionProxy extends CollectionBase<WorkbookModel, TableProxy> {
   protected readonly entity = 'TableCollection';
   protected readonly scalars = ['count'] as const;
-  protected readonly itemScalars = ['id', 'name', 'showHeaders', 'showTotals'] as const;
+  readonly itemScalars = ['id', 'name', 'showHeaders', 'showTotals'] as const;
   constructor(ctx: SandboxContext, path: string, private readonly ws: WorksheetProxy | null, private readonly inRange?: RangeProxy, private readonly fully = false) {
     super(ctx, path, false);
   }
@@ -91,6 +91,7 @@ export class TableCollectionProxy extends CollectionBase<WorkbookModel, TablePro
     let created: TableTarget | null = null;
     const p = new TableProxy(this.context, `${this.path}.add(...)`, false, () => created);
     this.context.enqueue({
+      write: true,
       statement: `${this.path}.add(${typeof address === 'string' ? JSON.stringify(address) : address.path}, ${hasHeaders})`,
       payload: typeof address === 'string' ? address : null,
       run: () => {
@@ -152,6 +153,7 @@ export class TableProxy extends ProxyBase<TableTarget> {
   protected readonly scalars = ['id', 'name', 'showHeaders', 'showTotals'] as const;
   readonly columns: TableColumnCollectionProxy;
   readonly rows: TableRowCollectionProxy;
+  private _ws?: WorksheetProxy;
   constructor(ctx: SandboxContext, path: string, orNull: boolean, private readonly resolver: () => TableTarget | null) {
     super(ctx, path, orNull);
     this.columns = new TableColumnCollectionProxy(ctx, `${path}.columns`, this);
@@ -163,7 +165,7 @@ export class TableProxy extends ProxyBase<TableTarget> {
   protected override stillValid(t: TableTarget): boolean {
     return findTable(this.context.model, t.id) !== null;
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     if (name === 'columns') return this.columns;
     if (name === 'rows') return this.rows;
     if (name === 'worksheet') return this.worksheet;
@@ -200,7 +202,7 @@ export class TableProxy extends ProxyBase<TableTarget> {
   get showHeaders(): boolean { return this.get('showHeaders'); }
   get showTotals(): boolean { return this.get('showTotals'); }
   get worksheet(): WorksheetProxy {
-    return new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.model().sheet);
+    return (this._ws ??= new late.WorksheetProxy(this.context, `${this.path}.worksheet`, false, () => this.model().sheet));
   }
   private part(name: string, f: (tr: Rect) => Rect): RangeProxy {
     return new RangeProxy(this.context, `${this.path}.${name}()`, false, () => {
@@ -244,7 +246,7 @@ interface ColumnTarget {
 export class TableColumnCollectionProxy extends CollectionBase<TableTarget, TableColumnProxy> {
   protected readonly entity = 'TableColumnCollection';
   protected readonly scalars = ['count'] as const;
-  protected readonly itemScalars = ['id', 'index', 'name', 'values'] as const;
+  readonly itemScalars = ['id', 'index', 'name', 'values'] as const;
   constructor(ctx: SandboxContext, path: string, private readonly table: TableProxy) {
     super(ctx, path, false);
   }
@@ -299,6 +301,7 @@ export class TableColumnCollectionProxy extends CollectionBase<TableTarget, Tabl
     let created: ColumnTarget | null = null;
     const p = new TableColumnProxy(this.context, `${this.path}.add(...)`, false, () => created, this.table);
     this.context.enqueue({
+      write: true,
       statement: `${this.path}.add(${index ?? null}, ..., ${JSON.stringify(name ?? null)})`,
       payload: { index: index ?? null, values: values ?? null, name: name ?? null },
       run: () => {

@@ -80,10 +80,16 @@ type Batch<T> = (context: Excel.RequestContext) => Promise<T>;
 /** Excel.run's shape: run(batch) or run(object | context, batch). */
 export interface SandboxRun {
   <T>(batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
+  <T>(options: Excel.RunOptions, batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
   <T>(object: OfficeExtension.ClientRequestContext | OfficeExtension.ClientObject | { context: unknown }, batch: (context: Excel.RequestContext) => Promise<T>): Promise<T>;
 }
 
 export type SelectionHandler = (args: { workbook: unknown; type: string }) => unknown;
+
+/** Excel.run's options object (delayForCellEdit, mergeUndoGroup), as opposed to a context or client object. */
+function isRunOptions(a: unknown): a is Excel.RunOptions {
+  return typeof a === 'object' && a !== null && !(a instanceof SandboxContext) && !('context' in a);
+}
 
 function newBytes(): ByteStats {
   return { max: 0, total: 0, last: 0 };
@@ -101,6 +107,15 @@ export class SandboxWorkbook {
   readonly importNotes: string[] = [];
   /** Errors thrown by selection-changed handlers (flushEvents rethrows the first). */
   readonly eventErrors: unknown[] = [];
+
+  /**
+   * States the user can put Excel in, switched on for tests: editing a cell (Excel then refuses
+   * every request, or holds it when the run asked for `delayForCellEdit`), a read-only workbook
+   * (every write statement fails with AccessDenied), and workbook-structure protection (adding,
+   * deleting, renaming, moving or hiding sheets fails with AccessDenied).
+   */
+  readonly mode = { cellEdit: false, readOnly: false, structureProtected: false };
+  private cellEditWaiters: (() => void)[] = [];
 
   readonly stats: SandboxStats = {
     runs: 0, syncs: 0, requests: 0, requestBytes: newBytes(), responseBytes: newBytes(),
@@ -128,6 +143,11 @@ export class SandboxWorkbook {
    */
   readonly run: SandboxRun = (<T>(a: unknown, b?: unknown): Promise<T> => {
     if (typeof a === 'function') return this.runIn<T>(new SandboxContext(this), a as Batch<T>);
+    if (isRunOptions(a) && typeof b === 'function') {
+      const fresh = new SandboxContext(this);
+      fresh.delayForCellEdit = a.delayForCellEdit === true;
+      return this.runIn<T>(fresh, b as Batch<T>);
+    }
     const ctx = a instanceof SandboxContext ? a : (a as { context?: unknown } | null)?.context;
     if (!(ctx instanceof SandboxContext) || ctx.sandbox !== this || typeof b !== 'function') {
       return Promise.reject(new SandboxError('InvalidArgument', 'run(object, batch): the object must be a context or an object of this sandbox, and batch a function.'));
@@ -148,6 +168,25 @@ export class SandboxWorkbook {
       ctx.closed = true;
       if (this.selectionKey() !== before) this.fireSelectionChanged();
     }
+  }
+
+  /** Enter or leave cell-edit mode; leaving it releases requests held by `delayForCellEdit`. */
+  setCellEditMode(on: boolean): void {
+    this.mode.cellEdit = on;
+    if (!on) {
+      const ws = this.cellEditWaiters;
+      this.cellEditWaiters = [];
+      for (const w of ws) w();
+    }
+  }
+
+  /** @internal Excel's check before a request runs: refused or held while a cell is being edited. */
+  async admit(delayForCellEdit: boolean): Promise<void> {
+    if (!this.mode.cellEdit) return;
+    if (!delayForCellEdit) {
+      throw new SandboxError('InvalidOperationInCellEditMode', 'Excel is in cell-editing mode. Please exit the edit mode by pressing ENTER or TAB or selecting another cell, and then try again.', 'RequestContext.sync');
+    }
+    await new Promise<void>((r) => this.cellEditWaiters.push(r));
   }
 
   /** The same context object `run` hands out, typed as the sandbox's own classes (for sandbox tests). */
@@ -189,6 +228,16 @@ export class SandboxWorkbook {
 
   get selectionListenerCount(): number {
     return this.listeners.size;
+  }
+
+  /** @internal The selection now, as a key to compare after a request (the Office.js bridge). */
+  selectionKeyNow(): string {
+    return this.selectionKey();
+  }
+
+  /** @internal Fire selection-changed listeners when the selection differs from `before`. */
+  notifySelectionIfChanged(before: string): void {
+    if (this.selectionKey() !== before) this.fireSelectionChanged();
   }
 
   private selectionKey(): string {

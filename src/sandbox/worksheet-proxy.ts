@@ -11,7 +11,7 @@ import { TableCollectionProxy } from './table-proxy.js';
 export class WorksheetCollectionProxy extends CollectionBase<WorkbookModel, WorksheetProxy> {
   protected readonly entity = 'WorksheetCollection';
   protected readonly scalars = [] as const;
-  protected readonly itemScalars = WORKSHEET_SCALARS;
+  readonly itemScalars = WORKSHEET_SCALARS;
   constructor(ctx: SandboxContext) {
     super(ctx, 'workbook.worksheets', false);
   }
@@ -49,6 +49,7 @@ export class WorksheetCollectionProxy extends CollectionBase<WorkbookModel, Work
     let created: SheetModel | null = null;
     const p = new WorksheetProxy(this.context, `worksheets.add(${JSON.stringify(name ?? null)})`, false, () => created);
     this.context.enqueue({
+      write: true,
       statement: `worksheets.add(${JSON.stringify(name ?? null)})`,
       payload: name ?? null,
       run: () => {
@@ -94,7 +95,7 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
     }
     return undefined;
   }
-  protected override nav(name: string): ProxyBase<unknown> | undefined {
+  override nav(name: string): ProxyBase<unknown> | undefined {
     if (name === 'protection') return this.protection;
     if (name === 'tables') return this.tables;
     return undefined;
@@ -142,7 +143,7 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
   getRange(address?: string): RangeProxy {
     return new RangeProxy(this.context, `${this.path}.getRange(${JSON.stringify(address ?? '')})`, false, () => {
       const sheet = this.target();
-      if (address === undefined || address === '') return { sheet, rect: rect(0, 0, MAX_ROWS, MAX_COLS) };
+      if (address === undefined || address === null || address === '') return { sheet, rect: rect(0, 0, MAX_ROWS, MAX_COLS) };
       const p = parseAddress(address);
       if (!p) throw err('InvalidArgument', `"${address}" is not a valid range address (the grid ends at XFD1048576).`, 'Worksheet.getRange');
       if (p.sheet !== null && p.sheet.toLowerCase() !== sheet.name.toLowerCase()) throw err('InvalidArgument', `Address "${address}" names another sheet than "${sheet.name}".`, 'Worksheet.getRange');

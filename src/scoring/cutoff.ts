@@ -58,6 +58,20 @@ export function iqrFenceInSds(k: number): number {
  */
 export function describeCutoff(method: MethodId, cutoff: number, direction: Direction): string {
   const c = formatCutoff(cutoff);
+  if (method === 'adjusted') {
+    const p = tailProbability(iqrFenceInSds(cutoff), direction);
+    const fences = direction === 'both'
+      ? 'below Q1 - k e^(-4 MC) IQR or above Q3 + k e^(3 MC) IQR'
+      : direction === 'high' ? 'above Q3 + k e^(3 MC) IQR' : 'below Q1 - k e^(-4 MC) IQR';
+    return (
+      `Adjusted boxplot fences with k = ${c}: a value is flagged when it lies ${fences} of its group, where MC is the ` +
+      `group's medcouple (a robust measure of skew, > 0 when the high tail is longer; for MC < 0 the exponents are ` +
+      `mirrored: e^(-3 MC) below, e^(4 MC) above). A right-skewed group so gets a longer upper fence, and ordinary ` +
+      `large claims in a skewed category are not flagged for the skew alone. Quartiles are Tukey's hinges. For ` +
+      `normally distributed amounts (MC = 0) the fences are Tukey's, ${formatNumber(iqrFenceInSds(cutoff), 2)} SDs from ` +
+      `the mean, and ${oneInN(p)} values would pass them by chance in a large group.`
+    );
+  }
   if (method === 'iqr') {
     const sds = iqrFenceInSds(cutoff);
     const p = tailProbability(sds, direction);
@@ -85,8 +99,8 @@ export function describeCutoff(method: MethodId, cutoff: number, direction: Dire
  * (not scored). Rows of no-spread / SD-zero groups have 0 and so are never flagged at a cutoff >= 0.
  */
 function reachOf(col: ColumnScores): Float64Array {
-  if (col.method === 'iqr') {
-    if (col.fenceMultiple === undefined) throw new Error('IQR scores lack fenceMultiple: re-run scoreTable with this version of Tailmark.');
+  if (col.method === 'iqr' || col.method === 'adjusted') {
+    if (col.fenceMultiple === undefined) throw new Error('Fence scores lack fenceMultiple: re-run scoreTable with this version of Tailmark.');
     return col.fenceMultiple;
   }
   const out = new Float64Array(col.scores.length);

@@ -57,23 +57,29 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   const log = col.logScale;
   const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled').map((f) => FALLBACK_WORDS[f]).filter((w) => w !== '');
   const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
-  const cut = `${col.method === 'iqr' ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
+  const fenceMethod = col.method === 'iqr' || col.method === 'adjusted';
+  const cut = `${fenceMethod ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
   const logNote = log ? ' (log scale)' : '';
   const centreText = (c: number | null): string => (c === null ? 'n/a' : log ? `${formatNumber(Math.exp(c))} (ln ${formatNumber(c, 3)})` : formatNumber(c));
   const scaleText = (v: number | null): string => (v === null ? '0' : log ? `${formatNumber(v, 3)} in ln units` : formatNumber(v));
 
-  if (col.method === 'iqr') {
+  if (fenceMethod) {
+    const adjusted = col.method === 'adjusted';
     const fences = stats.lower !== null && stats.upper !== null
       ? `fences ${formatNumber(stats.lower)} to ${formatNumber(stats.upper)}`
       : stats.upper !== null ? `upper fence ${formatNumber(stats.upper)}` : stats.lower !== null ? `lower fence ${formatNumber(stats.lower)}` : 'no fences';
     const iqrName = stats.fallbacks.includes('iqr-zero') ? "column's IQR" : 'IQR';
-    const figures = log
-      ? `${fences}, ${iqrName} of ln amounts ${formatNumber(stats.scale ?? 0, 3)}, n = ${stats.n}`
-      : `Q1 ${fmtQ(stats, 'q1')}, Q3 ${fmtQ(stats, 'q3')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
+    const mc = stats.medcouple;
+    const figures = adjusted
+      ? `${fences}, ${iqrName}${log ? ' of ln amounts' : ''} ${formatNumber(stats.scale ?? 0, 3)} (between Tukey's hinges), medcouple ${mc === null ? 'n/a' : formatNumber(mc, 2)}, n = ${stats.n}`
+      : log
+        ? `${fences}, ${iqrName} of ln amounts ${formatNumber(stats.scale ?? 0, 3)}, n = ${stats.n}`
+        : `Q1 ${fmtQ(stats, 'q1')}, Q3 ${fmtQ(stats, 'q3')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
+    const unitWord = adjusted ? 'skew-adjusted IQRs' : 'IQRs';
     const where = z > 0
-      ? `is ${formatScore(z)} IQRs${logNote} above the upper fence of ${against}`
+      ? `is ${formatScore(z)} ${unitWord}${logNote} above the upper fence of ${against}`
       : z < 0
-        ? `is ${formatScore(-z)} IQRs${logNote} below the lower fence of ${against}`
+        ? `is ${formatScore(-z)} ${unitWord}${logNote} below the lower fence of ${against}`
         : `lies between the fences${logNote} of ${against}`;
     return `${amount} ${where} (${figures}); ${cut}. ${tail}`;
   }

@@ -1,4 +1,5 @@
 import { MAD_NORMAL_CONSTANT } from './mad.js';
+import { medcoupleSorted } from './medcouple.js';
 import { EMPTY_SUMMARY, real, summarize, type Summary } from './summary.js';
 import type { ExclusionReason, Fallback, GroupStats, MethodId, Population } from './types.js';
 
@@ -20,17 +21,18 @@ import type { ExclusionReason, Fallback, GroupStats, MethodId, Population } from
  */
 
 /** Fields of `Summary` a descriptive field is read from. */
-type SummaryField = 'median' | 'mad' | 'meanAbsDev' | 'mean' | 'sd' | 'q1' | 'q3';
+type SummaryField = 'median' | 'mad' | 'meanAbsDev' | 'mean' | 'sd' | 'q1' | 'q3' | 'medcouple';
 /** Descriptive fields of `GroupStats`, in declaration order. */
-export const DESCRIPTIVE_FIELDS = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
+export const DESCRIPTIVE_FIELDS = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3', 'medcouple'] as const;
 type DescriptiveField = (typeof DESCRIPTIVE_FIELDS)[number];
 
-const BIT: Record<SummaryField, number> = { median: 1, mad: 2, meanAbsDev: 4, mean: 8, sd: 16, q1: 32, q3: 64 };
+const BIT: Record<SummaryField, number> = { median: 1, mad: 2, meanAbsDev: 4, mean: 8, sd: 16, q1: 32, q3: 64, medcouple: 128 };
 /** Which fields each method's scoring summary (`summarizeFor`) holds, as bits of `BIT`. */
 export const SCORING_FIELDS: Readonly<Record<MethodId, number>> = {
   robust: BIT.median | BIT.mad | BIT.meanAbsDev,
   classic: BIT.mean | BIT.sd,
   iqr: BIT.median | BIT.q1 | BIT.q3,
+  adjusted: BIT.median | BIT.medcouple,
 };
 
 /**
@@ -44,6 +46,7 @@ export const SCORING_FIELDS: Readonly<Record<MethodId, number>> = {
 export class DescriptiveStore {
   private readonly cache: (Summary | undefined)[];
   private wholeCache: Summary | undefined;
+  private readonly mcCache = new Map<number, number>();
   private scratch: Float64Array | null = null;
   private dev: Float64Array | null = null;
   private source: Float64Array | (() => Float64Array);
@@ -87,6 +90,28 @@ export class DescriptiveStore {
     return s;
   }
 
+  /**
+   * Medcouple of group g (-1: the whole column), of ln(x) when `log` (cached; O(n log n): a sorted
+   * copy). Not part of `summarize`, which stays O(n).
+   */
+  medcouple(g: number, log: boolean): number {
+    const key = g + 1;
+    const cached = this.mcCache.get(key);
+    if (cached !== undefined) return cached;
+    let a: Float64Array;
+    if (g < 0) a = log ? this.gather(Math.log) : this.gather();
+    else {
+      const from = this.start[g];
+      const n = this.count[g];
+      a = this.ordered.slice(from, from + n);
+      if (log) for (let i = 0; i < n; i++) a[i] = Math.log(a[i]);
+    }
+    a.sort();
+    const mc = medcoupleSorted(a, a.length);
+    this.mcCache.set(key, mc);
+    return mc;
+  }
+
   /** Full summary of the whole column (cached; uses two temporary arrays of `total` values). */
   whole(): Summary {
     if (this.wholeCache !== undefined) return this.wholeCache;
@@ -121,11 +146,18 @@ interface LazyRef {
   readonly scoring: Summary | null;
   /** Which of its fields hold values (bits of `BIT`). */
   readonly scoringBits: number;
+  /** Scores are on ln(x): the medcouple is of ln(x) too. */
+  readonly log: boolean;
 }
 
 function fieldValue(ref: LazyRef, f: DescriptiveField): number | null {
   const n = ref.n;
   if (n === 0 || (f === 'sd' && n < 2)) return null;
+  if (f === 'medcouple') {
+    // Scale free: no unit. The scoring summary holds it only on the linear scale (or log: see LazyRef).
+    const mc = ref.scoring !== null && (ref.scoringBits & BIT.medcouple) !== 0 ? ref.scoring.medcouple : ref.store.medcouple(ref.g, ref.log);
+    return Number.isFinite(mc) ? mc : null;
+  }
   const sf: SummaryField = f === 'scaledMad' ? 'mad' : f;
   const s = ref.scoring !== null && (ref.scoringBits & BIT[sf]) !== 0 ? ref.scoring : ref.g < 0 ? ref.store.whole() : ref.store.group(ref.g);
   const v = real(s[sf], s.unit);
@@ -160,8 +192,10 @@ export interface StatsTail {
  * One object literal with getters (own, enumerable, configurable accessors closing over the
  * group's source): much cheaper to create than `Object.defineProperties` per object.
  */
-export function lazyGroupStats(head: StatsHead, store: DescriptiveStore, g: number, scoring: Summary | null, scoringBits: number, tail: StatsTail): GroupStats {
-  const ref: LazyRef = { store, g, n: head.n, scoring, scoringBits };
+export function lazyGroupStats(
+  head: StatsHead, store: DescriptiveStore, g: number, scoring: Summary | null, scoringBits: number, tail: StatsTail, log = false,
+): GroupStats {
+  const ref: LazyRef = { store, g, n: head.n, scoring, scoringBits, log };
   return {
     key: head.key, label: head.label, keyParts: head.keyParts, rows: head.rows, n: head.n, excluded: head.excluded,
     get median() { return fieldValue(ref, 'median'); },
@@ -172,6 +206,7 @@ export function lazyGroupStats(head: StatsHead, store: DescriptiveStore, g: numb
     get sd() { return fieldValue(ref, 'sd'); },
     get q1() { return fieldValue(ref, 'q1'); },
     get q3() { return fieldValue(ref, 'q3'); },
+    get medcouple() { return fieldValue(ref, 'medcouple'); },
     center: tail.center,
     scale: tail.scale,
     lower: tail.lower,

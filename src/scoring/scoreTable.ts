@@ -230,6 +230,7 @@ function scoreColumn(
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
+    lowScale: new Float64Array(nGroups), highScale: new Float64Array(nGroups),
   };
   fitGroups(method, opts, yOrdered, pre, start, count, column, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
@@ -237,7 +238,7 @@ function scoreColumn(
   // 4. Score every row in row order.
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
-  const reach = method.id === 'iqr' ? new Float64Array(rowCount).fill(NaN) : undefined;
+  const reach = method.id === 'iqr' || method.id === 'adjusted' ? new Float64Array(rowCount).fill(NaN) : undefined;
   const flaggedPerGroup = new Int32Array(nGroups);
   const scoredRows = scoreRows(
     flat, groupOf, opts.cutoff, opts.direction,
@@ -260,6 +261,7 @@ function scoreColumn(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
       store, -1, logScale ? null : whole.s, bits,
       statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll),
+      logScale,
     );
     return pooled;
   };
@@ -336,6 +338,8 @@ function fitGroups(
     flat.scale[g] = fit.scale;
     flat.q1[g] = fit.q1;
     flat.q3[g] = fit.q3;
+    flat.lowScale[g] = fit.lowScale;
+    flat.highScale[g] = fit.highScale;
     const fast = fit.kind === 'z' && fit.unit === 1 && fit.scale > 0 && Number.isFinite(fit.center) && Number.isFinite(fit.scale);
     flat.fast[g] = fast ? 1 : 0;
     flat.cs[2 * g] = fast ? fit.center : NaN;
@@ -471,7 +475,7 @@ function classicInRowOrder(groupOf: Int32Array, exclusion: Uint8Array, y: Float6
         const mean = m0[g] + c / n;
         const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
         const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
-        out[g] = { n, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN };
+        out[g] = { n, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
       }
     }
   }
@@ -511,6 +515,7 @@ function buildGroups(
       { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
       store, g, scoringSummaries[g], bits,
       statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n),
+      logScale,
     );
   }
   return groups;
@@ -638,6 +643,8 @@ interface FlatFits {
   readonly scale: Float64Array;
   readonly q1: Float64Array;
   readonly q3: Float64Array;
+  readonly lowScale: Float64Array;
+  readonly highScale: Float64Array;
 }
 
 /**
@@ -705,7 +712,7 @@ function scoreOtherRows(
   exclusion: Uint8Array, y: Float64Array, scores: Float64Array, flagged: Uint8Array, population: Uint8Array,
   reach: Float64Array | undefined, flaggedPerGroup: Int32Array,
 ): number {
-  const { fast, kind, popOf, unit, center, scale, q1, q3 } = fits;
+  const { fast, kind, popOf, unit, center, scale, q1, q3, lowScale, highScale } = fits;
   const n = y.length;
   let count = 0;
   for (let r = 0; r < n; r++) {
@@ -729,10 +736,10 @@ function scoreOtherRows(
       flagged[r] = f;
       flaggedPerGroup[g] += f;
     } else {
-      let tHigh = (v - q3[g]) / sc;
+      let tHigh = (v - q3[g]) / highScale[g];
       if (tHigh > MAX) tHigh = MAX;
       else if (tHigh < -MAX) tHigh = -MAX;
-      let tLow = (q1[g] - v) / sc;
+      let tLow = (q1[g] - v) / lowScale[g];
       if (tLow > MAX) tLow = MAX;
       else if (tLow < -MAX) tLow = -MAX;
       let score = 0;

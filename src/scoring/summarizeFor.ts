@@ -1,4 +1,6 @@
+import { medcoupleSorted } from './medcouple.js';
 import { medianInPlace } from './median.js';
+import { tukeyHingesSorted } from './tukeyHinges.js';
 import { minOfRange, quickselect } from './quickselect.js';
 import { constantSummary, EMPTY_SUMMARY, powerOfTwoUnit, type Summary, typeSevenWithin } from './summary.js';
 import type { MethodId } from './types.js';
@@ -11,7 +13,8 @@ import type { MethodId } from './types.js';
  * - robust: median and MAD, and the mean absolute deviation around the median (its sum comes
  *   free with the deviation pass the MAD needs; the method uses it only when MAD = 0);
  * - classic: mean and sample SD (corrected two-pass, Chan, Golub & LeVeque 1983), no copy;
- * - iqr: median, Q1 and Q3 (type 7, Hyndman & Fan 1996).
+ * - iqr: median, Q1 and Q3 (type 7, Hyndman & Fan 1996);
+ * - adjusted: median, Tukey's hinges and the medcouple, from one sort of the group (O(n log n)).
  *
  * Reads `src[from .. from+n-1]` (finite numbers) without changing it; `scratch` (length >= n) is
  * overwritten. `scratch` may be `src` itself when `from` = 0 and the caller does not need `src`
@@ -57,12 +60,20 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     const mean = m0 + c / n;
     const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
     const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
-    return { n, unit, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN };
+    return { n, unit, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
   }
   if (unit === 1) {
     if (scratch !== src) scratch.set(src.subarray(from, to));
   } else {
     for (let i = 0; i < n; i++) scratch[i] = src[from + i] / unit;
+  }
+  if (method === 'adjusted') {
+    // One sort gives the median, Tukey's hinges and the medcouple.
+    const sorted = scratch.subarray(0, n).sort();
+    const { low, high } = tukeyHingesSorted(sorted, n);
+    const median = n % 2 === 1 ? sorted[n >> 1] : sorted[(n >> 1) - 1] + (sorted[n >> 1] - sorted[(n >> 1) - 1]) / 2;
+    const mc = medcoupleSorted(sorted, n);
+    return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: low, hingeHigh: high, medcouple: mc };
   }
   const k = (n - 1) >> 1;
   quickselect(scratch, k, 0, n - 1);
@@ -71,7 +82,7 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
   if (method === 'iqr') {
     const q1 = typeSevenWithin(scratch, n, 0.25, 0, k);
     const q3 = typeSevenWithin(scratch, n, 0.75, k, n - 1);
-    return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1, q3 };
+    return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1, q3, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
   }
   // robust: deviations from the median (read from the scratch, which holds the same values,
   // permuted and scaled), then their median.
@@ -82,5 +93,5 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     sad += d;
   }
   const mad = medianInPlace(scratch, n);
-  return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1: NaN, q3: NaN };
+  return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
 }

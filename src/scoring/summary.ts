@@ -20,6 +20,11 @@ export interface Summary {
   readonly sd: number;
   readonly q1: number;
   readonly q3: number;
+  /** Tukey's hinges (R `fivenum`), used by the adjusted boxplot; NaN when not computed. */
+  readonly hingeLow: number;
+  readonly hingeHigh: number;
+  /** Medcouple (see `medcouple.ts`); NaN when not computed. */
+  readonly medcouple: number;
 }
 
 const BIG = 2 ** 500;
@@ -43,10 +48,10 @@ export function powerOfTwoUnit(min: number, max: number): number {
 
 /** n values all equal to v: every statistic is exact and the spread is 0 (SD undefined for n = 1). */
 export function constantSummary(n: number, v: number): Summary {
-  return { n, unit: 1, median: v, mad: 0, meanAbsDev: 0, mean: v, sd: n >= 2 ? 0 : NaN, q1: v, q3: v };
+  return { n, unit: 1, median: v, mad: 0, meanAbsDev: 0, mean: v, sd: n >= 2 ? 0 : NaN, q1: v, q3: v, hingeLow: v, hingeHigh: v, medcouple: 0 };
 }
 
-export const EMPTY_SUMMARY: Summary = { n: 0, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN };
+export const EMPTY_SUMMARY: Summary = { n: 0, unit: 1, median: NaN, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
 
 /**
  * Summarises `buf[0..n-1]` (finite numbers). Rearranges and may rescale `buf`; overwrites
@@ -97,7 +102,7 @@ export function summarize(buf: Float64Array, n: number, dev: Float64Array): Summ
     sad += d;
   }
   const mad = medianInPlace(dev, n);
-  return { n, unit, median, mad, meanAbsDev: sad / n, mean, sd, q1, q3 };
+  return { n, unit, median, mad, meanAbsDev: sad / n, mean, sd, q1, q3, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
 }
 
 /**

@@ -69,7 +69,7 @@ export interface DecimalReading {
 }
 
 /** Every scoring method; hosts (CLI options, saved settings, the pane) take the list from here. */
-export const METHOD_IDS = ['robust', 'classic', 'iqr'] as const;
+export const METHOD_IDS = ['robust', 'classic', 'iqr', 'adjusted'] as const;
 export type MethodId = (typeof METHOD_IDS)[number];
 export const DIRECTIONS = ['high', 'low', 'both'] as const;
 export type Direction = (typeof DIRECTIONS)[number];
@@ -79,7 +79,7 @@ export type SmallGroupPolicy = (typeof SMALL_GROUP_POLICIES)[number];
 
 export interface ScoreOptions {
   readonly method: MethodId;
-  /** Cutoff on the method's score; defaults per method (robust 3.5, classic 3, IQR k = 1.5). */
+  /** Cutoff on the method's score; defaults per method (robust 3.5, classic 3, IQR and adjusted k = 1.5). */
   readonly cutoff?: number;
   readonly direction: Direction;
   /** Score ln(x) instead of x; amounts <= 0 are excluded with reason `not-positive-for-log`. */
@@ -145,6 +145,11 @@ export interface GroupStats {
   readonly sd: number | null;
   readonly q1: number | null;
   readonly q3: number | null;
+  /**
+   * Medcouple (Brys, Hubert & Struyf 2004): robust skewness in [-1, 1], > 0 when the upper tail is
+   * longer. Of the scoring values (ln amounts on log scale). Computed on first read (O(n log n)).
+   */
+  readonly medcouple: number | null;
   /** Centre and scale the method used (median and scaled MAD / mean and SD / Q1..Q3 with IQR). On the log scale if logScale. */
   readonly center: number | null;
   readonly scale: number | null;

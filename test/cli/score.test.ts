@@ -276,7 +276,7 @@ interface JsonOutput {
   method: string;
   cutoff: number;
   rows: { row: number; group: string; value: number | null; score: number | null; flagged: boolean }[];
-  groups: { key: string; n: number; center: number | null; flagged: number }[];
+  groups: { key: string; n: number; center: number | null; lower: number | null; upper: number | null; flagged: number; medcouple: number | null }[];
 }
 
 describe('--json', () => {
@@ -299,6 +299,26 @@ describe('--json', () => {
     expect(g?.center).toBe(144); // median of the 23 lodging amounts (hand-set, see src/demo/claims.ts)
     for (const k of ['key', 'n', 'center', 'scale', 'lower', 'upper', 'flagged']) expect(g).toHaveProperty(k);
     const flaggedRows = j.rows.filter((x) => x.flagged);
-    expect(flaggedRows.every((x) => x.score !== null && Math.abs(x.score) > 3.5)).toBe(true);
+    for (const x of flaggedRows) expect(Math.abs(x.score ?? NaN), `row ${x.row}`).toBeGreaterThan(3.5);
+  });
+});
+
+describe('--method adjusted', () => {
+  it('flags what R robustbase adjboxStats puts outside its fences and reports each group\'s medcouple (test/reference/make-r-medcouple.R, set lognormal60)', async () => {
+    const { readFileSync } = await import('node:fs');
+    const fixture = JSON.parse(readFileSync(new URL('../reference/r-medcouple.json', import.meta.url), 'utf8')) as Record<string, { x: number[]; mc: number; fence: number[]; out: number[] }>;
+    const s = fixture.lognormal60;
+    const p = join(dir, 'adjusted.csv');
+    writeFileSync(p, ['Team,Amount', ...s.x.map((a) => `W,${a}`)].join('\n'));
+    const r = await run('score', p, '--value', 'Amount', '--group', 'Team', '--method', 'adjusted', '--json');
+    expect(r.err).toBe('');
+    const j = JSON.parse(r.out) as JsonOutput;
+    expect(j.method).toBe('adjusted');
+    expect(j.cutoff).toBe(1.5);
+    expect(j.groups[0].medcouple).toBeCloseTo(s.mc, 12);
+    expect(j.groups[0].lower).toBeCloseTo(s.fence[0], 9);
+    expect(j.groups[0].upper).toBeCloseTo(s.fence[1], 9);
+    const flagged = j.rows.filter((x) => x.flagged).map((x) => x.value ?? NaN).sort((a, b) => a - b);
+    expect(flagged).toEqual(s.out);
   });
 });

@@ -10,7 +10,12 @@ import { startServer } from '../../scripts/serve.mjs';
 
 export const ROOT = path.resolve(import.meta.dirname, '..', '..');
 export const OUT_DIR = path.join(ROOT, 'test-output', 'dist-web');
-export const SCREENSHOT_DIR = path.join(ROOT, 'docs', 'screenshots');
+/**
+ * Where the tests save screenshots: test-output/screenshots (ignored by git), so a test run never rewrites
+ * tracked files. TAILMARK_UPDATE_SCREENSHOTS=1 saves them into docs/screenshots instead, to refresh the docs.
+ */
+export const SCREENSHOT_DIR =
+  process.env.TAILMARK_UPDATE_SCREENSHOTS === '1' ? path.join(ROOT, 'docs', 'screenshots') : path.join(ROOT, 'test-output', 'screenshots');
 export const CHROMIUM_ARGS = [
   '--headless',
   '--no-sandbox',

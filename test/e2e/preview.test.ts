@@ -1,7 +1,7 @@
 /**
  * Browser end-to-end tests: the real task pane driving the sandbox workbook on the preview page,
  * built for production and served by scripts/serve.mjs, in headless Chromium. Also saves the
- * screenshots in docs/screenshots/.
+ * screenshots, into test-output/screenshots/ (docs/screenshots/ with TAILMARK_UPDATE_SCREENSHOTS=1).
  */
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';

@@ -54,7 +54,7 @@ describe('validateSettings', () => {
   it('names the setting as the host asks, and shows the value as typed', () => {
     const msg = codeOf(() => validateSettings({ ...cols, minGroupSize: 2.5 }, { nameOf: (k) => `--${k}`, shown: () => '"2.5"' }));
     expect(msg).toBe('bad-settings: --minGroupSize must be a whole number of at least 1; got "2.5"');
-    expect(codeOf(() => validateSettings({ ...cols, method: 'median' }))).toBe('bad-settings: The method must be one of robust, classic, iqr; got "median"');
+    expect(codeOf(() => validateSettings({ ...cols, method: 'median' }))).toBe('bad-settings: The method must be one of robust, classic, iqr, adjusted; got "median"');
     expect(codeOf(() => validateSettings({ valueColumns: ['A'], groupColumns: ['A'] }))).toMatch(/"A" is given both as an amount column and as a group column/);
     expect(codeOf(() => validateSettings({ valueColumns: [] }))).toMatch(/must name at least one column/);
   });

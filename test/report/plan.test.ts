@@ -86,7 +86,7 @@ describe('buildPlan: result columns', () => {
     expect(p.columns[3].values[9]).toBe(REVIEW_STATUSES.find((s) => s.id === 'open')!.label);
     expect(p.columns[1].values[0]).toBeNull();
     expect(p.columns[3].values[0]).toBeNull();
-    expect(p.columns[4].values.every((v) => v === null)).toBe(true);
+    expect(p.columns[4].values.filter((v) => v !== null)).toEqual([]);
   });
 
   it('writes a plain-words reason for every row, naming the group', () => {
@@ -189,7 +189,7 @@ describe('notes sheet', () => {
     expect(s.table).toBe(true);
     expect(s.rows[0]).toEqual([
       'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
-      'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with',
+      'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)',
     ]);
     const g1 = s.rows.find((r) => r[0] === '=G1')!;
     expect(g1).toBeDefined();

@@ -1,4 +1,5 @@
 import { readFileSync } from 'node:fs';
+import { expect } from 'vitest';
 import { fileURLToPath } from 'node:url';
 import { mulberry32 } from '../../src/demo/random.js';
 
@@ -23,8 +24,14 @@ export const rStats = (): Record<string, RSet> => {
 /** SciPy fixture, made by test/reference/make-scipy-fixture.py. */
 export const scipy = (): SciPyFixture => ref('scipy.json') as SciPyFixture;
 
-/** Relative closeness check. */
-export const near = (a: number, b: number, rel = 1e-12, abs = 1e-12): boolean => Math.abs(a - b) <= Math.max(abs, rel * Math.abs(b));
+/**
+ * Asserts |actual - expected| <= max(abs, rel * |expected|). On failure vitest prints both numbers, the
+ * gap and the tolerance (toBeCloseTo only knows an absolute number of decimal places).
+ */
+export function expectNear(actual: number, expected: number, rel = 1e-12, abs = 1e-12): void {
+  const tolerance = Math.max(abs, rel * Math.abs(expected));
+  expect(Math.abs(actual - expected), `got ${actual}, expected ${expected} within ${tolerance}`).toBeLessThanOrEqual(tolerance);
+}
 
 /** Deterministic PRNG (mulberry32). */
 export const rng = mulberry32;

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { erfc, inverseNormal, MAD_NORMAL_CONSTANT, mean, normalCdf, normalUpperTail, sampleStandardDeviation } from '../../src/scoring/index.js';
-import { near, normalSample, scipy } from './helpers.js';
+import { expectNear, normalSample, scipy } from './helpers.js';
 
 describe('normal distribution against a published standard normal table', () => {
   // Standard normal table values (e.g. Abramowitz & Stegun, Handbook of Mathematical Functions, Table 26.1;
@@ -21,18 +21,18 @@ describe('normal distribution against SciPy 1.17 (norm.sf, norm.cdf, norm.ppf) â
   const f = scipy();
   for (const { z, sf, cdf } of f.norm) {
     it(`z = ${z}: sf and cdf to 1e-12 relative`, () => {
-      expect(near(normalUpperTail(z), sf, 1e-12, 1e-300)).toBe(true);
-      expect(near(normalCdf(z), cdf, 1e-12, 1e-300)).toBe(true);
+      expectNear(normalUpperTail(z), sf, 1e-12, 1e-300);
+      expectNear(normalCdf(z), cdf, 1e-12, 1e-300);
     });
   }
   for (const { p, ppf } of f.ppf) {
     it(`inverse normal at p = ${p} to 1e-12`, () => {
-      expect(near(inverseNormal(p), ppf, 1e-12, 1e-14)).toBe(true);
+      expectNear(inverseNormal(p), ppf, 1e-12, 1e-14);
     });
   }
   it('erfc edge cases (documented): erfc(0) = 1, odd symmetry erfc(-x) = 2 - erfc(x), NaN passes through', () => {
     expect(erfc(0)).toBe(1);
-    expect(near(erfc(-1.3), 2 - erfc(1.3), 1e-15)).toBe(true);
+    expectNear(erfc(-1.3), 2 - erfc(1.3), 1e-15);
     expect(erfc(NaN)).toBeNaN();
     expect(erfc(40)).toBe(0);
     expect(inverseNormal(0)).toBe(-Infinity);

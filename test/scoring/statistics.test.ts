@@ -3,19 +3,19 @@ import { describe, expect, it } from 'vitest';
 import {
   inverseNormal, mad, MAD_NORMAL_CONSTANT, mean, meanAbsoluteDeviation, median, quantile, quickselect, sampleStandardDeviation,
 } from '../../src/scoring/index.js';
-import { near, rng, rStats, scipy } from './helpers.js';
+import { expectNear, rng, rStats, scipy } from './helpers.js';
 
 describe('statistics against R 4.2 (stats::median, mad, mean, sd, quantile type 7) — fixture test/reference/r-stats.json', () => {
   for (const [name, d] of Object.entries(rStats())) {
     it(`${name}: median, MAD (constant 1.4826 and 1), mean, sd, Q1/Q3, mean abs. deviation`, () => {
-      expect(near(median(d.x), d.median)).toBe(true);
-      expect(near(mad(d.x, MAD_NORMAL_CONSTANT), d.mad)).toBe(true);
-      expect(near(mad(d.x), d.mad1)).toBe(true);
-      expect(near(mean(d.x), d.mean, 1e-14)).toBe(true);
-      expect(near(sampleStandardDeviation(d.x), d.sd, 1e-13)).toBe(true);
-      expect(near(quantile(d.x, 0.25), d.q1)).toBe(true);
-      expect(near(quantile(d.x, 0.75), d.q3)).toBe(true);
-      expect(near(meanAbsoluteDeviation(d.x), d.meanAbsDevMedian, 1e-13)).toBe(true);
+      expectNear(median(d.x), d.median);
+      expectNear(mad(d.x, MAD_NORMAL_CONSTANT), d.mad);
+      expectNear(mad(d.x), d.mad1);
+      expectNear(mean(d.x), d.mean, 1e-14);
+      expectNear(sampleStandardDeviation(d.x), d.sd, 1e-13);
+      expectNear(quantile(d.x, 0.25), d.q1);
+      expectNear(quantile(d.x, 0.75), d.q3);
+      expectNear(meanAbsoluteDeviation(d.x), d.meanAbsDevMedian, 1e-13);
     });
   }
 });
@@ -25,10 +25,10 @@ describe('statistics against SciPy 1.17 (median_abs_deviation, iqr) — fixture 
   for (const [name, s] of Object.entries(scipy().sets)) {
     it(`${name}: raw MAD, normal-scaled MAD (1/Phi^-1(0.75)), IQR`, () => {
       const x = r[name].x;
-      expect(near(mad(x), s.madRaw)).toBe(true);
+      expectNear(mad(x), s.madRaw);
       // SciPy's scale='normal' is the exact 1/Phi^-1(0.75) = 1.482602..., not the rounded 1.4826.
-      expect(near(mad(x) / inverseNormal(0.75), s.madNormal, 1e-12)).toBe(true);
-      expect(near(quantile(x, 0.75) - quantile(x, 0.25), s.iqr, 1e-12)).toBe(true);
+      expectNear(mad(x) / inverseNormal(0.75), s.madNormal, 1e-12);
+      expectNear(quantile(x, 0.75) - quantile(x, 0.25), s.iqr, 1e-12);
     });
   }
 });
@@ -55,11 +55,11 @@ describe('simple-statistics 7.12 as a second implementation, seeded random data'
     const n = 1 + Math.floor(r() * 300);
     const x = Array.from({ length: n }, () => Math.round((r() < 0.1 ? 5000 : 200) * Math.exp(r() * 2) * 100) / 100);
     it(`trial ${trial} (n = ${n})`, () => {
-      expect(near(median(x), ss.median(x))).toBe(true);
-      expect(near(mad(x), ss.medianAbsoluteDeviation(x))).toBe(true);
-      expect(near(mean(x), ss.mean(x), 1e-13)).toBe(true);
-      if (n >= 2) expect(near(sampleStandardDeviation(x), ss.sampleStandardDeviation(x), 1e-10)).toBe(true);
-      for (const p of [0.1, 0.25, 0.75, 0.9]) expect(near(quantile(x, p), ss.quantile(x, p), 1e-12)).toBe(true);
+      expectNear(median(x), ss.median(x));
+      expectNear(mad(x), ss.medianAbsoluteDeviation(x));
+      expectNear(mean(x), ss.mean(x), 1e-13);
+      if (n >= 2) expectNear(sampleStandardDeviation(x), ss.sampleStandardDeviation(x), 1e-10);
+      for (const p of [0.1, 0.25, 0.75, 0.9]) expectNear(quantile(x, p), ss.quantile(x, p), 1e-12);
     });
   }
 });

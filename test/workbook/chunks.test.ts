@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { sandboxFromRows } from '../../src/sandbox/index.js';
 import { createWorkbookLayer } from '../../src/workbook/index.js';
-import { claimRows, SETTINGS } from './helpers.js';
+import { claimRows, SETTINGS, hostRun } from './helpers.js';
 
 const LIMIT = 150_000;
 
@@ -18,7 +18,7 @@ describe('chunked reads and writes', () => {
   it('keeps every request and response under the limit and reads every cell', async () => {
     const sb = sandboxFromRows('Claims', wide(20_000, 40, 500), { payloadLimitBytes: LIMIT });
     sb.setSelection('Claims', 'A1');
-    const layer = createWorkbookLayer(sb.run, { payloadLimit: LIMIT });
+    const layer = createWorkbookLayer(hostRun(sb), { payloadLimit: LIMIT });
     const t = await layer.detect();
     expect(t.rowCount).toBe(20_000);
     const preview = await layer.readForPreview(t, { ...SETTINGS, idColumn: null, groupColumns: ['Cost centre'] });
@@ -42,7 +42,7 @@ describe('chunked reads and writes', () => {
     ]) {
       const sb = sandboxFromRows('Claims', wide(6_000, groups, plant), { payloadLimitBytes: LIMIT });
       sb.setSelection('Claims', 'A1');
-      const layer = createWorkbookLayer(sb.run, { payloadLimit: LIMIT });
+      const layer = createWorkbookLayer(hostRun(sb), { payloadLimit: LIMIT });
       const s = await layer.run(await layer.detect(), { ...SETTINGS, idColumn: null, groupColumns: ['Cost centre'], minGroupSize: 3 });
       expect(s.flagged).toBeGreaterThan(0);
       syncs.push(sb.stats.syncs);
@@ -56,7 +56,7 @@ describe('chunked reads and writes', () => {
   it('5,000 claims: the data is read in one sync when detect measured the row size', async () => {
     const sb = sandboxFromRows('Claims', claimRows(5000));
     sb.setSelection('Claims', 'C2');
-    const layer = createWorkbookLayer(sb.run);
+    const layer = createWorkbookLayer(hostRun(sb));
     const t = await layer.detect();
     expect(layer.lastStats?.syncs).toBe(2);
     await layer.run(t, SETTINGS);

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { diffSnapshots, type SandboxWorkbook } from '../../src/sandbox/index.js';
 import { createWorkbookLayer, type ExcelRunner } from '../../src/workbook/index.js';
-import { claimsSandbox, SETTINGS } from './helpers.js';
+import { claimsSandbox, SETTINGS, hostRun } from './helpers.js';
 
 /**
  * A runner around the sandbox whose sync number `failAt` (counted across the whole run) fails the
@@ -10,7 +10,7 @@ import { claimsSandbox, SETTINGS } from './helpers.js';
 function failingRunner(sb: SandboxWorkbook, failAt: number): ExcelRunner {
   let n = 0;
   return (batch) =>
-    sb.run((context) => {
+    hostRun(sb)((context) => {
       const original = context.sync.bind(context);
       context.sync = (async () => {
         n++;
@@ -30,7 +30,7 @@ const LIMIT = { payloadLimit: 120_000, now: () => new Date('2025-03-31T09:00:00Z
 
 async function syncsOfRun(rows: number, rerun: boolean): Promise<number> {
   const sb = claimsSandbox(rows);
-  const layer = createWorkbookLayer(sb.run, LIMIT);
+  const layer = createWorkbookLayer(hostRun(sb), LIMIT);
   if (rerun) await layer.run(await layer.detect(), SETTINGS);
   const t = await layer.detect();
   await layer.run(t, SETTINGS);
@@ -43,7 +43,7 @@ describe('a write phase that fails part-way is undone', () => {
     expect(total).toBeGreaterThan(6); // several write syncs under the small budget
     for (const failAt of [total - 1, total - 3]) {
       const sb = claimsSandbox(1500);
-      const t = await createWorkbookLayer(sb.run, LIMIT).detect();
+      const t = await createWorkbookLayer(hostRun(sb), LIMIT).detect();
       const before = sb.snapshot();
       const layer = createWorkbookLayer(failingRunner(sb, failAt), LIMIT);
       await expect(layer.run(t, SETTINGS)).rejects.toThrow(/protected/);
@@ -53,7 +53,7 @@ describe('a write phase that fails part-way is undone', () => {
 
   it('re-run: review marks are back where they were', async () => {
     const sb = claimsSandbox(1500);
-    const ok = createWorkbookLayer(sb.run, LIMIT);
+    const ok = createWorkbookLayer(hostRun(sb), LIMIT);
     await ok.run(await ok.detect(), SETTINGS);
     const ex = await ok.listExceptions();
     await ok.mark([ex[0].row], 'Cleared', 'receipt seen');

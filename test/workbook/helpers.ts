@@ -3,6 +3,31 @@ import { SandboxWorkbook, sandboxFromRows } from '../../src/sandbox/index.js';
 import { createWorkbookLayer, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
 import type { RunSettings } from '../../src/workbook/api.js';
 import { mulberry32 } from '../../src/demo/random.js';
+import { officeClientFor, type OfficeClientHost } from '../../src/cli/office-client.js';
+
+/**
+ * Which client the workbook-layer tests run through: the sandbox directly, or Microsoft's real
+ * Office.js client whose requests the sandbox answers (vitest project "office-js" sets
+ * TAILMARK_TEST_CLIENT=office-js; see vitest.config.ts).
+ */
+export const CLIENT: 'sandbox' | 'office-js' = process.env.TAILMARK_TEST_CLIENT === 'office-js' ? 'office-js' : 'sandbox';
+
+const hosts = new WeakMap<SandboxWorkbook, OfficeClientHost>();
+
+/** The office-js host of a sandbox (one per sandbox). */
+export function officeHost(sb: SandboxWorkbook): OfficeClientHost {
+  let h = hosts.get(sb);
+  if (!h) {
+    h = officeClientFor(sb);
+    hosts.set(sb, h);
+  }
+  return h;
+}
+
+/** Excel.run for the workbook layer under test: the sandbox's own, or the real client's. */
+export function hostRun(sb: SandboxWorkbook): SandboxWorkbook['run'] {
+  return CLIENT === 'office-js' ? (officeHost(sb).run as SandboxWorkbook['run']) : sb.run;
+}
 
 export const HEADERS = ['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount'] as const;
 
@@ -33,7 +58,8 @@ export function claimsSandbox(n = 200, seed = 7): SandboxWorkbook {
 }
 
 export function layerFor(sb: SandboxWorkbook, options: WorkbookLayerOptions = {}): TailmarkWorkbookLayer {
-  return createWorkbookLayer(sb.run, { now: () => new Date('2025-03-31T09:00:00Z'), runInContext: sb.run, ...options });
+  const run = hostRun(sb);
+  return createWorkbookLayer(run, { now: () => new Date('2025-03-31T09:00:00Z'), runInContext: run, ...options });
 }
 
 export const SETTINGS: RunSettings = {

@@ -68,6 +68,25 @@ describe('tailmark sandbox', () => {
     expect(wb.getWorksheet('Tailmark notes')).toBeDefined();
   });
 
+  it('--office-client runs the same through the real Office.js client and reports real request sizes', async () => {
+    type Report = { client: string; flagged: number; syncs: number; clientCleanupRequests: number; userCellsChanged: number; maxRequestBytes: number };
+    const plain = JSON.parse((await capture([input, '--group', 'Cost centre', '--json'])).out) as Report;
+    const r = await capture([input, '--group', 'Cost centre', '--office-client', '--json']);
+    expect(r.err).toBe('');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out) as Report;
+    expect(plain.client).toBe('sandbox');
+    expect(j.client).toBe('office-js');
+    expect(j.flagged).toBe(plain.flagged);
+    // The client adds one request per Excel.run that kept references (it releases them at the end).
+    expect(j.syncs).toBe(plain.syncs + j.clientCleanupRequests);
+    expect(j.clientCleanupRequests).toBeLessThanOrEqual(2); // detect and run
+    expect(j.userCellsChanged).toBe(0);
+    // Real request JSON (object paths, action ids) is larger than the sandbox's own estimate.
+    expect(j.maxRequestBytes).toBeGreaterThan(plain.maxRequestBytes);
+    expect(j.maxRequestBytes).toBeLessThan(5 * 1024 * 1024);
+  });
+
   it('exits 2 with one line on bad input', async () => {
     const missing = await capture([path.join(dir, 'nope.xlsx')]);
     expect(missing.code).toBe(2);

@@ -1,4 +1,5 @@
 import type { MethodId } from '../types.js';
+import { adjustedMethod } from './adjusted.js';
 import { classicMethod } from './classic.js';
 import { iqrMethod } from './iqr.js';
 import type { ScoringMethod } from './method.js';
@@ -8,14 +9,15 @@ export const METHODS: Readonly<Record<MethodId, ScoringMethod>> = {
   robust: robustMethod,
   classic: classicMethod,
   iqr: iqrMethod,
+  adjusted: adjustedMethod,
 };
 
 /** The method object for an id; throws a clear message for an unknown id. */
 export function getMethod(id: MethodId): ScoringMethod {
   const m = (METHODS as Record<string, ScoringMethod | undefined>)[id];
-  if (m === undefined) throw new Error(`Unknown scoring method "${String(id)}": use robust, classic or iqr.`);
+  if (m === undefined) throw new Error(`Unknown scoring method "${String(id)}": use robust, classic, iqr or adjusted.`);
   return m;
 }
 
 export type { Fit, ScoringMethod } from './method.js';
-export { robustMethod, classicMethod, iqrMethod };
+export { robustMethod, classicMethod, iqrMethod, adjustedMethod };

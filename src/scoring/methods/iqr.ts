@@ -1,5 +1,5 @@
 import type { Fallback } from '../types.js';
-import { type Fit, NO_FIT, type ScoringMethod } from './method.js';
+import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method.js';
 
 /**
  * IQR fences (Tukey): lower fence Q1 - k x IQR, upper fence Q3 + k x IQR, IQR = Q3 - Q1, with
@@ -27,14 +27,11 @@ export const iqrMethod: ScoringMethod = {
     let iqr = s.q3 - s.q1;
     if (!(iqr > 0)) {
       fallbacks.push('iqr-zero');
-      const column = columnSummary();
-      const colIqr = column.q3 - column.q1;
-      if (!(colIqr > 0)) return { ...NO_FIT, unit: s.unit, center: s.median, q1: s.q1, q3: s.q3, fallbacks };
-      iqr = colIqr * (column.unit / s.unit);
-      if (!Number.isFinite(iqr)) return { ...NO_FIT, unit: s.unit, center: s.median, q1: s.q1, q3: s.q3, fallbacks };
+      iqr = spreadForZeroIqr(s, columnSummary);
+      if (!(iqr > 0)) return { ...NO_FIT, unit: s.unit, center: s.median, q1: s.q1, q3: s.q3, fallbacks };
     }
     const fit: Fit = {
-      kind: 'fence', unit: s.unit, center: s.median, scale: iqr, q1: s.q1, q3: s.q3,
+      kind: 'fence', unit: s.unit, center: s.median, scale: iqr, q1: s.q1, q3: s.q3, lowScale: iqr, highScale: iqr,
       lower: direction !== 'high' ? s.q1 - k * iqr : NaN,
       upper: direction !== 'low' ? s.q3 + k * iqr : NaN,
       fallbacks,

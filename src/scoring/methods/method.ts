@@ -7,8 +7,9 @@ import type { Summary } from '../summary.js';
  *
  * - kind 'z' (robust, classic): score = (y - center) / scale; scale 0 means "no spread" and
  *   every score is 0. Flagged when the score passes the cutoff in the chosen direction.
- * - kind 'fence' (IQR): with tHigh = (y - q3) / scale and tLow = (q1 - y) / scale, the score is
- *   tHigh - k above the upper fence, -(tLow - k) below the lower fence, else 0.
+ * - kind 'fence' (IQR, adjusted): with tHigh = (y - q3) / highScale and tLow = (q1 - y) / lowScale,
+ *   the score is tHigh - k above the upper fence, -(tLow - k) below the lower fence, else 0
+ *   (IQR: lowScale = highScale = scale = IQR; adjusted: the IQR times each side's skew factor).
  * - kind 'none': the population cannot be scored (rows get NaN).
  */
 export interface Fit {
@@ -19,6 +20,9 @@ export interface Fit {
   /** Only for kind 'fence'. */
   readonly q1: number;
   readonly q3: number;
+  /** Only for kind 'fence': the unit of distance beyond Q1 (lowScale) and beyond Q3 (highScale). */
+  readonly lowScale: number;
+  readonly highScale: number;
   /** Bounds on the scoring scale, scaled units; NaN = no bound that side. */
   readonly lower: number;
   readonly upper: number;
@@ -42,15 +46,28 @@ export interface ScoringMethod {
   fit(s: Summary, cutoff: number, direction: Direction, column: () => Summary): Fit;
 }
 
-export const NO_FIT: Fit = { kind: 'none', unit: 1, center: NaN, scale: NaN, q1: NaN, q3: NaN, lower: NaN, upper: NaN, fallbacks: [] };
+export const NO_FIT: Fit = { kind: 'none', unit: 1, center: NaN, scale: NaN, q1: NaN, q3: NaN, lowScale: NaN, highScale: NaN, lower: NaN, upper: NaN, fallbacks: [] };
 
 /** Bounds center +- cutoff x scale for the sides the direction looks at. */
 export function zFit(s: Summary, center: number, scale: number, cutoff: number, direction: Direction, fallbacks: Fallback[]): Fit {
   const spread = scale > 0;
   return {
-    kind: 'z', unit: s.unit, center, scale: spread ? scale : 0, q1: NaN, q3: NaN,
+    kind: 'z', unit: s.unit, center, scale: spread ? scale : 0, q1: NaN, q3: NaN, lowScale: NaN, highScale: NaN,
     lower: spread && direction !== 'high' ? center - cutoff * scale : NaN,
     upper: spread && direction !== 'low' ? center + cutoff * scale : NaN,
     fallbacks,
   };
+}
+
+/**
+ * The unit of the fences when a group's IQR is 0 (fallback 'iqr-zero'): the whole column's IQR
+ * (the same quartile definition as the group's), in the group's scaled units; NaN when that is 0 too.
+ */
+export function spreadForZeroIqr(s: Summary, columnSummary: () => Summary): number {
+  const column = columnSummary();
+  const adjusted = !Number.isNaN(s.hingeLow);
+  const colIqr = adjusted ? column.hingeHigh - column.hingeLow : column.q3 - column.q1;
+  if (!(colIqr > 0)) return NaN;
+  const iqr = colIqr * (column.unit / s.unit);
+  return Number.isFinite(iqr) ? iqr : NaN;
 }

@@ -1,0 +1,316 @@
+import { quickselect } from './quickselect.js';
+
+/**
+ * Medcouple: a robust measure of skewness, the median of the kernel
+ *
+ *   h(xi, xj) = ((xj - m) - (m - xi)) / (xj - xi)   over all pairs xi <= m <= xj, xi != xj,
+ *
+ * where m is the sample median; for pairs of values both equal to m (ties at the median) the
+ * kernel is sign(p - 1 - i - j), with i the 0-based index of xj among the p values >= m sorted
+ * descending and j that of xi among the q values <= m sorted descending. MC lies in [-1, 1]:
+ * 0 for a symmetric sample, > 0 when the upper tail is longer (right skew), < 0 when the lower
+ * one is. Even number of kernel values: the mean of the two middle ones.
+ *
+ * Algorithm: the fast algorithm of Brys, Hubert & Struyf (2004, section 3), written from the
+ * published description. With z+ (values >= m, minus m, descending) and z- (values <= m, minus m,
+ * descending), the kernel matrix H[i][j] = h(z+[i], z-[j]) decreases along every row and every
+ * column. Each round takes the weighted median (weights = candidates left in the row) of the
+ * middle candidates of the rows as a trial value, counts with two staircase walks (O(n)) how many
+ * entries lie above and at or above it, and discards the side that cannot hold the wanted rank;
+ * at least a quarter of the remaining candidates goes each round, so O(log n) rounds; once fewer
+ * than 2(p + q) candidates remain they are gathered and the wanted rank selected among them.
+ *
+ * Cost: O(n log n) time (the sort, then O(n) per round), O(n) memory. `medcoupleSorted` skips
+ * the sort for data already sorted.
+ * Degenerate input: n = 0 -> NaN; n = 1 or 2 -> 0; all values equal -> 0 (every kernel value is
+ * one of the tie signs, which balance). Inputs must be finite numbers.
+ *
+ * Source: G. Brys, M. Hubert & A. Struyf, "A robust measure of skewness", Journal of
+ * Computational and Graphical Statistics 13(4):996-1017, 2004. Checked against R robustbase
+ * `mc(x, doReflect = TRUE)` (test/reference/make-r-medcouple.R), which agrees with this definition
+ * except for samples of 3 or 4 values all but one tied at the median, where robustbase reports
+ * +-1 and the definition gives +-0.5 (both recorded in the fixture).
+ */
+export function medcouple(xs: ArrayLike<number>): number {
+  const n = xs.length;
+  const a = new Float64Array(n);
+  for (let i = 0; i < n; i++) a[i] = xs[i];
+  a.sort();
+  return medcoupleSorted(a, n);
+}
+
+/**
+ * The medcouple of `sorted[0..n-1]`, which must be sorted ascending (finite numbers); not changed.
+ * Cost O(n log n) (no sort: O(n) per round, O(log n) rounds).
+ */
+export function medcoupleSorted(sorted: Float64Array, n: number): number {
+  if (n === 0) return NaN;
+  if (n < 3) return 0;
+  const mid = n >> 1;
+  const m = n % 2 === 1 ? sorted[mid] : sorted[mid - 1] + (sorted[mid] - sorted[mid - 1]) / 2;
+  if (sorted[0] === sorted[n - 1]) return 0;
+  // Scale so that |z| <= 1/2 (the kernel is scale free; this keeps a - b from overflowing).
+  const span = Math.max(sorted[n - 1] - m, m - sorted[0]);
+  const scale = Number.isFinite(span) && span > 0 ? 2 * span : 1;
+  // z+ : values >= m, descending; z- : values <= m, descending.
+  let firstHigh = 0; // first index with sorted[i] >= m
+  while (sorted[firstHigh] < m) firstHigh++;
+  let lastLow = n - 1; // last index with sorted[i] <= m
+  while (sorted[lastLow] > m) lastLow--;
+  const p = n - firstHigh;
+  const q = lastLow + 1;
+  const ws = workspace(p, q);
+  const zp = ws.zp;
+  const zm = ws.zm;
+  for (let i = 0; i < p; i++) zp[i] = (sorted[n - 1 - i] - m) / scale;
+  for (let j = 0; j < q; j++) zm[j] = (sorted[lastLow - j] - m) / scale;
+  const total = p * q;
+  // Ranks counted from the largest (1-based).
+  if (total % 2 === 1) return kthLargest(ws, p, q, (total + 1) / 2);
+  const hi = kthLargest(ws, p, q, total / 2);
+  const lo = nextBelow(ws, p, q, hi, total / 2 + 1);
+  return hi + (lo - hi) / 2;
+}
+
+/** Rows whose middle candidates a round's trial value is taken from while rounds go well. */
+const SAMPLE_ROWS = 48;
+
+/**
+ * Work arrays, kept between calls (one medcouple per group of a column: allocating a dozen typed
+ * arrays per group costs more than the rounds on small groups). Grown as needed, never shrunk.
+ */
+interface Workspace {
+  zp: Float64Array;
+  zm: Float64Array;
+  left: Int32Array;
+  right: Int32Array;
+  above: Int32Array;
+  atOrAbove: Int32Array;
+  rowMid: Float64Array;
+  weight: Float64Array;
+  rest: Float64Array;
+}
+let shared: Workspace | null = null;
+
+function workspace(p: number, q: number): Workspace {
+  const need = Math.max(p, q);
+  const restNeed = gatherLimit(p, q) + q;
+  if (shared === null || shared.zp.length < need || shared.rest.length < restNeed) {
+    const size = Math.max(need, shared === null ? 0 : shared.zp.length);
+    shared = {
+      zp: new Float64Array(size), zm: new Float64Array(size),
+      left: new Int32Array(size), right: new Int32Array(size), above: new Int32Array(size), atOrAbove: new Int32Array(size),
+      rowMid: new Float64Array(size), weight: new Float64Array(size),
+      rest: new Float64Array(Math.max(restNeed, shared === null ? 0 : shared.rest.length)),
+    };
+  }
+  return shared;
+}
+
+/** A round costs about 2.5 (p + q) operations; with fewer candidates left, selecting among them directly is cheaper. */
+function gatherLimit(p: number, q: number): number {
+  return Math.max(2 * (p + q), 64);
+}
+
+/** Kernel entry H[i][j] (see `medcouple`): z+ descending in rows, z- descending in columns. */
+function kernel(zp: Float64Array, zm: Float64Array, p: number, i: number, j: number): number {
+  const a = zp[i];
+  const b = zm[j];
+  if (a === 0 && b === 0) {
+    const s = p - 1 - i - j;
+    return s > 0 ? 1 : s < 0 ? -1 : 0;
+  }
+  return (a + b) / (a - b);
+}
+
+/**
+ * The k-th largest entry when `v` is the (k-1)-th largest: v itself if at least k entries are
+ * >= v, else the largest entry below v (the first entry below v in each row: O(p + q)).
+ */
+function nextBelow(ws: Workspace, p: number, q: number, v: number, k: number): number {
+  const { zp, zm, left, right, above, atOrAbove } = ws;
+  left.fill(0, 0, p);
+  right.fill(q - 1, 0, p);
+  countRows(zp, zm, p, v, false, left, right, above);
+  if (countRows(zp, zm, p, v, true, above, right, atOrAbove) >= k) return v;
+  let best = -Infinity;
+  for (let i = 0; i < p; i++) {
+    const j = atOrAbove[i];
+    if (j < q) {
+      const h = kernel(zp, zm, p, i, j);
+      if (h > best) best = h;
+    }
+  }
+  return best;
+}
+
+/**
+ * The k-th largest entry (1-based), by the Brys-Hubert-Struyf rounds: row i keeps the candidate
+ * columns left[i] .. right[i]; entries left of left[i] are known to be larger than every
+ * candidate, right of right[i] smaller.
+ */
+function kthLargest(ws: Workspace, p: number, q: number, k: number): number {
+  const { zp, zm, left, right, above, atOrAbove, rowMid, weight, rest } = ws;
+  left.fill(0, 0, p);
+  right.fill(q - 1, 0, p);
+  let candidates = p * q;
+  const gatherBelow = gatherLimit(p, q);
+  let exact = false;
+  let active = p; // rows with candidates left
+  while (candidates > gatherBelow) {
+    // Trial value: the weighted median of the rows' middle candidates (weights = candidates in
+    // the row). Speed-up of ours: while rounds keep discarding at least a quarter of the
+    // candidates, the weighted median is taken over every s-th row with candidates only (about
+    // SAMPLE_ROWS rows); after a round that discards less, the next takes every row, as
+    // published, so the O(log n) bound on rounds holds. Any trial gives the exact answer.
+    const stride = exact || active <= 2 * SAMPLE_ROWS ? 1 : Math.floor(active / SAMPLE_ROWS);
+    let rows = 0;
+    let seen = 0;
+    for (let i = 0; i < p; i++) {
+      if (left[i] <= right[i]) {
+        if (seen++ % stride !== 0) continue;
+        rowMid[rows] = kernel(zp, zm, p, i, (left[i] + right[i]) >> 1);
+        weight[rows] = right[i] - left[i] + 1;
+        rows++;
+      }
+    }
+    const trial = weightedMedian(rowMid, weight, rows);
+    const before = candidates;
+    // above[i] = #{j : H[i][j] > trial}, atOrAbove[i] = #{j : H[i][j] >= trial}.
+    const sumAbove = countRows(zp, zm, p, trial, false, left, right, above);
+    const sumAtOrAbove = countRows(zp, zm, p, trial, true, above, right, atOrAbove);
+    if (k <= sumAbove) {
+      // The answer is above the trial value: keep only entries > trial.
+      candidates = 0;
+      active = 0;
+      for (let i = 0; i < p; i++) {
+        if (above[i] - 1 < right[i]) right[i] = above[i] - 1;
+        if (right[i] >= left[i]) {
+          candidates += right[i] - left[i] + 1;
+          active++;
+        }
+      }
+    } else if (k > sumAtOrAbove) {
+      // The answer is below the trial value: keep only entries < trial.
+      candidates = 0;
+      active = 0;
+      for (let i = 0; i < p; i++) {
+        if (atOrAbove[i] > left[i]) left[i] = atOrAbove[i];
+        if (right[i] >= left[i]) {
+          candidates += right[i] - left[i] + 1;
+          active++;
+        }
+      }
+    } else {
+      return trial;
+    }
+    exact = candidates > 0.75 * before;
+  }
+  // Few candidates left: gather them and select the wanted rank among them.
+  let discardedAbove = 0;
+  let c = 0;
+  for (let i = 0; i < p; i++) {
+    discardedAbove += left[i];
+    for (let j = left[i]; j <= right[i]; j++) rest[c++] = kernel(zp, zm, p, i, j);
+  }
+  const idx = c - (k - discardedAbove); // rank from the largest -> index in ascending order
+  quickselect(rest, idx, 0, c - 1);
+  return rest[idx];
+}
+
+/**
+ * out[i] = number of columns j with H[i][j] > trial (>= trial when `orEqual`), for every row;
+ * returns their sum. Only columns from[i] .. right[i] are examined: every column left of from[i]
+ * is known to count (from = the rows' left bounds, or the > counts when counting >=), none right of
+ * right[i] does (the trial is a candidate). The counts are non-increasing in i (H decreases down
+ * each column), so one column pointer serves every row, walking from the last row up and starting
+ * each row at max(pointer, from[i]): O(p + q), however many entries tie with the trial.
+ */
+function countRows(
+  zp: Float64Array, zm: Float64Array, p: number, trial: number, orEqual: boolean, from: Int32Array, right: Int32Array, out: Int32Array,
+): number {
+  let j = 0;
+  let sum = 0;
+  for (let i = p - 1; i >= 0; i--) {
+    const a = zp[i];
+    if (j < from[i]) j = from[i];
+    const end = right[i] + 1;
+    while (j < end) {
+      const b = zm[j];
+      let h: number;
+      if (a === 0 && b === 0) {
+        const s = p - 1 - i - j;
+        h = s > 0 ? 1 : s < 0 ? -1 : 0;
+      } else h = (a + b) / (a - b);
+      if (h > trial || (orEqual && h === trial)) j++;
+      else break;
+    }
+    out[i] = j;
+    sum += j;
+  }
+  return sum;
+}
+
+/**
+ * Weighted median of `v[0..m-1]` with positive weights `w` (both rearranged): the smallest value
+ * whose cumulative weight (values sorted ascending) reaches half the total. Expected O(m)
+ * (quickselect-style three-way partitioning on a middle pivot).
+ */
+export function weightedMedian(v: Float64Array, w: Float64Array, m: number): number {
+  let total = 0;
+  for (let i = 0; i < m; i++) total += w[i];
+  let half = total / 2;
+  let lo = 0;
+  let hi = m - 1;
+  // Pivot: median of three pseudo-random picks (a fixed LCG, so results never depend on chance);
+  // fixed positions degrade on the monotone runs the rounds produce.
+  let seed = 0x2545f491;
+  const pick = (): number => {
+    seed = (Math.imul(seed, 1103515245) + 12345) >>> 0;
+    return lo + (seed % (hi - lo + 1));
+  };
+  for (;;) {
+    if (lo === hi) return v[lo];
+    const pivot = medianOfThree(v[pick()], v[pick()], v[pick()]);
+    // Three-way partition [lo, hi]: [lo, lt) < pivot, [lt, gt] == pivot, (gt, hi] > pivot.
+    let lt = lo;
+    let gt = hi;
+    let i = lo;
+    while (i <= gt) {
+      const x = v[i];
+      if (x < pivot) {
+        swap(v, w, i, lt);
+        lt++;
+        i++;
+      } else if (x > pivot) {
+        swap(v, w, i, gt);
+        gt--;
+      } else i++;
+    }
+    let wLess = 0;
+    for (let t = lo; t < lt; t++) wLess += w[t];
+    let wEqual = 0;
+    for (let t = lt; t <= gt; t++) wEqual += w[t];
+    if (wLess >= half) {
+      hi = lt - 1;
+    } else if (wLess + wEqual >= half) {
+      return pivot;
+    } else {
+      half -= wLess + wEqual;
+      lo = gt + 1;
+    }
+  }
+}
+
+function medianOfThree(a: number, b: number, c: number): number {
+  return a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
+}
+
+function swap(v: Float64Array, w: Float64Array, i: number, j: number): void {
+  const tv = v[i];
+  v[i] = v[j];
+  v[j] = tv;
+  const tw = w[i];
+  w[i] = w[j];
+  w[j] = tw;
+}
