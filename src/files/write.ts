@@ -13,6 +13,7 @@ import type { RawCell, SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell } from '../report/types.js';
 import { ruleFormula, isTailmarkFormula } from '../report/rules.js';
 import { REVIEW_STATUSES } from '../report/style.js';
+import { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, lastRunCutoff, runLogLines } from '../report/log.js';
 import { fileKind, readTable, type ReadTable } from './read.js';
 import { argb, checkOutPath, notesLayout, placeColumns, RESULT_HEADER_STYLE, ruleRange, solid } from './layout.js';
 import { TailmarkError } from '../pipeline/errors.js';
@@ -25,6 +26,8 @@ export interface WriteOptions {
   readonly onProgress?: (phase: 'writing' | 'saving', fraction: number) => void;
   /** Lines for the notes sheet about how the file was written (e.g. what streaming could not carry). */
   readonly extraNotes?: Plan['notes']['sections'];
+  /** Who ran it (--reviewer), for the log sheet; null = not given. */
+  readonly reviewer?: string | null;
 }
 
 export interface WriteSummary {
@@ -63,6 +66,54 @@ function rawToCellText(v: RawCell): string {
   if (v === null || v === undefined) return '';
   if (typeof v === 'object' && !(v instanceof Date)) return v.code;
   return String(v);
+}
+
+/** A cell of the log sheet as a plan cell (exceljs values: numbers and text are all the log holds). */
+function logCell(v: ExcelJS.CellValue): PlanCell {
+  return typeof v === 'number' || typeof v === 'string' || typeof v === 'boolean' ? v : null;
+}
+
+/**
+ * The log sheet, as the add-in keeps it (src/report/log.ts): this run's lines are added below the
+ * last one and nothing above is rewritten. A sheet of that name that is not ours is left alone and
+ * ours gets a suffix, as for the notes sheet.
+ */
+function appendLogSheet(wb: ExcelJS.Workbook, plan: Plan, reviewer: string | null): void {
+  let name = LOG_SHEET_NAME;
+  let log: ExcelJS.Worksheet | undefined;
+  for (let k = 2; ; k++) {
+    const found = wb.getWorksheet(name);
+    if (!found || isLogMarker(found.getCell('A1').value)) {
+      log = found;
+      break;
+    }
+    name = `${LOG_SHEET_NAME} (${k})`;
+  }
+  if (!log) {
+    log = wb.addWorksheet(name);
+    log.getCell('A1').value = LOG_TITLE;
+    log.getCell('A1').font = { bold: true };
+    log.getColumn(1).width = 26;
+    log.getColumn(2).width = 30;
+  }
+  const header = log.getRow(2);
+  LOG_HEADER.forEach((h, i) => {
+    header.getCell(i + 1).value = h;
+    header.getCell(i + 1).font = { bold: true };
+  });
+  const earlier: PlanCell[][] = [];
+  for (let r = 3; r <= log.rowCount; r++) {
+    const row = log.getRow(r);
+    earlier.push(LOG_HEADER.map((_, i) => logCell(row.getCell(i + 1).value)));
+  }
+  const lines = runLogLines(plan.log, reviewer, lastRunCutoff(earlier, plan.log.method));
+  let next = Math.max(3, log.rowCount + 1);
+  for (const l of lines) {
+    const row = log.getRow(next++);
+    l.forEach((v, i) => {
+      if (v !== null) row.getCell(i + 1).value = v;
+    });
+  }
 }
 
 export async function writeScoredWorkbook(
@@ -202,6 +253,8 @@ export async function writeScoredWorkbook(
   }
   notes.getColumn(1).width = 34;
   for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
+
+  appendLogSheet(wb, plan, options.reviewer ?? null);
 
   options.onProgress?.('saving', 0);
   const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);

@@ -23,7 +23,9 @@ export {
   NO_NAME,
   cutoffLine,
   isLogMarker,
+  lastRunCutoff,
   markLine,
   runLine,
+  runLogLines,
   type CutoffChange,
 } from './log.js';

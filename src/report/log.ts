@@ -81,3 +81,31 @@ export function markLine(when: string, who: string | null, claim: string, before
     Note: note,
   });
 }
+
+/**
+ * The log lines a run adds: the run, and a cutoff change when its cutoff differs from the previous
+ * run's with the same method (`previous`: that cutoff, or null when there was none: then the
+ * method's default is the "before").
+ */
+export function runLogLines(e: RunLogEntry, who: string | null, previous: number | null, record: Partial<CutoffChange> = {}): PlanCell[][] {
+  const lines = [runLine(e, who)];
+  const before = previous ?? e.defaultCutoff;
+  if (e.cutoff !== before) {
+    lines.push(cutoffLine(e.when, who, e.method, e.cutoff, { before, reason: record.reason ?? '', budget: record.budget ?? null }));
+  }
+  return lines;
+}
+
+/** The cutoff of the last "Run" line with this method among log lines (rows of LOG_HEADER cells); null if none. */
+export function lastRunCutoff(lines: readonly (readonly PlanCell[])[], method: string): number | null {
+  const ev = LOG_HEADER.indexOf('Event');
+  const me = LOG_HEADER.indexOf('Method');
+  const cu = LOG_HEADER.indexOf('Cutoff');
+  for (let i = lines.length - 1; i >= 0; i--) {
+    const l = lines[i];
+    // Lines of the log's first format (six columns) are runs too.
+    const isRun = l[ev] === 'Run' || ((l[ev] === null || l[ev] === undefined || l[ev] === '') && typeof l[cu] === 'number' && l[0] !== null);
+    if (isRun && l[me] === method && typeof l[cu] === 'number') return l[cu];
+  }
+  return null;
+}

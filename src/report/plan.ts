@@ -2,7 +2,7 @@
  * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
-import { defaultCutoff, describeCutoff, explainRow } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, explainRowShort } from '../scoring/index.js';
 import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
@@ -196,14 +196,14 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     for (let r = 0; r < rows; r++) {
       score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
-      if (!lazy) reason[r] = explainRow(result, col, r);
+      if (!lazy) reason[r] = explainRowShort(result, col, r);
       if (col.flagged[r]) anyFlag[r] = 1;
       if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
     }
     columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
     columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
-    const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRow(result, col, r)) : reason;
-    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 60 });
+    const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRowShort(result, col, r)) : reason;
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 42 });
   });
   const open = statusLabel('open');
   const status: PlanCell[] = new Array<PlanCell>(rows);
@@ -228,6 +228,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     cutoff: options.cutoff,
     rowsScored: scoredRows,
     flagged: flaggedRows,
+    defaultCutoff: defaultCutoff(options.method),
   };
 
   const sections: NotesSection[] = [];

@@ -22,11 +22,9 @@ import {
   type RawCell,
   type ScoreResult,
 } from '../scoring/types.js';
-import { defaultCutoff } from '../scoring/cutoff.js';
 import {
-  cutoffLine,
   isTailmarkFormula,
-  runLine,
+  runLogLines,
   NOTES_SHEET_NAME,
   PALETTE,
   REVIEW_STATUSES,
@@ -646,21 +644,10 @@ async function writeNotes(
   // Log: append the run's line, and a cutoff-change line when the cutoff differs from the last run's.
   const log = createdLog ? wb.worksheets.add(LOG_SHEET_NAME) : res.logSheet;
   const next = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
-  await queueLogLines(sync, log, createdLog, next, logLines(plan, settings, res.savedSettings, record));
+  const previous = res.savedSettings && res.savedSettings.method === settings.method ? res.savedSettings.cutoff : null;
+  const lines = runLogLines(plan.log, settings.reviewer, previous, { reason: record?.cutoffReason ?? '', budget: record?.budget ?? null });
+  await queueLogLines(sync, log, createdLog, next, lines);
   void PALETTE;
-}
-
-/**
- * The log lines of a run: the run itself, and a cutoff change when the cutoff differs from the
- * last run's with the same method (on a first run: from the method's default).
- */
-export function logLines(plan: Plan, settings: RunSettings, saved: RunSettings | null, record: RunRecord | undefined): PlanCell[][] {
-  const lines = [runLine(plan.log, settings.reviewer)];
-  const before = saved && saved.method === settings.method ? saved.cutoff : defaultCutoff(settings.method);
-  if (settings.cutoff !== before) {
-    lines.push(cutoffLine(plan.log.when, settings.reviewer, plan.log.method, settings.cutoff, { before, reason: record?.cutoffReason ?? '', budget: record?.budget ?? null }));
-  }
-  return lines;
 }
 
 /** Undo a write phase that failed part-way (see the module comment). Never hides the original error. */

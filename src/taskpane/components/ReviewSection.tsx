@@ -37,7 +37,7 @@ const ORDER_WORDS: Record<ReviewOrder, string> = {
 const FILTER_WORDS: { id: ReviewFilter; label: string }[] = [
   { id: 'all', label: 'All exceptions' },
   { id: 'unfinished', label: 'Not finished' },
-  ...REVIEW_STATUSES.map((r) => ({ id: r.id as ReviewFilter, label: `${STATUS_SYMBOLS[r.id]} ${r.label}` })),
+  ...REVIEW_STATUSES.map((r) => ({ id: r.id, label: `${STATUS_SYMBOLS[r.id]} ${r.label}` })),
   { id: 'none', label: 'No status' },
 ];
 
