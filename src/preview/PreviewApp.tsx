@@ -101,9 +101,9 @@ declare global {
 }
 
 function delayed(sb: SandboxWorkbook, ms: number, bump: () => void): ExcelRunner {
-  return async (batch) => {
+  return async (options, batch) => {
     try {
-      return await sb.run(async (ctx) => {
+      return await sb.run(options, async (ctx) => {
         if (ms > 0) {
           const sync = ctx.sync.bind(ctx);
           ctx.sync = async <T,>(passThroughValue?: T) => {

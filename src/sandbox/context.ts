@@ -11,9 +11,9 @@
  *   on a null object (or on objects reached from one) do nothing, as in Excel (Microsoft's own
  *   samples rely on `worksheets.getItemOrNullObject("Sample").delete()`); loaded properties of a
  *   null object read as null.
- * - A sync is atomic by default: if any queued statement fails, nothing from that sync is applied
- *   and nothing loaded becomes readable. Real Excel may have applied the statements before the
- *   failing one; `partialOnError: true` models that (statements before the failure stay applied).
+ * - A failing statement fails the sync; the statements before it in the same sync stay applied,
+ *   as in Excel (nothing loaded becomes readable). `partialOnError: false` makes a failed sync
+ *   apply nothing (kinder than Excel; only for tests that name why).
  * - The JSON size of each request (everything queued between two syncs) and of each response
  *   (everything loaded) is measured (UTF-8 bytes); over the limit (default 5 MB, Excel on the web)
  *   the sync fails with RequestPayloadSizeLimitExceeded / ResponsePayloadSizeLimitExceeded.
@@ -34,7 +34,10 @@ export { SandboxClientResult } from './proxy-base.js';
 export interface SandboxOptions {
   /** Request/response limit in bytes (default 5 * 1024 * 1024, Excel on the web). */
   payloadLimitBytes?: number;
-  /** Keep statements applied before a failing one (as Excel may). Default false: a failed sync applies nothing. */
+  /**
+   * Keep statements applied before a failing one, as Excel does (default true). false makes a
+   * failed sync apply nothing: kinder than Excel, for tests that say why they need it.
+   */
   partialOnError?: boolean;
 }
 

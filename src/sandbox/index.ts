@@ -8,9 +8,8 @@
  * Excel.run can be handed `sb.run`.
  *
  * Where the sandbox deliberately differs from Excel (or models only part of it):
- * - Sync failure is atomic by default (nothing of the failed sync applies, nothing loaded becomes
- *   readable); Excel may have applied the statements before the failing one. `partialOnError: true`
- *   models that instead.
+ * - A failed sync leaves the statements before the failing one applied, as Excel does (nothing
+ *   loaded becomes readable); `partialOnError: false` makes it apply nothing instead.
  * - Payload sizes are the UTF-8 JSON size of the sandbox's own encoding of statements and loaded
  *   data, not Office.js's wire format: close, not equal. Request over the limit:
  *   RequestPayloadSizeLimitExceeded; response over it: ResponsePayloadSizeLimitExceeded (both are

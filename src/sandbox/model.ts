@@ -233,6 +233,9 @@ const NUM_RE = /^[+-]?(\d+|\d{1,3}(,\d{3})+)?(\.\d+)?([eE][+-]?\d+)?$/;
  * Anything else (objects, Date instances) is rejected with InvalidArgument: Office.js would serialise
  * it as JSON; the sandbox refuses so the bug is visible.
  */
+/** Longest text a cell holds (Excel specifications and limits: 32,767 characters). */
+export const MAX_CELL_TEXT = 32767;
+
 export function interpretInput(input: unknown, currentNf: string | undefined, where: string): CellWrite {
   if (input === null || input === undefined) return { v: undefined, f: undefined, qp: undefined, skip: true };
   if (typeof input === 'number') {
@@ -244,6 +247,9 @@ export function interpretInput(input: unknown, currentNf: string | undefined, wh
     throw new SandboxError('InvalidArgument', `${where}: a cell value must be a string, number or boolean (got ${input instanceof Date ? 'a Date' : typeof input}).`, where);
   }
   if (input === '') return { v: undefined, f: undefined, qp: undefined };
+  if (input.length > MAX_CELL_TEXT) {
+    throw new SandboxError('InvalidArgument', `${where}: the text is ${input.length} characters long; a cell holds at most ${MAX_CELL_TEXT} (Excel's specifications and limits).`, where);
+  }
   if (currentNf === '@') return { v: input, f: undefined, qp: undefined };
   if (input.startsWith("'")) return { v: input.slice(1) === '' ? undefined : input.slice(1), f: undefined, qp: true };
   if (input.startsWith('=') && input.length > 1) return { v: undefined, f: input, qp: undefined };

@@ -38,6 +38,8 @@ export class DataValidationProxy extends ProxyBase<RangeTarget> {
       if (keys.length !== 1 || keys[0] !== 'list') throw err('NotImplemented', `The sandbox models only list validation rules (got ${JSON.stringify(keys)}).`, 'DataValidation.rule');
       const src = v.list!.source;
       if (typeof src !== 'string' || src.length === 0) throw err('InvalidArgument', 'A list validation needs a non-empty source string.', 'DataValidation.rule');
+      // Excel refuses a typed-in list longer than 255 characters (a range reference has no such limit).
+      if (!src.startsWith('=') && src.length > 255) throw err('InvalidArgument', `The list source is ${src.length} characters long; a typed-in list holds at most 255. Put the items in cells and refer to them instead.`, 'DataValidation.rule');
       this.context.model.setValidation(t.sheet, t.rect, { list: { source: src, inCellDropDown: v.list!.inCellDropDown ?? true } }, true);
     });
   }

@@ -10,11 +10,12 @@ import { SettingCollectionProxy } from './settings-proxy.js';
 
 export class WorkbookProxy extends ProxyBase<WorkbookModel> {
   protected readonly entity = 'Workbook';
-  protected readonly scalars = ['name'] as const;
+  protected readonly scalars = ['name', 'readOnly'] as const;
   readonly worksheets: WorksheetCollectionProxy;
   readonly tables: TableCollectionProxy;
   readonly settings: SettingCollectionProxy;
   readonly onSelectionChanged: SelectionEventProxy;
+  readonly protection: WorkbookProtectionProxy;
 
   constructor(ctx: SandboxContext) {
     super(ctx, 'workbook', false);
@@ -22,16 +23,25 @@ export class WorkbookProxy extends ProxyBase<WorkbookModel> {
     this.tables = new TableCollectionProxy(ctx, 'workbook.tables', null);
     this.settings = new SettingCollectionProxy(ctx);
     this.onSelectionChanged = new SelectionEventProxy(ctx);
+    this.protection = new WorkbookProtectionProxy(ctx, 'workbook.protection');
   }
   protected resolveRaw(): WorkbookModel {
     return this.context.model;
   }
   protected read(_t: WorkbookModel, prop: string): unknown {
     if (prop === 'name') return this.context.sandbox.name;
+    if (prop === 'readOnly') return this.context.sandbox.mode.readOnly;
     return undefined;
   }
   get name(): string {
     return this.get('name');
+  }
+  /** True when the workbook is open read-only (ExcelApi 1.8). */
+  get readOnly(): boolean {
+    return this.get('readOnly');
+  }
+  override nav(name: string): ProxyBase<unknown> | undefined {
+    return name === 'protection' ? this.protection : undefined;
   }
 
   /** The single selected range; fails with InvalidSelection when several areas are selected (as Excel documents). */
@@ -85,5 +95,23 @@ export class EventHandlerResultProxy {
       payload: null,
       run: () => ({ commit: () => { this.context.sandbox.removeSelectionListener(this.id); } }),
     });
+  }
+}
+
+/** Workbook-structure protection (ExcelApi 1.7): `protected` reads the sandbox's switch. */
+export class WorkbookProtectionProxy extends ProxyBase<WorkbookModel> {
+  protected readonly entity = 'WorkbookProtection';
+  protected readonly scalars = ['protected'] as const;
+  constructor(ctx: SandboxContext, path: string) {
+    super(ctx, path, false);
+  }
+  protected resolveRaw(): WorkbookModel {
+    return this.context.model;
+  }
+  protected read(_t: WorkbookModel, prop: string): unknown {
+    return prop === 'protected' ? this.context.sandbox.mode.structureProtected : undefined;
+  }
+  get protected(): boolean {
+    return this.get('protected');
   }
 }

@@ -116,6 +116,8 @@ export class SandboxWorkbook {
    */
   readonly mode = { cellEdit: false, readOnly: false, structureProtected: false };
   private cellEditWaiters: (() => void)[] = [];
+  /** The options of the last `run(options, batch)` (delayForCellEdit, mergeUndoGroup), for tests. */
+  lastRunOptions: Excel.RunOptions | null = null;
 
   readonly stats: SandboxStats = {
     runs: 0, syncs: 0, requests: 0, requestBytes: newBytes(), responseBytes: newBytes(),
@@ -128,7 +130,7 @@ export class SandboxWorkbook {
   constructor(options: SandboxOptions = {}) {
     this.options = {
       payloadLimitBytes: options.payloadLimitBytes ?? 5 * 1024 * 1024,
-      partialOnError: options.partialOnError ?? false,
+      partialOnError: options.partialOnError ?? true,
     };
   }
 
@@ -144,6 +146,7 @@ export class SandboxWorkbook {
   readonly run: SandboxRun = (<T>(a: unknown, b?: unknown): Promise<T> => {
     if (typeof a === 'function') return this.runIn<T>(new SandboxContext(this), a as Batch<T>);
     if (isRunOptions(a) && typeof b === 'function') {
+      this.lastRunOptions = { ...a };
       const fresh = new SandboxContext(this);
       fresh.delayForCellEdit = a.delayForCellEdit === true;
       return this.runIn<T>(fresh, b as Batch<T>);

@@ -3,6 +3,13 @@ import { MAX_COLS, MAX_ROWS, rect, parseAddress, inGrid } from './address.js';
 import type { WorkbookModel, SheetModel } from './model.js';
 import type { SandboxContext } from './context.js';
 import { err, late, CollectionBase, ProxyBase } from './proxy-base.js';
+
+/** Workbook-structure protection refuses adding, deleting, renaming, moving and hiding sheets. */
+function structureEditable(ctx: SandboxContext, where: string): void {
+  if (ctx.sandbox.mode.structureProtected) {
+    throw err('AccessDenied', 'The workbook structure is protected: sheets cannot be added, deleted, renamed, moved or hidden. Unprotect the workbook (Review > Protect Workbook) and try again.', where);
+  }
+}
 import { RangeProxy } from './range-proxy.js';
 import { TableCollectionProxy } from './table-proxy.js';
 
@@ -60,6 +67,7 @@ export class WorksheetCollectionProxy extends CollectionBase<WorkbookModel, Work
           while (m.sheetByName(`Sheet${i}`)) i++;
           n = `Sheet${i}`;
         }
+        structureEditable(this.context, 'WorksheetCollection.add');
         created = m.addSheet(n);
         p.bind(created);
         this.context.memoResets.push(() => { created = null; p.memo = undefined; });
@@ -105,6 +113,7 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
   set name(v: string) {
     this.setProp('name', v, (t) => {
       const m = this.context.model;
+      structureEditable(this.context, 'Worksheet.name');
       m.checkSheetName(v, t);
       m.touch(t);
       t.name = v;
@@ -116,6 +125,7 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
     this.setProp('position', v, (t) => {
       const m = this.context.model;
       if (!Number.isInteger(v) || v < 0 || v >= m.sheets.length) throw err('InvalidArgument', `Position ${v} is outside 0..${m.sheets.length - 1}.`, 'Worksheet.position');
+      structureEditable(this.context, 'Worksheet.position');
       const rest = m.sheets.filter((s) => s !== t);
       rest.splice(v, 0, t);
       m.sheets = rest;
@@ -124,6 +134,7 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
   get visibility(): string { return this.get('visibility'); }
   set visibility(v: 'Visible' | 'Hidden' | 'VeryHidden') {
     this.setProp('visibility', v, (t) => {
+      structureEditable(this.context, 'Worksheet.visibility');
       if (!['Visible', 'Hidden', 'VeryHidden'].includes(v)) throw err('InvalidArgument', `Unknown visibility "${String(v)}".`, 'Worksheet.visibility');
       const m = this.context.model;
       if (v !== 'Visible' && m.sheets.filter((s) => s.visibility === 'Visible' && s !== t).length === 0) throw err('InvalidOperation', 'At least one sheet must stay visible.', 'Worksheet.visibility');
@@ -177,7 +188,10 @@ export class WorksheetProxy extends ProxyBase<SheetModel> {
     });
   }
   delete(): void {
-    this.call('delete', null, (t) => this.context.model.deleteSheet(t));
+    this.call('delete', null, (t) => {
+      structureEditable(this.context, 'Worksheet.delete');
+      this.context.model.deleteSheet(t);
+    });
   }
   activate(): void {
     this.call('activate', null, (t) => {

@@ -11,6 +11,8 @@ export interface ExcelMember {
   /** "Class.member" ("OfficeExtension.Class.member" for OfficeExtension classes). */
   readonly member: string;
   readonly apiSet: string | null;
+  /** Used only where a requirement check says the host has it: not counted in the manifest's MinVersion. */
+  readonly featureDetected?: true;
 }
 
 export const EXCEL_MEMBERS: readonly ExcelMember[] = [
@@ -66,6 +68,9 @@ export const EXCEL_MEMBERS: readonly ExcelMember[] = [
   { member: 'RangeFormat.fill', apiSet: 'ExcelApi 1.1' },
   { member: 'RangeFormat.font', apiSet: 'ExcelApi 1.1' },
   { member: 'RequestContext.workbook', apiSet: null },
+  // The typings state no set for delayForCellEdit (Microsoft's docs: ExcelApi 1.11); the client drops it where unsupported.
+  { member: 'RunOptions.delayForCellEdit', apiSet: null },
+  { member: 'RunOptions.mergeUndoGroup', apiSet: 'ExcelApi 1.20', featureDetected: true },
   { member: 'Setting.delete', apiSet: 'ExcelApi 1.4' },
   { member: 'Setting.load', apiSet: null },
   { member: 'Setting.value', apiSet: 'ExcelApi 1.4' },
@@ -112,6 +117,7 @@ export const EXCEL_MEMBERS: readonly ExcelMember[] = [
 function maxVersion(): string {
   let best = [1, 1];
   for (const m of EXCEL_MEMBERS) {
+    if (m.featureDetected) continue;
     const v = /^ExcelApi ([0-9]+)\.([0-9]+)$/.exec(m.apiSet ?? '');
     if (!v) continue;
     const x = [Number(v[1]), Number(v[2])];

@@ -24,7 +24,8 @@ import {
 import { runScoring } from './run.js';
 import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
 
-export type ExcelRunner = <T>(batch: (context: Excel.RequestContext) => Promise<T>) => Promise<T>;
+/** `Excel.run(options, batch)`: every action passes its run options (delayForCellEdit, mergeUndoGroup). */
+export type ExcelRunner = <T>(options: Excel.RunOptions, batch: (context: Excel.RequestContext) => Promise<T>) => Promise<T>;
 
 /**
  * Excel.run's overload that runs a batch on an existing context (`Excel.run(context, batch)`), used
@@ -51,6 +52,27 @@ export interface WorkbookLayerOptions {
   readonly runInContext?: ExcelContextRunner;
   /** Called with errors of background work (removing a selection handler). */
   readonly onBackgroundError?: (e: unknown) => void;
+  /**
+   * Requirement-set check (default: Office.context.requirements.isSetSupported where Office is
+   * loaded, else false). Decides whether a run asks for one undo step (mergeUndoGroup, ExcelApi 1.20).
+   */
+  readonly isSetSupported?: (name: string, version: string) => boolean;
+}
+
+/** Office's requirement check when Office.js is loaded; false elsewhere (Node, the preview page). */
+function officeSupports(name: string, version: string): boolean {
+  if (typeof Office === 'undefined') return false;
+  const requirements = Office.context?.requirements;
+  return requirements ? requirements.isSetSupported(name, version) : false;
+}
+
+/**
+ * Options of every Excel.run: wait while the user is editing a cell instead of failing
+ * (delayForCellEdit; the client ignores it where the host lacks it), and make the run one undo
+ * step where ExcelApi 1.20 is supported (feature-detected: the manifest asks for less).
+ */
+export function runOptions(supports: (name: string, version: string) => boolean): Excel.RunOptions {
+  return supports('ExcelApi', '1.20') ? { delayForCellEdit: true, mergeUndoGroup: true } : { delayForCellEdit: true };
 }
 
 /** What the last action cost, as this layer counted it. */
@@ -82,11 +104,12 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
   const now = options.now ?? (() => new Date());
   let lastStats: OperationStats | null = null;
   let lastRun: RunDetails | null = null;
+  const supports = options.isSetSupported ?? officeSupports;
 
   async function act<T>(action: string, body: (sync: Syncer) => Promise<T>): Promise<T> {
     let syncer: Syncer | null = null;
     try {
-      return await run(async (context) => {
+      return await run(runOptions(supports), async (context) => {
         syncer = new Syncer(context, budget);
         return body(syncer);
       });
@@ -154,7 +177,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       if (runIn) {
         // Microsoft's pattern ("Work with events using the Excel JavaScript API"): register in one
         // Excel.run, keep the EventHandlerResult, and later remove it in a batch run on its context.
-        const result = await run(async (context) => {
+        const result = await run(runOptions(supports), async (context) => {
           const r = context.workbook.onSelectionChanged.add(() => {
             handler();
             return Promise.resolve();
@@ -179,7 +202,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
         release = r;
       });
       await new Promise<void>((registered, failed) => {
-        run(async (context) => {
+        run(runOptions(supports), async (context) => {
           const result = context.workbook.onSelectionChanged.add(() => {
             handler();
             return Promise.resolve();

@@ -269,8 +269,10 @@ describe('more members', () => {
       ws.protection.protect(undefined, 'pw');
       ws.getRange('A1').values = [['x']];
       expect(await codeOf(context.sync())).toBe('AccessDenied');
-      ws.protection.protect(undefined, 'pw');
+      // As in Excel, the protect() before the failing write stayed applied.
+      ws.protection.load('protected');
       await context.sync();
+      expect(ws.protection.protected).toBe(true);
       ws.protection.unprotect('wrong');
       expect(await codeOf(context.sync())).toBe('InvalidArgument');
       ws.protection.unprotect('pw');

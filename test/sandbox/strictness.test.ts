@@ -140,8 +140,9 @@ describe('load + sync strictness', () => {
 });
 
 describe('errors and atomicity', () => {
-  it('a shape mismatch fails with InvalidArgument and the whole sync applies nothing', async () => {
-    const sb = book();
+  it('atomic mode (partialOnError: false): a shape mismatch fails with InvalidArgument and the sync applies nothing', async () => {
+    // The kinder-than-Excel mode, kept to show that the mismatch check itself changes nothing.
+    const sb = sandboxFromRows('Claims', [['Claim', 'Amount'], ['C1', 10], ['C2', 20]], { partialOnError: false });
     const before = sb.snapshot();
     await sb.run(async (context) => {
       const ws = context.workbook.worksheets.getItem('Claims');
@@ -153,8 +154,8 @@ describe('errors and atomicity', () => {
     expect(sb.snapshot()).toEqual(before);
   });
 
-  it('partialOnError keeps statements before the failing one', async () => {
-    const sb = sandboxFromRows('S', [['a']], { partialOnError: true });
+  it('by default (as Excel) a failing statement keeps the statements before it in the same sync', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
     await sb.run(async (context) => {
       const ws = context.workbook.worksheets.getItem('S');
       ws.getRange('A1').values = [['changed']];
@@ -257,3 +258,81 @@ describe('errors and atomicity', () => {
 });
 
 const Excel_Custom = 'Custom' as Excel.ConditionalFormatType.custom;
+
+describe("Excel's limits and the states a user can put Excel in", () => {
+  it('a cell holds at most 32,767 characters (Excel specifications and limits)', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
+    await sb.run(async (context) => {
+      const r = context.workbook.worksheets.getItem('S').getRange('A1');
+      r.values = [['x'.repeat(32767)]];
+      await context.sync();
+      r.values = [['x'.repeat(32768)]];
+      expect(await codeOf(context.sync())).toBe('InvalidArgument');
+    });
+    expect(String(sb.valueAt('S', 0, 0)).length).toBe(32767);
+  });
+
+  it('a typed-in list source holds at most 255 characters; a range reference is not limited', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
+    const list = (n: number) => Array.from({ length: n }, (_, i) => String(i % 10)).join(',').slice(0, n);
+    await sb.run(async (context) => {
+      const dv = context.workbook.worksheets.getItem('S').getRange('A2').dataValidation;
+      dv.rule = { list: { source: list(255), inCellDropDown: true } };
+      await context.sync();
+      dv.rule = { list: { source: list(256), inCellDropDown: true } };
+      expect(await codeOf(context.sync())).toBe('InvalidArgument');
+      dv.rule = { list: { source: '=$Z$1:$Z$500', inCellDropDown: true } };
+      await context.sync();
+    });
+  });
+
+  it('cell-edit mode refuses a request unless the run asked to wait (delayForCellEdit), which then waits', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
+    sb.setCellEditMode(true);
+    await expect(sb.run(async (context) => {
+      context.workbook.worksheets.getItem('S').getRange('A1').values = [['b']];
+      await context.sync();
+    })).rejects.toMatchObject({ code: 'InvalidOperationInCellEditMode' });
+    let done = false;
+    const held = sb.run({ delayForCellEdit: true }, async (context) => {
+      context.workbook.worksheets.getItem('S').getRange('A1').values = [['c']];
+      await context.sync();
+      done = true;
+    });
+    await new Promise((r) => setTimeout(r, 20));
+    expect(done).toBe(false);
+    sb.setCellEditMode(false);
+    await held;
+    expect(sb.valueAt('S', 0, 0)).toBe('c');
+  });
+
+  it('a read-only workbook refuses writes but answers reads', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
+    sb.mode.readOnly = true;
+    await sb.run(async (context) => {
+      const r = context.workbook.worksheets.getItem('S').getRange('A1').load('values');
+      await context.sync();
+      expect(r.values).toEqual([['a']]);
+      r.values = [['b']];
+      expect(await codeOf(context.sync())).toBe('AccessDenied');
+    });
+    expect(sb.valueAt('S', 0, 0)).toBe('a');
+  });
+});
+
+describe('workbook-structure protection', () => {
+  it('refuses adding and deleting sheets, and workbook.protection.protected says so', async () => {
+    const sb = sandboxFromRows('S', [['a']]);
+    sb.mode.structureProtected = true;
+    await sb.run(async (context) => {
+      const p = context.workbook.protection.load('protected');
+      await context.sync();
+      expect(p.protected).toBe(true);
+      context.workbook.worksheets.add('Notes');
+      expect(await codeOf(context.sync())).toBe('AccessDenied');
+      context.workbook.worksheets.getItem('S').getRange('B1').values = [['cells are still writable']];
+      await context.sync();
+    });
+    expect(sb.sheetNames()).toEqual(['S']);
+  });
+});

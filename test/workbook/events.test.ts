@@ -12,10 +12,10 @@ import type { SandboxWorkbook } from '../../src/sandbox/index.js';
 /** sb.run wrapped to count the batches still running. */
 function counted(sb: SandboxWorkbook): { run: ExcelRunner; open: () => number } {
   let open = 0;
-  const run: ExcelRunner = async (batch) => {
+  const run: ExcelRunner = async (options, batch) => {
     open++;
     try {
-      return await hostRun(sb)(batch);
+      return await hostRun(sb)(options, batch);
     } finally {
       open--;
     }

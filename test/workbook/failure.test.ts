@@ -9,8 +9,8 @@ import { claimsSandbox, SETTINGS, hostRun } from './helpers.js';
  */
 function failingRunner(sb: SandboxWorkbook, failAt: number): ExcelRunner {
   let n = 0;
-  return (batch) =>
-    hostRun(sb)((context) => {
+  return (options, batch) =>
+    hostRun(sb)(options, (context) => {
       const original = context.sync.bind(context);
       context.sync = (async () => {
         n++;
