@@ -165,7 +165,7 @@ export interface ClaimContext {
 /**
  * The follow-up view's context of one claim: its explanation, the centre and spread of the
  * population it was compared with (in the claim's own units, computed from the amounts: median and
- * 1.4826 x MAD for robust z, mean and SD for classic z, median and IQR for IQR fences), its bounds,
+ * 1.4826 x MAD for robust z, mean and SD for classic z, median and IQR for the fence methods), its bounds,
  * and a sorted sample for the strip. O(rows) for the group scan plus O(n log n) for its sort.
  */
 export function claimContext(result: ScoreResult, columnIndex: number, row: number): ClaimContext | null {
@@ -198,7 +198,7 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
       spreadName = 'SD';
       centre = fin(mean(values));
       spread = n > 1 ? fin(sampleStandardDeviation(values)) : null;
-    } else if (col.method === 'iqr') {
+    } else if (col.method === 'iqr' || col.method === 'adjusted') {
       spreadName = 'IQR';
       centre = fin(median(values));
       spread = fin(quantile(values, 0.75) - quantile(values, 0.25));

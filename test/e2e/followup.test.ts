@@ -3,13 +3,15 @@
  * workbook, headless Chromium): save and next with the keyboard, order by score, the unsaved-note
  * guard, a selection in the sheet showing its claim, and Remove keeping the reviewer's marks.
  */
+import { mkdirSync } from 'node:fs';
+import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoClaims } from '../../src/demo/claims.js';
 import { NOTE_HEADER, REVIEW_STATUSES, STATUS_HEADER } from '../../src/report/style.js';
 import { scoreTable } from '../../src/scoring/index.js';
 import type { RawCell } from '../../src/scoring/types.js';
-import { buildWeb, openPage, startSession, type Session } from './harness.js';
+import { buildWeb, openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 const label = (id: string) => REVIEW_STATUSES.find((s) => s.id === id)!.label;
 
@@ -240,5 +242,35 @@ describe('audit trail', () => {
     expect((await logLines(page)).slice(0, lines.length)).toEqual(lines);
     expect(errors).toEqual([]);
     await page.close();
+  });
+});
+
+describe('screenshots of the follow-up view', () => {
+  it('at 320 px (pane alone) and desktop width, light and dark, with the unsaved-note question and the Remove dialog', async () => {
+    mkdirSync(SCREENSHOT_DIR, { recursive: true });
+    for (const theme of ['light', 'dark'] as const) {
+      const desk = await openPage(session, 'preview.html', { theme, width: 1280, height: 900 });
+      await runDemo(desk.page);
+      await desk.page.getByTestId('claim-card').scrollIntoViewIfNeeded();
+      await desk.page.screenshot({ path: path.join(SCREENSHOT_DIR, `followup-desktop-${theme}.png`) });
+      await desk.page.close();
+
+      const { page } = await openPage(session, 'preview.html', { theme, width: 320, height: 900, query: 'view=pane' });
+      await runDemo(page);
+      // Nothing may be wider than the 320 px viewport.
+      expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBeLessThanOrEqual(0);
+      await page.getByTestId('section-review').screenshot({ path: path.join(SCREENSHOT_DIR, `followup-320-${theme}.png`) });
+      await page.getByTestId('note').fill('asked for the hotel invoice');
+      await page.getByTestId('next').click();
+      await page.getByTestId('pending').waitFor();
+      await page.getByTestId('pending').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(SCREENSHOT_DIR, `followup-unsaved-320-${theme}.png`) });
+      await page.getByTestId('pending-save').click();
+      await expect.poll(() => page.getByTestId('pending').count()).toBe(0);
+      await page.getByTestId('remove').click();
+      await page.getByTestId('remove-counts').waitFor();
+      await page.screenshot({ path: path.join(SCREENSHOT_DIR, `remove-320-${theme}.png`) });
+      await page.close();
+    }
   });
 });
