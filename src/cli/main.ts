@@ -19,7 +19,8 @@ import { writeScoredWorkbook } from '../files/write.js';
 import { checkOutPath } from '../files/layout.js';
 import { writeDemoWorkbook } from '../files/demo.js';
 import { HELP, parseDemoArgs, parseScoreArgs, type ScoreArgs } from './args.js';
-import { TailmarkError, resolveColumns, runPipeline, validateSettings } from '../pipeline/index.js';
+import { TailmarkError, resolveColumns, runPipeline, validateSettings, type PipelineRun } from '../pipeline/index.js';
+import { previousMarks } from '../files/marks.js';
 
 const LARGE_ROWS = 50_000;
 /** Sheets with more data rows than this are written row by row (large-file mode). */
@@ -84,8 +85,10 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   const large = table.rowCount >= LARGE_ROWS;
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
-  const { result, plan } = runPipeline(table, args.settings, {
+  const { result, plan, marks } = runPipeline(table, args.settings, {
     when: new Date(),
+    // The previous run's list of marks (in-memory .xlsx only; row by row the notes sheet is not read).
+    previousMarks: previousMarks(table),
     // Row by row, each explanation is worded as its row is written, not all held at once.
     ...(streaming ? { reasonText: 'on-demand' as const } : {}),
   });
@@ -124,10 +127,19 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
         decimalLines(result) +
+        marksLine(marks) +
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
   return { outPath, result };
+}
+
+/** What happened to the review marks of an earlier run, when there were any. */
+function marksLine(m: PipelineRun['marks']): string {
+  if (!m || m.kept + m.restored + m.gone.length === 0) return '';
+  const n = m.kept + m.restored;
+  const gone = m.gone.length ? `; ${m.gone.length} mark${m.gone.length === 1 ? '' : 's'} of claims no longer in the data are listed in the notes` : '';
+  return `Kept ${n} review mark${n === 1 ? '' : 's'} with their claims${gone}.\n`;
 }
 
 /** "Amount: read with decimal comma (...)" for each column whose text cells showed a separator. */

@@ -7,8 +7,10 @@ import { realpathSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import type ExcelJS from 'exceljs';
 import type { SourceTable } from '../scoring/types.js';
-import type { Plan, PlanCell, Swatch } from '../report/types.js';
-import { PALETTE } from '../report/style.js';
+import type { NotesSection, Plan, PlanCell, Swatch } from '../report/types.js';
+import { PALETTE, REVIEW_STATUSES } from '../report/style.js';
+import { notesFormatOf, notesGrid } from '../report/notesSheet.js';
+import { ruleFormula } from '../report/rules.js';
 import { columnLetter, fileKind } from './read.js';
 import { TailmarkError } from '../pipeline/errors.js';
 
@@ -110,24 +112,65 @@ export interface NotesCell {
   readonly style?: Partial<ExcelJS.Style>;
 }
 
-/** The notes sheet as cells (1-based rows and columns) and the number of columns used. */
-export function notesLayout(sections: Plan['notes']['sections']): { cells: NotesCell[]; widest: number } {
+/**
+ * The notes sheet as cells (1-based rows and columns) and the number of columns used: the one
+ * layout every host writes (src/report/notesSheet.ts), with our styles on titles and table headers.
+ */
+export function notesLayout(plan: Plan, extra: readonly NotesSection[] = []): { cells: NotesCell[]; widest: number } {
+  const grid = notesGrid(plan.notes, plan.caution, extra);
+  const titles = new Set(grid.titleRows);
+  const headers = new Set(grid.headerRows);
   const cells: NotesCell[] = [];
-  let r = 1;
-  let widest = 1;
-  for (const section of sections) {
-    cells.push({ row: r, col: 1, value: section.title, style: NOTES_TITLE_STYLE });
-    r++;
-    section.rows.forEach((row, i) => {
-      row.forEach((v, c) => {
-        cells.push({ row: r, col: c + 1, value: v, ...(section.table && i === 0 ? { style: NOTES_TABLE_HEADER_STYLE } : {}) });
-      });
-      widest = Math.max(widest, row.length);
-      r++;
+  grid.rows.forEach((row, r) => {
+    row.forEach((v, c) => {
+      if (v === null) return;
+      const style = r === 0 || titles.has(r) ? NOTES_TITLE_STYLE : headers.has(r) ? NOTES_TABLE_HEADER_STYLE : undefined;
+      cells.push({ row: r + 1, col: c + 1, value: v, ...(style ? { style } : {}) });
     });
-    r++;
-  }
-  return { cells, widest };
+  });
+  return { cells, widest: grid.width };
+}
+
+/** True when a sheet whose A1 holds `a1` is a notes sheet of ours (any host, any format version). */
+export function isOurNotesSheet(a1: unknown): boolean {
+  return notesFormatOf(a1) !== null;
+}
+
+/** Our status dropdown (the review statuses), the same in both xlsx writers. */
+export function statusDropdown(): ExcelJS.DataValidation {
+  const labels = REVIEW_STATUSES.map((s) => s.label).join(',');
+  return {
+    type: 'list',
+    allowBlank: true,
+    formulae: [`"${labels}"`],
+    showErrorMessage: true,
+    errorStyle: 'warning',
+    errorTitle: 'Tailmark status',
+    error: `Pick one of: ${REVIEW_STATUSES.map((s) => s.label).join(', ')}`,
+  };
+}
+
+/** True when a data-validation range lies inside the status column (a previous run's dropdown, replaced by ours). */
+export function inStatusColumn(range: string, statusColumn: string): boolean {
+  const m = /^\$?([A-Z]+)\$?\d+(?::\$?([A-Z]+)\$?\d+)?$/.exec(range);
+  return m !== null && m[1] === statusColumn && (m[2] === undefined || m[2] === statusColumn);
+}
+
+/** Our highlight rules as an ExcelJS conditional format over the data rows, or null when there is nothing to rule. */
+export function ourRules(table: SourceTable, plan: Plan, placed: readonly Placed[]): ExcelJS.ConditionalFormattingOptions | null {
+  const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
+  if (statusIdx < 0 || table.rowCount === 0) return null;
+  const flagColumns = plan.columns.map((c, i) => (c.kind === 'flag' ? placed[i].column : null)).filter((c): c is string => c !== null);
+  const statusColumn = placed[statusIdx].column;
+  return {
+    ref: ruleRange(table, placed),
+    rules: plan.rules.map((rule) => ({
+      type: 'expression' as const,
+      priority: rule.priority,
+      formulae: [ruleFormula(rule, { firstDataRow: table.headerRow + 1, flagColumns, statusColumn }).replace(/^=/, '')],
+      style: { fill: solid(rule.swatch), font: { color: argb(rule.swatch.font) } },
+    })),
+  };
 }
 
 /** Range text of the table's data rows across the table and our columns, e.g. "A2:L601". */

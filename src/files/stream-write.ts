@@ -21,20 +21,19 @@
 import { rename, rm } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import ExcelJS from 'exceljs';
-import type { RawCell } from '../scoring/types.js';
 import type { NotesSection, Plan, PlanCell } from '../report/types.js';
-import { isTailmarkFormula, ruleFormula } from '../report/rules.js';
-import { REVIEW_STATUSES } from '../report/style.js';
+import { isTailmarkFormula } from '../report/rules.js';
 import { forEachCsvRecord } from './csv-stream.js';
 import { type ReadTable } from './read.js';
 import {
-  argb,
   checkOutPath,
+  inStatusColumn,
+  isOurNotesSheet,
   notesLayout,
+  ourRules,
   placeColumns,
   RESULT_HEADER_STYLE,
-  ruleRange,
-  solid,
+  statusDropdown,
   type Placed,
 } from './layout.js';
 import type { WriteSummary } from './write.js';
@@ -69,12 +68,6 @@ function csvFieldValue(f: string): ExcelJS.CellValue {
   return f;
 }
 
-function rawText(v: RawCell): string {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'object' && !(v instanceof Date)) return v.code;
-  return String(v);
-}
-
 type Sheet = ExcelJS.Worksheet; // WorksheetWriter: the same surface for what is used here
 
 interface ResultWriter {
@@ -88,69 +81,31 @@ function resultWriter(table: ReadTable, plan: Plan, placed: readonly Placed[]): 
   const headerRow = table.headerRow;
   const firstDataRow = headerRow + 1;
   const lastDataRow = headerRow + table.rowCount;
-  const existing = new Set(table.headers);
   const scoreStyles = new Map<string, Partial<ExcelJS.Style>>();
   const cols = plan.columns.map((col, ci) => {
-    const reused = existing.has(col.header);
-    const keepMarks = reused && (col.kind === 'status' || col.kind === 'note');
-    const prior = keepMarks ? table.columns[placed[ci].index - table.firstColumn] : undefined;
     let style = EMPTY_STYLE;
     if (col.numberFormat) {
       style = scoreStyles.get(col.numberFormat) ?? { numFmt: col.numberFormat };
       scoreStyles.set(col.numberFormat, style);
     }
-    return { col: placed[ci].index + 1, values: col.values, prior, style, header: col.header };
+    return { col: placed[ci].index + 1, values: col.values, style, header: col.header };
   });
   const ownCols = new Set(cols.map((c) => c.col));
-  const keeps = (rowNo: number, c: (typeof cols)[number]): boolean =>
-    c.prior !== undefined && rawText(c.prior[rowNo - firstDataRow]).trim() !== '';
   return {
     cellsFor(rowNo) {
       if (rowNo === headerRow) return cols.map((c) => ({ col: c.col, value: c.header, style: RESULT_HEADER_STYLE }));
       if (rowNo < firstDataRow || rowNo > lastDataRow) return null;
       const r = rowNo - firstDataRow;
       const out: { col: number; value: PlanCell; style: Partial<ExcelJS.Style> }[] = [];
+      // The plan holds the review marks (kept with their claims by the pipeline).
       for (const c of cols) {
-        if (keeps(rowNo, c)) continue; // the reviewer's mark stays as it is in the input cell
         out.push({ col: c.col, value: c.values[r] ?? null, style: c.style });
       }
       return out;
     },
     owns(rowNo, col) {
-      if (!ownCols.has(col) || rowNo < headerRow || rowNo > lastDataRow) return false;
-      if (rowNo === headerRow) return true;
-      const c = cols.find((x) => x.col === col)!;
-      return !keeps(rowNo, c);
+      return ownCols.has(col) && rowNo >= headerRow && rowNo <= lastDataRow;
     },
-  };
-}
-
-function statusDropdown(): ExcelJS.DataValidation {
-  const labels = REVIEW_STATUSES.map((s) => s.label).join(',');
-  return {
-    type: 'list',
-    allowBlank: true,
-    formulae: [`"${labels}"`],
-    showErrorMessage: true,
-    errorStyle: 'warning',
-    errorTitle: 'Tailmark status',
-    error: `Pick one of: ${REVIEW_STATUSES.map((s) => s.label).join(', ')}`,
-  };
-}
-
-function ourRules(table: ReadTable, plan: Plan, placed: readonly Placed[]): ExcelJS.ConditionalFormattingOptions | null {
-  const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
-  if (statusIdx < 0 || table.rowCount === 0) return null;
-  const flagColumns = plan.columns.map((c, i) => (c.kind === 'flag' ? placed[i].column : null)).filter((c): c is string => c !== null);
-  const statusColumn = placed[statusIdx].column;
-  return {
-    ref: ruleRange(table, placed),
-    rules: plan.rules.map((rule) => ({
-      type: 'expression' as const,
-      priority: rule.priority,
-      formulae: [ruleFormula(rule, { firstDataRow: table.headerRow + 1, flagColumns, statusColumn }).replace(/^=/, '')],
-      style: { fill: solid(rule.swatch), font: { color: argb(rule.swatch.font) } },
-    })),
   };
 }
 
@@ -249,10 +204,7 @@ function applyTail(ws: WriterSheet, tail: SheetTail, statusColumn: string | null
   }
   for (const dv of tail.dataValidations) {
     for (const range of dv.ranges) {
-      if (statusColumn) {
-        const m = /^\$?([A-Z]+)\$?\d+(?::\$?([A-Z]+)\$?\d+)?$/.exec(range);
-        if (m && m[1] === statusColumn && (m[2] === undefined || m[2] === statusColumn)) continue;
-      }
+      if (statusColumn && inStatusColumn(range, statusColumn)) continue;
       ws.dataValidations.model[range] = dv.validation;
     }
   }
@@ -312,7 +264,6 @@ export async function writeScoredWorkbookStreaming(
   const notCarried: string[] = [];
   const sheetNames: string[] = [];
   let notesName = plan.notes.name;
-  const firstTitle = plan.notes.sections[0]?.title;
 
   try {
     if (info.kind === 'csv') {
@@ -355,7 +306,7 @@ export async function writeScoredWorkbookStreaming(
       try {
         for await (const sheet of x.sheets()) {
           const isTarget = sheet.name === table.sheetName && !sawTarget;
-          const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name) && firstTitle !== undefined;
+          const maybeOurs = !isTarget && replaced === null && chain.has(sheet.name);
           let ws: WriterSheet | null = null;
           let head: SheetHead | null = null;
           let skip = false;
@@ -375,7 +326,7 @@ export async function writeScoredWorkbookStreaming(
             onRow(row) {
               if (maybeOurs && !ws && !skip) {
                 const a1 = row.r === 1 ? row.cells.find((c) => c.col === 1) : undefined;
-                if (a1 && a1.raw === firstTitle) {
+                if (a1 && isOurNotesSheet(a1.raw)) {
                   skip = true;
                   replaced = sheet.name;
                   return false;
@@ -434,7 +385,7 @@ export async function writeScoredWorkbookStreaming(
       ],
     };
     const notes = wb.addWorksheet(notesName, { useSharedStrings: true } as Partial<ExcelJS.AddWorksheetOptions>) as unknown as WriterSheet;
-    const layout = notesLayout([...plan.notes.sections, extra]);
+    const layout = notesLayout(plan, [extra]);
     notes.getColumn(1).width = 34;
     for (let c = 2; c <= layout.widest; c++) notes.getColumn(c).width = 16;
     for (const c of layout.cells) {

@@ -9,13 +9,13 @@
 import { rename, rm } from 'node:fs/promises';
 import { basename, dirname, join, resolve } from 'node:path';
 import ExcelJS from 'exceljs';
-import type { RawCell, SourceTable } from '../scoring/types.js';
+import type { SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell } from '../report/types.js';
-import { ruleFormula, isTailmarkFormula } from '../report/rules.js';
-import { REVIEW_STATUSES } from '../report/style.js';
-import { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, lastRunCutoff, runLogLines } from '../report/log.js';
+import { isTailmarkFormula } from '../report/rules.js';
+import { LOG_HEADER, LOG_SHEET_NAME, isLogMarker, lastRunCutoff, runLogLines } from '../report/log.js';
+import { LOG_TITLE } from '../report/notesSheet.js';
 import { fileKind, readTable, type ReadTable } from './read.js';
-import { argb, checkOutPath, notesLayout, placeColumns, RESULT_HEADER_STYLE, ruleRange, solid } from './layout.js';
+import { checkOutPath, inStatusColumn, isOurNotesSheet, notesLayout, ourRules, placeColumns, RESULT_HEADER_STYLE, statusDropdown } from './layout.js';
 import { TailmarkError } from '../pipeline/errors.js';
 
 export interface WriteOptions {
@@ -60,12 +60,6 @@ function isEmptyValue(v: ExcelJS.CellValue): boolean {
 /** The plan's cells as sheet values: strings stay strings (text), null is an empty cell. */
 function planValue(v: PlanCell): ExcelJS.CellValue {
   return v === null ? null : v;
-}
-
-function rawToCellText(v: RawCell): string {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'object' && !(v instanceof Date)) return v.code;
-  return String(v);
 }
 
 /** A cell of the log sheet as a plan cell (exceljs values: numbers and text are all the log holds). */
@@ -153,8 +147,8 @@ export async function writeScoredWorkbook(
   const firstDataRow = headerRow + 1;
   const lastDataRow = headerRow + table.rowCount;
 
-  // Re-run: our columns already in the table are reused in place (status and notes keep their marks).
-  const existing = new Set(table.headers);
+  // Re-run: our columns already in the table are reused in place; the plan holds the review marks
+  // (kept with their claims by the pipeline, src/report/marks.ts), so every cell is written from it.
   const isFree = (col0: number): boolean => {
     for (let r = headerRow; r <= Math.max(lastDataRow, headerRow); r++) {
       const cell = ws.findRow(r)?.findCell(col0 + 1);
@@ -168,22 +162,15 @@ export async function writeScoredWorkbook(
   let done = 0;
   plan.columns.forEach((col, ci) => {
     const c = placed[ci].index + 1;
-    const reused = existing.has(col.header);
-    const keepMarks = reused && (col.kind === 'status' || col.kind === 'note');
     const head = ws.getRow(headerRow).getCell(c);
     head.value = col.header;
     head.font = RESULT_HEADER_STYLE.font!;
     head.fill = RESULT_HEADER_STYLE.fill!;
     const column = ws.getColumn(c);
     if (col.width) column.width = col.width;
-    const priorCells = keepMarks ? table.columns[placed[ci].index - table.firstColumn] : undefined;
     for (let r = 0; r < table.rowCount; r++) {
       const cell = ws.getRow(firstDataRow + r).getCell(c);
-      if (priorCells && rawToCellText(priorCells[r]).trim() !== '') {
-        // keep the reviewer's mark as it is
-      } else {
-        cell.value = planValue(col.values[r] ?? null);
-      }
+      cell.value = planValue(col.values[r] ?? null);
       if (col.numberFormat) cell.numFmt = col.numberFormat;
     }
     done += table.rowCount;
@@ -191,9 +178,9 @@ export async function writeScoredWorkbook(
   });
 
   // Highlight rules: drop our old ones (recognised by marker), keep the user's, add ours.
-  const flagColumns = plan.columns.map((c, i) => (c.kind === 'flag' ? placed[i].column : null)).filter((c): c is string => c !== null);
   const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
-  if (statusIdx >= 0 && table.rowCount > 0) {
+  const rules = ourRules(table, plan, placed);
+  if (rules && statusIdx >= 0) {
     const statusColumn = placed[statusIdx].column;
     const model = ws as unknown as { conditionalFormattings?: { ref: string; rules: { formulae?: unknown[] }[] }[] };
     if (Array.isArray(model.conditionalFormattings)) {
@@ -201,50 +188,28 @@ export async function writeScoredWorkbook(
         (cf) => !cf.rules.some((rule) => (rule.formulae ?? []).some((f) => typeof f === 'string' && isTailmarkFormula(f))),
       );
     }
-    const ref = ruleRange(table, placed);
-    ws.addConditionalFormatting({
-      ref,
-      rules: plan.rules.map((rule) => ({
-        type: 'expression' as const,
-        priority: rule.priority,
-        formulae: [ruleFormula(rule, { firstDataRow, flagColumns, statusColumn }).replace(/^=/, '')],
-        style: { fill: solid(rule.swatch), font: { color: argb(rule.swatch.font) } },
-      })),
-    });
+    ws.addConditionalFormatting(rules);
     // Our dropdown replaces any per-cell validation a previous run left in the status column.
     // ExcelJS has worksheet.dataValidations at runtime but not in its type definitions.
     const dv = (ws as unknown as { dataValidations: SheetValidations }).dataValidations;
-    for (const address of Object.keys(dv.model)) {
-      const m = /^\$?([A-Z]+)\$?\d+(?::\$?([A-Z]+)\$?\d+)?$/.exec(address);
-      if (m && m[1] === statusColumn && (m[2] === undefined || m[2] === statusColumn)) delete dv.model[address];
-    }
-    const labels = REVIEW_STATUSES.map((s) => s.label).join(',');
-    dv.add(`${statusColumn}${firstDataRow}:${statusColumn}${lastDataRow}`, {
-      type: 'list',
-      allowBlank: true,
-      formulae: [`"${labels}"`],
-      showErrorMessage: true,
-      errorStyle: 'warning',
-      errorTitle: 'Tailmark status',
-      error: `Pick one of: ${REVIEW_STATUSES.map((s) => s.label).join(', ')}`,
-    });
+    for (const address of Object.keys(dv.model)) if (inStatusColumn(address, statusColumn)) delete dv.model[address];
+    dv.add(`${statusColumn}${firstDataRow}:${statusColumn}${lastDataRow}`, statusDropdown());
   }
 
-  // Notes sheet: replaced on a re-run when it is ours (it starts with our first section title);
-  // a sheet of the user's that happens to have the same name is left alone and ours gets a suffix.
+  // Notes sheet: replaced on a re-run when it is ours (whichever host made it: A1 says so, see
+  // src/report/notesSheet.ts); a sheet of the user's with the same name is left alone and ours gets a suffix.
   let notesName = plan.notes.name;
-  const firstTitle = plan.notes.sections[0]?.title;
   for (let k = 2; ; k++) {
     const old = wb.getWorksheet(notesName);
     if (!old) break;
-    if (firstTitle !== undefined && old.getCell('A1').value === firstTitle) {
+    if (isOurNotesSheet(old.getCell('A1').value)) {
       wb.removeWorksheet(old.id);
       break;
     }
     notesName = `${plan.notes.name} (${k})`;
   }
   const notes = wb.addWorksheet(notesName);
-  const layout = notesLayout([...plan.notes.sections, ...(options.extraNotes ?? [])]);
+  const layout = notesLayout(plan, options.extraNotes);
   for (const c of layout.cells) {
     const cell = notes.getRow(c.row).getCell(c.col);
     cell.value = planValue(c.value);

@@ -13,5 +13,5 @@ export {
   type SettingsInput,
 } from './settings.js';
 export { columnsToRead, findColumn, resolveColumns, type ResolvedColumns } from './columns.js';
-export { runPipeline, scoreColumns, type NamedCells, type PipelineContext, type PipelineRun, type PipelineTable } from './run.js';
+export { claimIds, runPipeline, scoreColumns, type NamedCells, type PipelineContext, type PipelineRun, type PipelineTable } from './run.js';
 export { cutoffForReviewBudget, type BudgetAnswer } from './budget.js';

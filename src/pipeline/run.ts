@@ -7,6 +7,7 @@ import { scoreTable } from '../scoring/scoreTable.js';
 import { EXCLUSION_LABELS, EXCLUSION_REASONS, type RawCell, type ScoreResult, type SourceTable } from '../scoring/types.js';
 import { buildPlan } from '../report/plan.js';
 import type { Plan } from '../report/types.js';
+import { mergeMarks, priorMarksOf, type MarkRecord } from '../report/marks.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { TailmarkError } from './errors.js';
 import { engineOptions, validateSettings, type SettingWords, type Settings, type SettingsInput } from './settings.js';
@@ -20,6 +21,14 @@ export interface PipelineContext {
   readonly reasonText?: 'eager' | 'on-demand';
   /** Called after scoring, before the plan is built (progress). */
   readonly onScored?: () => void;
+  /**
+   * Review marks (src/report/marks.ts). 'from-table' (default): our status/note columns, when the
+   * table has them, are the marks before this run, and `previousMarks` is the list the last run's
+   * notes sheet holds. 'host': the host reads the marks from elsewhere and calls `mergeMarks` itself
+   * (the add-in, whose result columns sit outside the data it reads).
+   */
+  readonly marks?: 'from-table' | 'host';
+  readonly previousMarks?: readonly MarkRecord[];
 }
 
 export interface PipelineRun {
@@ -27,6 +36,8 @@ export interface PipelineRun {
   readonly columns: ResolvedColumns;
   readonly result: ScoreResult;
   readonly plan: Plan;
+  /** Rows whose mark was kept from their own cells / restored from the previous list; marks of claims gone. */
+  readonly marks: { readonly kept: number; readonly restored: number; readonly gone: readonly MarkRecord[] } | null;
 }
 
 /** A named column of raw cells, as the engine takes it. */
@@ -68,12 +79,26 @@ export function runPipeline(table: PipelineTable, input: SettingsInput, ctx: Pip
   const result = scoreTable({ valueColumns: columns.value.map(named), groupColumns: columns.group.map(named) }, engineOptions(settings));
   checkNumbers(result, table.source);
   ctx.onScored?.();
-  const plan = buildPlan(result, {
+  const built = buildPlan(result, {
     source: table.source,
     when: ctx.when,
     table: { ...table, headers: table.headers.map((h) => h ?? '') },
     idColumn: columns.id !== null ? table.headers[columns.id] : null,
     ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}),
   });
-  return { settings, columns, result, plan };
+  if (ctx.marks === 'host') return { settings, columns, result, plan: built, marks: null };
+  const ids = columns.id !== null ? claimIds(table.columns[columns.id], table.rowCount) : null;
+  const prior = priorMarksOf(table.headers, table.columns, table.rowCount);
+  const merged = mergeMarks(built, prior, ids, ctx.previousMarks ?? []);
+  return { settings, columns, result, plan: merged.plan, marks: { kept: merged.kept, restored: merged.restored, gone: merged.gone } };
+}
+
+/** Claim IDs as text (trimmed; '' for a blank cell), the key review marks follow. */
+export function claimIds(cells: ArrayLike<RawCell> | undefined, rows: number): string[] {
+  const out = new Array<string>(rows);
+  for (let r = 0; r < rows; r++) {
+    const v = cells?.[r];
+    out[r] = v === null || v === undefined ? '' : v instanceof Date ? v.toISOString() : typeof v === 'object' ? v.code : String(v).trim();
+  }
+  return out;
 }

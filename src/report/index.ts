@@ -17,9 +17,7 @@ export { planToJson, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';
 export {
   LOG_HEADER,
-  LOG_MARKER,
   LOG_SHEET_NAME,
-  LOG_TITLE,
   NO_NAME,
   cutoffLine,
   isLogMarker,
@@ -29,3 +27,5 @@ export {
   runLogLines,
   type CutoffChange,
 } from './log.js';
+export { WORKBOOK_FORMAT, NOTES_TITLE, LOG_TITLE, notesFormatOf, logFormatOf, notesGrid, type NotesGrid } from './notesSheet.js';
+export { MARKS_TITLE, GONE_TITLE, isMark, mergeMarks, priorMarksOf, readMarkRecords, type MarkRecord, type MarksOutcome, type PriorMarks } from './marks.js';

@@ -3,13 +3,13 @@
  * record that defends the selection. One line per run, per cutoff change (with the reviewer's
  * reason and whether a review budget set it) and per status or note the reviewer saves (who and
  * when). Sinks only ever add lines below the last one; nothing in the log is rewritten by a later
- * run. The title in A1 carries our marker; a sheet of that name without it is the user's.
+ * run. Its title in A1 (LOG_TITLE, src/report/notesSheet.ts) says it is ours and its format; a sheet
+ * of that name without it is the user's.
  */
+import { logFormatOf } from './notesSheet.js';
 import type { PlanCell, RunLogEntry } from './types.js';
 
-export const LOG_MARKER = 'tm:log:v1';
 export const LOG_SHEET_NAME = 'Tailmark log';
-export const LOG_TITLE = `Tailmark log (${LOG_MARKER}) · one line per run, cutoff change and saved status or note, newest last; lines are never rewritten.`;
 /** The log's columns: the first six are a run's (the log's first format); the rest came with the audit trail. */
 export const LOG_HEADER: readonly string[] = [
   'When (UTC)', 'Source', 'Method', 'Cutoff', 'Rows scored', 'Flagged',
@@ -19,8 +19,9 @@ export const LOG_HEADER: readonly string[] = [
 /** Written as "who" when the reviewer has not typed a name: Office gives add-ins no user identity. */
 export const NO_NAME = '(name not given)';
 
+/** True when A1 of a log sheet says it is ours (any host, any format version; src/report/notesSheet.ts). */
 export function isLogMarker(v: unknown): boolean {
-  return typeof v === 'string' && v.includes(LOG_MARKER);
+  return logFormatOf(v) !== null;
 }
 
 function line(values: Readonly<Record<string, PlanCell>>): PlanCell[] {

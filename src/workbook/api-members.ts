@@ -103,6 +103,7 @@ export const EXCEL_MEMBERS: readonly ExcelMember[] = [
   { member: 'Worksheet.getRange', apiSet: 'ExcelApi 1.1' },
   { member: 'Worksheet.getRangeByIndexes', apiSet: 'ExcelApi 1.7' },
   { member: 'Worksheet.getUsedRangeOrNullObject', apiSet: 'ExcelApi 1.4' },
+  { member: 'Range.getUsedRangeOrNullObject', apiSet: 'ExcelApi 1.4' },
   { member: 'Worksheet.load', apiSet: null },
   { member: 'Worksheet.name', apiSet: 'ExcelApi 1.1' },
   { member: 'Worksheet.protection', apiSet: 'ExcelApi 1.2' },

@@ -1,44 +1,16 @@
 /**
  * The notes sheet (rewritten in place each run) and the run-log sheet (one row appended per run).
- * Both carry a marker in A1 so we recognise them as ours; a sheet of that name without the marker
- * is the user's and is never touched (TailmarkError 'name-clash').
+ * Both say in A1 that they are ours and which workbook format they follow (src/report/notesSheet.ts,
+ * shared with the batch command); a sheet of that name without it is the user's and is never
+ * touched (TailmarkError 'name-clash').
  */
-import { PALETTE, type NotesSheet, type PlanCell } from '../report/index.js';
+import { PALETTE, notesFormatOf, type PlanCell } from '../report/index.js';
 
-export { LOG_HEADER, LOG_MARKER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker } from '../report/index.js';
-export const NOTES_MARKER = 'tm:notes:v1';
-export const NOTES_TITLE = `Tailmark notes (${NOTES_MARKER}) · rewritten on every run; keep your own notes on another sheet.`;
+export { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, notesGrid, type NotesGrid } from '../report/index.js';
 
+/** True when A1 of a notes sheet says it is ours (any host, any format version; src/report/notesSheet.ts). */
 export function isNotesMarker(v: unknown): boolean {
-  return typeof v === 'string' && v.includes(NOTES_MARKER);
-}
-
-export interface NotesGrid {
-  /** Rows padded to `width`. */
-  readonly rows: PlanCell[][];
-  readonly width: number;
-  /** Rows (0-based) that are section titles. */
-  readonly titleRows: readonly number[];
-  /** Rows that are table headers. */
-  readonly headerRows: readonly number[];
-}
-
-export function notesGrid(notes: NotesSheet, caution: string): NotesGrid {
-  const rows: PlanCell[][] = [[NOTES_TITLE], [caution], []];
-  const titleRows: number[] = [];
-  const headerRows: number[] = [];
-  for (const s of notes.sections) {
-    titleRows.push(rows.length);
-    rows.push([s.title]);
-    s.rows.forEach((r, i) => {
-      if (s.table && i === 0) headerRows.push(rows.length);
-      rows.push([...r]);
-    });
-    rows.push([]);
-  }
-  const width = Math.max(1, ...rows.map((r) => r.length));
-  for (const r of rows) while (r.length < width) r.push(null);
-  return { rows, width, titleRows, headerRows };
+  return notesFormatOf(v) !== null;
 }
 
 

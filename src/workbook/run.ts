@@ -15,7 +15,7 @@
  *  - if a write sync fails part-way (only possible when the writes need several syncs), the
  *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
  */
-import { runPipeline, validateSettings } from '../pipeline/index.js';
+import { claimIds, runPipeline, validateSettings } from '../pipeline/index.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
@@ -25,18 +25,19 @@ import {
 import {
   isTailmarkFormula,
   runLogLines,
+  mergeMarks,
+  readMarkRecords,
   NOTES_SHEET_NAME,
   PALETTE,
   REVIEW_STATUSES,
   ruleFormula,
-  statusLabel,
   type Plan,
   type PlanCell,
   type PlanColumn,
 } from '../report/index.js';
 import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
 import { MAX_COLUMNS, columnLetters, rectAddress } from './a1.js';
-import { cellText, toRawCell } from './cells.js';
+import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
   HEADER_SWATCH,
@@ -279,13 +280,6 @@ function summarise(result: ScoreResult, plan: Plan, syncs: number): RunSummary {
   };
 }
 
-const OPEN_LABEL = statusLabel('open');
-
-/** True when a status/note pair is a reviewer's mark (not just our default for a flagged row). */
-export function isMark(status: string, note: string): boolean {
-  return (status !== '' && status !== OPEN_LABEL) || note !== '';
-}
-
 function textOf(v: unknown): string {
   if (v === null || v === undefined) return '';
   return typeof v === 'string' ? v : String(v);
@@ -320,7 +314,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
   const address = rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols });
-  const { result, plan, columns } = runPipeline(
+  const { result, plan: built, columns } = runPipeline(
     {
       source: res.tableName ? `${address} (table ${res.tableName})` : address,
       sheetName: res.sheetName,
@@ -331,12 +325,13 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       firstColumn: res.spanStart,
     },
     settings,
-    { when: deps.now() },
+    // The marks sit in our columns outside the data read here: merged below, after the check read them.
+    { when: deps.now(), marks: 'host' },
   );
   deps.onProgress?.({ phase: 'scoring', fraction: 1 });
   if (signal?.aborted) throw cancelled();
 
-  const placement = place(res, plan);
+  const placement = place(res, built);
 
   // ---- check (one pass: fingerprint, marks, notes/log sheets, our old rules, widths) ----
   const fp = new Fingerprint();
@@ -347,6 +342,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   if (placement.oldNote !== null) markSpans.push({ column: placement.oldNote, into: oldNote });
   const notesA1 = res.notesSheet.isNullObject ? null : res.notesSheet.getRange('A1');
   const logA1 = res.logSheet.isNullObject ? null : res.logSheet.getRange('A1');
+  // The previous run's list of marks (src/report/marks.ts) sits in the first columns of the notes.
+  const notesMarks = res.notesSheet.isNullObject ? null : res.notesSheet.getRange('A:C').getUsedRangeOrNullObject(true);
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
@@ -371,6 +368,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       withFirstSync: () => {
         res.sheet.protection.load('protected');
         notesA1?.load('values');
+        notesMarks?.load('values');
         logA1?.load('values');
         logUsed?.load(['rowIndex', 'rowCount']);
         for (const cf of customRules) cf.custom.rule.load('formula');
@@ -400,36 +398,16 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
 
-  // ---- values to write: merge review marks ----
-  const statusIdx = plan.columns.findIndex((c) => c.kind === 'status');
-  const noteIdx = plan.columns.findIndex((c) => c.kind === 'note');
-  const statusValues: PlanCell[] = plan.columns[statusIdx].values.slice();
-  const noteValues: PlanCell[] = plan.columns[noteIdx].values.slice();
-  let marksKept = 0;
-  const ids = columns.id !== null ? data.columns[columns.id].map(cellText) : null;
-  const byId = new Map<string, number>();
-  const dupIds = new Set<string>();
-  if (ids) {
-    for (let r = 0; r < res.rows; r++) {
-      const id = ids[r];
-      if (id === '') continue;
-      if (byId.has(id)) dupIds.add(id);
-      else byId.set(id, r);
-    }
-  }
-  for (let r = 0; r < res.rows; r++) {
-    // The mark of this claim: by claim ID when chosen and unique, else by row.
-    let src = r;
-    if (ids && ids[r] !== '' && !dupIds.has(ids[r])) src = byId.get(ids[r]) ?? r;
-    const s = oldStatus[src];
-    const n = oldNote[src];
-    if (isMark(s, n)) {
-      statusValues[r] = s === '' ? null : s;
-      noteValues[r] = n === '' ? null : n;
-      marksKept++;
-    }
-  }
-  const values: (readonly PlanCell[])[] = plan.columns.map((c, i) => (i === statusIdx ? statusValues : i === noteIdx ? noteValues : c.values));
+  // ---- review marks: each row keeps its own; the previous run's list fills in when our columns are new ----
+  const merged = mergeMarks(
+    built,
+    placement.oldStatus !== null || placement.oldNote !== null ? { status: oldStatus, note: oldNote } : null,
+    columns.id !== null ? claimIds(data.columns[columns.id], res.rows) : null,
+    notesMarks && !notesMarks.isNullObject && isNotesMarker(notesA1?.values[0][0]) ? readMarkRecords(notesMarks.values) : [],
+  );
+  const plan = merged.plan;
+  const marksKept = merged.kept + merged.restored;
+  const values: (readonly PlanCell[])[] = plan.columns.map((c) => c.values);
 
   // ---- write ----
   const createdNotes = res.notesSheet.isNullObject;
