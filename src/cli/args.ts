@@ -3,7 +3,7 @@
  * every mistake becomes a TailmarkError ('usage', or 'bad-settings' from the pipeline's one
  * validation) with one line that says what to fix.
  */
-import { SETTING_KEYS, SETTING_SPECS, validateSettings, type SettingKey, type SettingWords, type Settings, type SettingsInput } from '../pipeline/settings.js';
+import { defaultSettings, SETTING_KEYS, SETTING_SPECS, validateSettings, type SettingKey, type SettingWords, type Settings, type SettingsInput } from '../pipeline/settings.js';
 import { TailmarkError } from '../pipeline/errors.js';
 
 /** The batch command's I/O choices; what to compute is `settings` (src/pipeline/settings.ts). */
@@ -85,7 +85,7 @@ export function settingsFromOptions(opts: ReadonlyMap<string, readonly string[]>
     else if (f.kind === 'list') out[k] = raw;
     else {
       const text = raw[0];
-      const def = SETTING_SPECS[k].fallback({ method: 'robust' });
+      const def = SETTING_SPECS[k].fallback(defaultSettings());
       if (typeof def === 'number') {
         // A whole-number setting must be written as one ("2.5", "1e1", "0x10" are not).
         const whole = Number.isInteger(def) && k !== 'cutoff';
@@ -171,16 +171,18 @@ export const HELP = `tailmark: flag expense claims that are unusual for their pe
 Usage:
   tailmark score <input.xlsx|input.csv> --value <header> [options]
   tailmark demo [--out <path.xlsx>] [--force]
-  tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--json]
+  tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--fail-sync <k>] [--out <path>] [--json]
   tailmark --help
 
 score options:
   --value <header>        amount column to score (repeat for several)
   --group <header>        peer-group column, e.g. "Cost centre" (repeat; groups combine)
   --id <header>           claim identifier column, shown in --json output
-  --method <m>            robust (median/MAD, default) | classic (mean/SD) | iqr (quartile fences) |
-                          adjusted (quartile fences adjusted for skew by the medcouple)
-  --cutoff <n>            score beyond which a claim is flagged (default robust 3.5, classic 3, iqr/adjusted k 1.5)
+  --method <m>            skew (default: fences from Tukey's hinges, the long side of a skewed group
+                          widened by its medcouple) | adjusted (the adjusted boxplot) | robust
+                          (median/MAD) | classic (mean/SD) | iqr (quartile fences)
+  --cutoff <n>            score beyond which a claim is flagged (default skew k 3, adjusted/iqr k 1.5,
+                          robust 3.5, classic 3)
   --direction <d>         high | low | both (default both)
   --min-group <n>         smallest group scored on its own (default 8)
   --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)

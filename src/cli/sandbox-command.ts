@@ -1,5 +1,5 @@
 /**
- * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--out <path>] [--force] [--json]`
+ * `tailmark sandbox <input.xlsx|input.csv> [score options] [--rerun] [--office-client] [--fail-sync <k>] [--out <path>] [--force] [--json]`
  *
  * Runs the add-in's workbook layer headless, exactly as the task pane does (detect -> run), on an
  * in-memory copy of the file (the sandbox), then optionally writes the result as .xlsx and prints
@@ -34,12 +34,20 @@ interface SandboxArgs {
   readonly json: boolean;
   /** Run through Microsoft's real Office.js client (requests answered by the sandbox). */
   readonly officeClient: boolean;
+  /** Make the k-th sync of the last run fail part-way and report whether the workbook is as before. */
+  readonly failSync: number | null;
+}
+
+function failSyncOf(raw: string | undefined): number | null {
+  if (raw === undefined) return null;
+  if (!/^[1-9][0-9]*$/.test(raw.trim())) throw new TailmarkError('usage', `--fail-sync must be a whole number of at least 1 (the sync of the last run to fail); got "${raw}"`);
+  return Number(raw);
 }
 
 export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
   const { positional, opts } = parseFlags(
     argv,
-    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag', 'office-client': 'flag' },
+    { ...settingOptionSpec(), sheet: 'value', rerun: 'flag', out: 'value', force: 'flag', json: 'flag', 'office-client': 'flag', 'fail-sync': 'value' },
     'sandbox',
   );
   if (positional.length !== 1) {
@@ -65,6 +73,7 @@ export function parseSandboxArgs(argv: readonly string[]): SandboxArgs {
     force: opts.has('force'),
     json: opts.has('json'),
     officeClient: opts.has('office-client'),
+    failSync: failSyncOf(one('fail-sync')),
   };
 }
 
@@ -194,6 +203,40 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     host?.wire.reset();
     const table = await layer.detect();
     const settings = settingsFor(table, args);
+    if (args.failSync !== null) {
+      // Fault injection: the k-th sync of the last run fails part-way (Excel's failure mode).
+      let t = table;
+      if (args.rerun) {
+        await layer.run(table, settings);
+        t = await layer.detect();
+      }
+      const beforeRun = sb.snapshot();
+      sb.failSyncAt(args.failSync);
+      let error: string | null = null;
+      try {
+        await layer.run(t, settings);
+      } catch (e) {
+        error = e instanceof Error ? e.message : String(e);
+      }
+      const changed = diffSnapshots(beforeRun, sb.snapshot());
+      const report = {
+        client: host ? 'office-js' : 'sandbox',
+        faultInjected: sb.faultFired,
+        runFailed: error,
+        syncsOfLastRun: layer.lastStats?.syncs ?? null,
+        workbookUnchangedByFailedRun: changed.length === 0,
+        ...(changed.length ? { changedByFailedRun: changed } : {}),
+      };
+      if (args.json) process.stdout.write(JSON.stringify(report, null, 2) + '\n');
+      else {
+        process.stdout.write(
+          sb.faultFired
+            ? `injected a failure at sync ${args.failSync} of the ${args.rerun ? 're-run' : 'run'}: ${changed.length === 0 ? 'the workbook is as it was' : `${changed.length} changes stayed`}\n`
+            : `the ${args.rerun ? 're-run' : 'run'} finished before sync ${args.failSync}: no failure injected\n`,
+        );
+      }
+      return 0;
+    }
     const summary = await layer.run(table, settings);
     const syncs = sb.stats.syncs;
     // Through the real client these are the sizes of the JSON it sent and received.

@@ -12,6 +12,7 @@
  * take what it returns.
  */
 import {
+  DEFAULT_OPTIONS,
   DECIMAL_MODES,
   DIRECTIONS,
   METHOD_IDS,
@@ -89,7 +90,7 @@ export const SETTING_SPECS: { readonly [K in SettingKey]: Spec<Settings[K]> } = 
     fallback: () => null,
     check: (v) => (v === null || typeof v === 'string' ? null : 'must be a column header or none'),
   },
-  method: { label: 'The method', fallback: () => 'robust', check: oneOf(METHOD_IDS) },
+  method: { label: 'The method', fallback: () => DEFAULT_OPTIONS.method, check: oneOf(METHOD_IDS) },
   cutoff: {
     label: 'The cutoff',
     fallback: (s) => defaultCutoff(s.method),
@@ -133,13 +134,13 @@ function shownValue(v: unknown): string {
 }
 
 /** The defaults of every setting for `method` (no columns chosen). */
-export function defaultSettings(method: MethodId = 'robust'): Settings {
+export function defaultSettings(method: MethodId = DEFAULT_OPTIONS.method): Settings {
   return completeSettings({ method });
 }
 
 /** Fill in defaults for missing settings, without checking the ones given. */
 function completeSettings(input: SettingsInput): Settings {
-  const method = (METHOD_IDS as readonly unknown[]).includes(input.method) ? (input.method as MethodId) : SETTING_SPECS.method.fallback({ method: 'robust' });
+  const method = (METHOD_IDS as readonly unknown[]).includes(input.method) ? (input.method as MethodId) : SETTING_SPECS.method.fallback({ method: DEFAULT_OPTIONS.method });
   const out: Record<string, unknown> = {};
   for (const key of SETTING_KEYS) {
     const v = input[key];

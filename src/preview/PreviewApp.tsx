@@ -190,10 +190,10 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
         if (rows.length === 0) throw new Error('The file is empty.');
         sb = sandboxFromRows(file.name.replace(/\.csv$/i, '').slice(0, 31) || 'Sheet1', rows);
       } else {
-        const [{ sandboxFromExcelJs }, ExcelJS] = await Promise.all([import('../sandbox/exceljs-bridge.js'), import('exceljs')]);
-        const wb = new ExcelJS.default.Workbook();
-        await wb.xlsx.load(await file.arrayBuffer());
-        sb = sandboxFromExcelJs(wb);
+        // One import of the bridge (which holds ExcelJS) for opening and downloading: the bundle then has
+        // one ExcelJS chunk, not two.
+        const { readXlsx, sandboxFromExcelJs } = await import('../sandbox/exceljs-bridge.js');
+        sb = sandboxFromExcelJs(await readXlsx(await file.arrayBuffer()));
       }
       const first = sb.sheetNames()[0];
       sb.setSelection(first, 'A1');
@@ -210,7 +210,7 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
   const download = async () => {
     setBusy(true);
     try {
-      const [{ sandboxToExcelJs }] = await Promise.all([import('../sandbox/exceljs-bridge.js')]);
+      const { sandboxToExcelJs } = await import('../sandbox/exceljs-bridge.js');
       const wb = sandboxToExcelJs(book.sb);
       const buf = await wb.xlsx.writeBuffer();
       const blob = new Blob([buf], { type: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet' });

@@ -2,6 +2,7 @@
  * The JSON sink's shape: a plan's numbers for scripts (`tailmark score --json`). Pure; the batch
  * command prints what this returns.
  */
+import { describeGroupRule } from '../scoring/index.js';
 import { POPULATIONS, type RawCell } from '../scoring/types.js';
 import type { Plan } from './types.js';
 
@@ -57,6 +58,7 @@ export function planToJson(plan: Plan): PlanJson {
         upper: g.upper,
         flagged: g.flagged,
         medcouple: g.medcouple,
+        rule: describeGroupRule(col.method, g.medcouple),
       };
       if (multi) entry.column = col.column;
       groups.push(entry);

@@ -93,6 +93,7 @@ export class SandboxContext {
     }
     const model = this.model;
     const partial = sb.options.partialOnError;
+    const faultAt = sb.takeFault(actions.length);
     const commits: (() => void)[] = [];
     let respBytes = 2;
     this.memoResets = [];
@@ -104,6 +105,7 @@ export class SandboxContext {
         const a = actions[i];
         if (partial) model.begin();
         try {
+          if (i === faultAt) throw err('GeneralException', `Injected failure of this sync at statement ${i + 1} of ${actions.length} (the statements before it stay applied, as in Excel).`, 'RequestContext.sync');
           if (a.write && sb.mode.readOnly) throw err('AccessDenied', 'The workbook is open read-only: it cannot be changed. Save a copy or ask for edit access, then try again.', 'Workbook.readOnly');
           const r = a.run();
           if (r?.commit) commits.push(r.commit);

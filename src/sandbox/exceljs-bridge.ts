@@ -93,6 +93,13 @@ function mergeRects(input: Rect[]): Rect[] {
   return rs.sort((a, b) => a.r0 - b.r0 || a.c0 - b.c0);
 }
 
+/** An .xlsx file's bytes as an ExcelJS workbook (for the browser preview, which reaches ExcelJS only through this module). */
+export async function readXlsx(data: ArrayBuffer): Promise<ExcelJS.Workbook> {
+  const wb = new ExcelJS.Workbook();
+  await wb.xlsx.load(data);
+  return wb;
+}
+
 /** Build a sandbox from an exceljs workbook (sheet order, names and contents as listed above). */
 export function sandboxFromExcelJs(wb: ExcelJS.Workbook): SandboxWorkbook {
   const sb = new SandboxWorkbook();

@@ -173,6 +173,30 @@ export class SandboxWorkbook {
     }
   }
 
+  /** Syncs left before an injected failure (null: none armed). */
+  private faultCountdown: number | null = null;
+  /** Whether an armed fault has fired. */
+  faultFired = false;
+
+  /**
+   * Make the k-th sync from now (1 = the next) fail part-way, as a sync fails in Excel: the
+   * statements before the failing one (the first half of that request) stay applied.
+   */
+  failSyncAt(k: number): void {
+    this.faultCountdown = k;
+    this.faultFired = false;
+  }
+
+  /** @internal Called by each sync: the index of the statement that must fail, or -1. */
+  takeFault(statements: number): number {
+    if (this.faultCountdown === null) return -1;
+    this.faultCountdown--;
+    if (this.faultCountdown > 0) return -1;
+    this.faultCountdown = null;
+    this.faultFired = true;
+    return Math.floor(statements / 2);
+  }
+
   /** Enter or leave cell-edit mode; leaving it releases requests held by `delayForCellEdit`. */
   setCellEditMode(on: boolean): void {
     this.mode.cellEdit = on;

@@ -58,6 +58,17 @@ export function iqrFenceInSds(k: number): number {
  */
 export function describeCutoff(method: MethodId, cutoff: number, direction: Direction): string {
   const c = formatCutoff(cutoff);
+  if (method === 'skew') {
+    const p = tailProbability(iqrFenceInSds(cutoff), direction);
+    return (
+      `Skew-aware fences with k = ${c}: each group's skew is measured by its medcouple MC (robust, > 0 when the ` +
+      `high tail is longer). On the long side the fence is the adjusted boxplot's (Hubert & Vandervieren 2008), ` +
+      `Q3 + k e^(3 MC) IQR for a right-skewed group, so ordinary large claims of a skewed category are not flagged ` +
+      `for the skew alone; on the short side it is Tukey's, Q1 - k IQR. k = 3 is Tukey's "far out" step. Quartiles ` +
+      `are Tukey's hinges. For normally distributed amounts (MC = 0) the fences sit ${formatNumber(iqrFenceInSds(cutoff), 2)} ` +
+      `SDs from the mean, and ${oneInN(p)} values would pass them by chance in a large group.`
+    );
+  }
   if (method === 'adjusted') {
     const p = tailProbability(iqrFenceInSds(cutoff), direction);
     const fences = direction === 'both'
@@ -99,7 +110,7 @@ export function describeCutoff(method: MethodId, cutoff: number, direction: Dire
  * (not scored). Rows of no-spread / SD-zero groups have 0 and so are never flagged at a cutoff >= 0.
  */
 function reachOf(col: ColumnScores): Float64Array {
-  if (col.method === 'iqr' || col.method === 'adjusted') {
+  if (getMethod(col.method).kind === 'fence') {
     if (col.fenceMultiple === undefined) throw new Error('Fence scores lack fenceMultiple: re-run scoreTable with this version of Tailmark.');
     return col.fenceMultiple;
   }

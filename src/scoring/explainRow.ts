@@ -1,3 +1,4 @@
+import { getMethod } from './methods/index.js';
 import { formatCutoff, formatNumber, formatScore } from './format.js';
 import { EXCLUSION_LABELS, EXCLUSION_REASONS, type ColumnScores, type Direction, type Fallback, type GroupStats, type ScoreResult } from './types.js';
 
@@ -57,14 +58,14 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   const log = col.logScale;
   const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled').map((f) => FALLBACK_WORDS[f]).filter((w) => w !== '');
   const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
-  const fenceMethod = col.method === 'iqr' || col.method === 'adjusted';
+  const fenceMethod = getMethod(col.method).kind === 'fence';
   const cut = `${fenceMethod ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
   const logNote = log ? ' (log scale)' : '';
   const centreText = (c: number | null): string => (c === null ? 'n/a' : log ? `${formatNumber(Math.exp(c))} (ln ${formatNumber(c, 3)})` : formatNumber(c));
   const scaleText = (v: number | null): string => (v === null ? '0' : log ? `${formatNumber(v, 3)} in ln units` : formatNumber(v));
 
   if (fenceMethod) {
-    const adjusted = col.method === 'adjusted';
+    const adjusted = col.method !== 'iqr';
     const fences = stats.lower !== null && stats.upper !== null
       ? `fences ${formatNumber(stats.lower)} to ${formatNumber(stats.upper)}`
       : stats.upper !== null ? `upper fence ${formatNumber(stats.upper)}` : stats.lower !== null ? `lower fence ${formatNumber(stats.lower)}` : 'no fences';

@@ -7,8 +7,9 @@ export { scoreTable, resolveOptions, WHOLE_COLUMN_LABEL } from './scoreTable.js'
 export { explainRow, explainRowShort } from './explainRow.js';
 export { formatNumber, formatScore, formatCutoff } from './format.js';
 export { defaultCutoff, tailProbability, oneInN, describeCutoff, cutoffForBudget, countFlaggedAt, iqrFenceInSds } from './cutoff.js';
-export { METHODS, getMethod, robustMethod, classicMethod, iqrMethod, adjustedMethod, type ScoringMethod, type Fit } from './methods/index.js';
+export { METHODS, getMethod, robustMethod, classicMethod, iqrMethod, adjustedMethod, skewMethod, fenceFactors, type ScoringMethod, type Fit } from './methods/index.js';
 export { medcouple } from './medcouple.js';
+export { describeGroupRule, SYMMETRIC_MC } from './groupRule.js';
 export { tukeyHinges } from './tukeyHinges.js';
 export { maxAttainableZ } from './methods/classic.js';
 export { median } from './median.js';

@@ -33,6 +33,7 @@ export const SCORING_FIELDS: Readonly<Record<MethodId, number>> = {
   classic: BIT.mean | BIT.sd,
   iqr: BIT.median | BIT.q1 | BIT.q3,
   adjusted: BIT.median | BIT.medcouple,
+  skew: BIT.median | BIT.medcouple,
 };
 
 /**

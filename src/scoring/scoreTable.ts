@@ -238,7 +238,7 @@ function scoreColumn(
   // 4. Score every row in row order.
   const flagged = new Uint8Array(rowCount);
   const population = new Uint8Array(rowCount);
-  const reach = method.id === 'iqr' || method.id === 'adjusted' ? new Float64Array(rowCount).fill(NaN) : undefined;
+  const reach = method.kind === 'fence' ? new Float64Array(rowCount).fill(NaN) : undefined;
   const flaggedPerGroup = new Int32Array(nGroups);
   const scoredRows = scoreRows(
     flat, groupOf, opts.cutoff, opts.direction,

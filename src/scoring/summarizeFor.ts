@@ -14,7 +14,7 @@ import type { MethodId } from './types.js';
  *   free with the deviation pass the MAD needs; the method uses it only when MAD = 0);
  * - classic: mean and sample SD (corrected two-pass, Chan, Golub & LeVeque 1983), no copy;
  * - iqr: median, Q1 and Q3 (type 7, Hyndman & Fan 1996);
- * - adjusted: median, Tukey's hinges and the medcouple, from one sort of the group (O(n log n)).
+ * - adjusted and skew: median, Tukey's hinges and the medcouple, from one sort of the group (O(n log n)).
  *
  * Reads `src[from .. from+n-1]` (finite numbers) without changing it; `scratch` (length >= n) is
  * overwritten. `scratch` may be `src` itself when `from` = 0 and the caller does not need `src`
@@ -67,7 +67,7 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
   } else {
     for (let i = 0; i < n; i++) scratch[i] = src[from + i] / unit;
   }
-  if (method === 'adjusted') {
+  if (method === 'adjusted' || method === 'skew') {
     // One sort gives the median, Tukey's hinges and the medcouple.
     const sorted = scratch.subarray(0, n).sort();
     const { low, high } = tukeyHingesSorted(sorted, n);

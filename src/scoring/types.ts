@@ -69,7 +69,7 @@ export interface DecimalReading {
 }
 
 /** Every scoring method; hosts (CLI options, saved settings, the pane) take the list from here. */
-export const METHOD_IDS = ['robust', 'classic', 'iqr', 'adjusted'] as const;
+export const METHOD_IDS = ['robust', 'classic', 'iqr', 'adjusted', 'skew'] as const;
 export type MethodId = (typeof METHOD_IDS)[number];
 export const DIRECTIONS = ['high', 'low', 'both'] as const;
 export type Direction = (typeof DIRECTIONS)[number];
@@ -93,7 +93,7 @@ export interface ScoreOptions {
 }
 
 export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId } = {
-  method: 'robust',
+  method: 'skew',
   direction: 'both',
   logScale: false,
   minGroupSize: 8,

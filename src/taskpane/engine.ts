@@ -198,7 +198,7 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
       spreadName = 'SD';
       centre = fin(mean(values));
       spread = n > 1 ? fin(sampleStandardDeviation(values)) : null;
-    } else if (col.method === 'iqr' || col.method === 'adjusted') {
+    } else if (col.method !== 'robust') {
       spreadName = 'IQR';
       centre = fin(median(values));
       spread = fin(quantile(values, 0.75) - quantile(values, 0.25));

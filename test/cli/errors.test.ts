@@ -71,7 +71,7 @@ describe('bad input: exit code 2 and one clear line', () => {
   });
 
   it('bad option values', async () => {
-    await bad(/--method must be one of robust, classic, iqr, adjusted; got "median"/, 'score', input, '--value', 'Amount', '--method', 'median');
+    await bad(/--method must be one of robust, classic, iqr, adjusted, skew; got "median"/, 'score', input, '--value', 'Amount', '--method', 'median');
     await bad(/--cutoff must be a number above 0; got "-1"/, 'score', input, '--value', 'Amount', '--cutoff', '-1');
     await bad(/--cutoff must be a number above 0; got "abc"/, 'score', input, '--value', 'Amount', '--cutoff', 'abc');
     await bad(/--direction must be one of high, low, both; got "up"/, 'score', input, '--value', 'Amount', '--direction', 'up');

@@ -9,29 +9,32 @@ import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoClaims } from '../../src/demo/claims.js';
 import { NOTE_HEADER, REVIEW_STATUSES, STATUS_HEADER } from '../../src/report/style.js';
-import { scoreTable } from '../../src/scoring/index.js';
-import type { RawCell } from '../../src/scoring/types.js';
+import { scoreColumns } from '../../src/pipeline/run.js';
+import { defaultCutoff } from '../../src/scoring/index.js';
+import { DEFAULT_OPTIONS, type RawCell } from '../../src/scoring/types.js';
 import { buildWeb, openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 const label = (id: string) => REVIEW_STATUSES.find((s) => s.id === id)!.label;
 
-/** Claim IDs of the demo's flagged claims, largest |robust z| first (the pane's default choices), from the batch engine. */
+/** Claim IDs of the demo's flagged claims with the pane's default choices, largest |score| first, from the pipeline. */
 function flaggedByScore(): string[] {
   const demo = demoClaims();
   const column = (h: string): { name: string; cells: RawCell[] } => {
     const i = demo.headers.indexOf(h);
     return { name: h, cells: demo.rows.map((r) => r[i]) };
   };
-  const result = scoreTable(
-    { valueColumns: [column('Amount')], groupColumns: [column('Cost centre'), column('Category')] },
-    { method: 'robust', cutoff: 3.5, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' },
-  );
+  const result = scoreColumns([column('Amount')], [column('Cost centre'), column('Category')], {
+    valueColumns: ['Amount'],
+    groupColumns: ['Cost centre', 'Category'],
+    method: DEFAULT_OPTIONS.method,
+  });
   const col = result.columns[0];
   const id = demo.headers.indexOf('Claim ID');
   const rows: number[] = [];
   for (let r = 0; r < result.rowCount; r++) if (col.flagged[r] === 1) rows.push(r);
-  // Infinite scores (a zero-spread group) sort first, as the pane's Math.abs does.
-  rows.sort((a, b) => Math.abs(col.scores[b]) - Math.abs(col.scores[a]) || a - b);
+  // As the sheet holds them: rounded to 2 decimals, and no score (blank cell) for an infinite one, which sorts last.
+  const key = (r: number) => (Number.isFinite(col.scores[r]) ? Math.abs(Math.round(col.scores[r] * 100) / 100) : -1);
+  rows.sort((a, b) => key(b) - key(a) || a - b);
   return rows.map((r) => String(demo.rows[r][id]));
 }
 
@@ -232,7 +235,7 @@ describe('audit trail', () => {
     expect(run).toBeDefined();
     expect(Number(run.Cutoff)).toBeCloseTo(cut, 6);
     const change = lines.find((l) => l.Event === 'Cutoff changed')!;
-    expect(change).toMatchObject({ 'Reason given': 'two days for this quarter', 'From a review budget': 'yes: at most 10 claims', 'Previous cutoff': '3.5' });
+    expect(change).toMatchObject({ 'Reason given': 'two days for this quarter', 'From a review budget': 'yes: at most 10 claims', 'Previous cutoff': String(defaultCutoff(DEFAULT_OPTIONS.method)) });
     const mark = lines.find((l) => l.Event === 'Status set')!;
     expect(mark).toMatchObject({ Who: 'T.R.', Claim: first, Status: `${label('open')} → ${label('asked')}`, Note: 'emailed the approver' });
     expect(Date.parse(mark['When (UTC)'])).toBeGreaterThan(Date.parse('2020-01-01'));

@@ -74,8 +74,10 @@ describe('preview page with the real task pane', () => {
     const { page, errors } = await openPage(session, 'preview.html');
     await ready(page);
 
-    // Live preview: counts match the batch engine at the default and at a changed cutoff, nothing written.
+    // Live preview: counts match the batch engine (robust z, chosen in the pane: the default is the
+    // skew-aware method) at its default and at a changed cutoff, nothing written.
     const before = await page.evaluate(() => window.tailmarkPreview!.snapshot());
+    await page.getByTestId('method').selectOption('robust');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3.5)));
     await page.getByTestId('cutoff').fill('3');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent()).toBe(String(expectedFlags(3)));

@@ -29,11 +29,13 @@ function codeOf(f: () => unknown): string {
 
 describe('validateSettings', () => {
   it('fills defaults; the cutoff follows the method', () => {
-    expect(validateSettings(cols).cutoff).toBe(3.5);
+    // Default method: skew-aware fences, k = 3 (Tukey 1977 "far out"; see src/scoring/methods/adjusted.ts).
+    expect(validateSettings(cols).cutoff).toBe(3);
+    expect(validateSettings({ ...cols, method: 'robust' }).cutoff).toBe(3.5);
     expect(validateSettings({ ...cols, method: 'classic' }).cutoff).toBe(3);
     expect(validateSettings({ ...cols, method: 'iqr' }).cutoff).toBe(1.5);
     expect(validateSettings(cols)).toEqual({
-      valueColumns: ['Amount'], groupColumns: ['Team'], idColumn: null, method: 'robust', cutoff: 3.5,
+      valueColumns: ['Amount'], groupColumns: ['Team'], idColumn: null, method: 'skew', cutoff: 3,
       direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', decimal: 'auto', reviewer: null, detailColumns: null,
     });
     expect(Object.keys(defaultSettings()).sort()).toEqual([...SETTING_KEYS].sort());
@@ -54,7 +56,7 @@ describe('validateSettings', () => {
   it('names the setting as the host asks, and shows the value as typed', () => {
     const msg = codeOf(() => validateSettings({ ...cols, minGroupSize: 2.5 }, { nameOf: (k) => `--${k}`, shown: () => '"2.5"' }));
     expect(msg).toBe('bad-settings: --minGroupSize must be a whole number of at least 1; got "2.5"');
-    expect(codeOf(() => validateSettings({ ...cols, method: 'median' }))).toBe('bad-settings: The method must be one of robust, classic, iqr, adjusted; got "median"');
+    expect(codeOf(() => validateSettings({ ...cols, method: 'median' }))).toBe('bad-settings: The method must be one of robust, classic, iqr, adjusted, skew; got "median"');
     expect(codeOf(() => validateSettings({ valueColumns: ['A'], groupColumns: ['A'] }))).toMatch(/"A" is given both as an amount column and as a group column/);
     expect(codeOf(() => validateSettings({ valueColumns: [] }))).toMatch(/must name at least one column/);
   });
@@ -86,7 +88,7 @@ describe('runPipeline', () => {
   };
 
   it('resolves headers ignoring case and spaces, scores and plans', () => {
-    const run = runPipeline(table, { valueColumns: [' amount '], groupColumns: ['team'], minGroupSize: 2 }, { when: new Date(0) });
+    const run = runPipeline(table, { valueColumns: [' amount '], groupColumns: ['team'], minGroupSize: 2, method: 'robust' }, { when: new Date(0) });
     expect(run.columns).toEqual({ value: [2], group: [0], id: null });
     // Median 12, MAD 1 -> robust z of 500 = (500 - 12) / 1.4826 = 329.15 (worked by hand from the definition).
     expect(run.result.columns[0].scores[4]).toBeCloseTo(488 / 1.4826, 6);

@@ -78,3 +78,22 @@ describe('adjusted method against R robustbase adjboxStats (coef 1.5, a = -4, b 
     expect(g.medcouple).toBeCloseTo(s.mc, 12);
   });
 });
+
+describe('skew-aware fences (default method) from R robustbase figures (fivenum hinges, mc)', () => {
+  test.each(sets.filter(([name]) => name !== 'size3ties'))('%s: long side as the adjusted boxplot, short side Tukey, k = 3', (_name, s) => {
+    const res = scoreTable(
+      { valueColumns: [{ name: 'Amount', cells: s.x }], groupColumns: [] },
+      { method: 'skew', direction: 'both', logScale: false, minGroupSize: 1, smallGroups: 'pool' },
+    );
+    const g = res.columns[0].groups[0];
+    const [q1, q3] = [s.fivenum[1], s.fivenum[3]];
+    const iqr = q3 - q1;
+    const k = 3;
+    // Hubert & Vandervieren (2008) on the long side, Tukey (1977) on the short side.
+    const lower = s.mc >= 0 ? q1 - k * iqr : q1 - k * Math.exp(-3 * s.mc) * iqr;
+    const upper = s.mc >= 0 ? q3 + k * Math.exp(3 * s.mc) * iqr : q3 + k * iqr;
+    expect(res.columns[0].cutoff).toBe(3);
+    expect(g.lower).toBeCloseTo(lower, 9);
+    expect(g.upper).toBeCloseTo(upper, 9);
+  });
+});

@@ -54,9 +54,9 @@ describe('initial settings', () => {
     expect(s.valueColumns).toEqual(['Amount']);
     expect(s.groupColumns).toEqual(['Cost centre', 'Category']);
     expect(s.idColumn).toBe('Claim ID');
-    // Defaults documented in the common brief / src/scoring/types.ts: robust z, cutoff 3.5 (Iglewicz & Hoaglin 1993).
-    expect(s.method).toBe('robust');
-    expect(s.cutoff).toBe(3.5);
+    // Defaults documented in src/scoring/types.ts: skew-aware fences, k = 3 (Tukey 1977 "far out").
+    expect(s.method).toBe('skew');
+    expect(s.cutoff).toBe(3);
   });
 
   it('falls back to the coarsest keys when no header names a peer dimension', () => {
@@ -101,7 +101,7 @@ describe('reducer', () => {
     const other: DetectedTable = { ...TABLE, sheetName: 'Other', address: 'Other!A1:B3', columns: [col(0, 'X', 'key'), col(1, 'Y', 'amount', 3, 1)] };
     st = reducer(st, { type: 'detected', table: other, saved: null });
     expect(st.settings?.valueColumns).toEqual(['Y']);
-    expect(st.settings?.cutoff).toBe(3.5);
+    expect(st.settings?.cutoff).toBe(3);
   });
 
   it('turns a cancelled run into a notice and other errors into a message', () => {

@@ -1,6 +1,6 @@
 /** Shared fixtures for the workbook-layer tests: an invented claims sheet in the sandbox. */
 import { SandboxWorkbook, sandboxFromRows } from '../../src/sandbox/index.js';
-import { createWorkbookLayer, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
+import { createWorkbookLayer, type ExcelRunner, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
 import type { RunSettings } from '../../src/workbook/api.js';
 import { mulberry32 } from '../../src/demo/random.js';
 import { officeClientFor, type OfficeClientHost } from '../../src/cli/office-client.js';
@@ -76,3 +76,16 @@ export const SETTINGS: RunSettings = {
   reviewer: null,
   detailColumns: null,
 };
+
+/** A runner whose k-th sync (counted from now, across everything run through the sandbox) fails part-way. */
+export function failingAt(sb: SandboxWorkbook, k: number): ExcelRunner {
+  const run = hostRun(sb);
+  let armed = false;
+  return (options, batch) => {
+    if (!armed) {
+      armed = true;
+      sb.failSyncAt(k);
+    }
+    return run(options, batch);
+  };
+}

@@ -87,6 +87,22 @@ describe('tailmark sandbox', () => {
     expect(j.maxRequestBytes).toBeLessThan(5 * 1024 * 1024);
   });
 
+  it('--fail-sync <k> injects a failure into the k-th sync of the run and reports whether the workbook is as before', async () => {
+    type Report = { faultInjected: boolean; runFailed: string | null; workbookUnchangedByFailedRun: boolean; changedByFailedRun?: string[] };
+    const r = await capture([input, '--group', 'Cost centre', '--fail-sync', '3', '--json']);
+    expect(r.err).toBe('');
+    const j = JSON.parse(r.out) as Report;
+    expect(j.faultInjected).toBe(true);
+    expect(j.runFailed).toMatch(/Injected failure/);
+    expect(j.workbookUnchangedByFailedRun).toBe(true);
+    expect(j.changedByFailedRun).toBeUndefined();
+    const late = JSON.parse((await capture([input, '--fail-sync', '99', '--json'])).out) as Report;
+    expect(late.faultInjected).toBe(false);
+    expect(late.runFailed).toBeNull();
+    expect(late.workbookUnchangedByFailedRun).toBe(false);
+    expect((await capture([input, '--fail-sync', '0'])).code).toBe(2);
+  });
+
   it('exits 2 with one line on bad input', async () => {
     const missing = await capture([path.join(dir, 'nope.xlsx')]);
     expect(missing.code).toBe(2);

@@ -20,6 +20,7 @@ export function maxAttainableZ(n: number): number {
  */
 export const classicMethod: ScoringMethod = {
   id: 'classic',
+  kind: 'z',
   defaultCutoff: 3,
   scoreName: 'classic z',
   source: 'Standard score (x - mean) / SD; maximum attainable |z| from Shiffler (1988)',

@@ -1,5 +1,5 @@
 import type { MethodId } from '../types.js';
-import { adjustedMethod } from './adjusted.js';
+import { adjustedMethod, skewMethod } from './adjusted.js';
 import { classicMethod } from './classic.js';
 import { iqrMethod } from './iqr.js';
 import type { ScoringMethod } from './method.js';
@@ -10,14 +10,16 @@ export const METHODS: Readonly<Record<MethodId, ScoringMethod>> = {
   classic: classicMethod,
   iqr: iqrMethod,
   adjusted: adjustedMethod,
+  skew: skewMethod,
 };
 
 /** The method object for an id; throws a clear message for an unknown id. */
 export function getMethod(id: MethodId): ScoringMethod {
   const m = (METHODS as Record<string, ScoringMethod | undefined>)[id];
-  if (m === undefined) throw new Error(`Unknown scoring method "${String(id)}": use robust, classic, iqr or adjusted.`);
+  if (m === undefined) throw new Error(`Unknown scoring method "${String(id)}": use robust, classic, iqr, adjusted or skew.`);
   return m;
 }
 
 export type { Fit, ScoringMethod } from './method.js';
-export { robustMethod, classicMethod, iqrMethod, adjustedMethod };
+export { robustMethod, classicMethod, iqrMethod, adjustedMethod, skewMethod };
+export { fenceFactors } from './adjusted.js';

@@ -18,6 +18,7 @@ import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method
  */
 export const iqrMethod: ScoringMethod = {
   id: 'iqr',
+  kind: 'fence',
   defaultCutoff: 1.5,
   scoreName: 'IQRs beyond the fence',
   source: 'Tukey (1977) fences with Hyndman & Fan (1996) type-7 quartiles',

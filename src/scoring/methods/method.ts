@@ -31,6 +31,8 @@ export interface Fit {
 
 export interface ScoringMethod {
   readonly id: MethodId;
+  /** 'z' (robust, classic) or 'fence' (IQR, adjusted, skew): how scores and reach are read. */
+  readonly kind: 'z' | 'fence';
   readonly defaultCutoff: number;
   /** Plain-words name of the score, e.g. "robust z". */
   readonly scoreName: string;

@@ -18,6 +18,7 @@ import { NO_FIT, type ScoringMethod, zFit } from './method.js';
  */
 export const robustMethod: ScoringMethod = {
   id: 'robust',
+  kind: 'z',
   defaultCutoff: 3.5,
   scoreName: 'robust z',
   source: 'Iglewicz & Hoaglin (1993); NIST/SEMATECH e-Handbook of Statistical Methods, 1.3.5.17',

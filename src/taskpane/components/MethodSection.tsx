@@ -12,7 +12,8 @@ export const METHOD_WORDS: Record<MethodId, { label: string; unit: string; range
   robust: { label: 'Robust z (median and MAD)', unit: 'robust z', range: [1, 10] },
   classic: { label: 'Classic z (mean and SD)', unit: 'z', range: [1, 10] },
   iqr: { label: 'IQR fences (quartiles)', unit: 'k × IQR', range: [0.5, 6] },
-  adjusted: { label: 'Skew-adjusted fences (medcouple)', unit: 'k × adjusted IQR', range: [0.5, 6] },
+  adjusted: { label: 'Adjusted boxplot (medcouple)', unit: 'k × adjusted IQR', range: [0.5, 6] },
+  skew: { label: 'Skew-aware fences (medcouple)', unit: 'k × IQR, long side adjusted', range: [0.5, 6] },
 };
 
 const DIRECTION_WORDS: Record<Direction, string> = {
