@@ -21,6 +21,7 @@ import { parseFlags, settingOptionSpec, settingsFromOptions, settingWords } from
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
 import { officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
+import { columnFromLetters, columnLetters } from '../report/columns.js';
 
 interface SandboxArgs {
   readonly input: string;
@@ -114,27 +115,14 @@ export function settingsFor(table: DetectedTable, a: SandboxArgs): RunSettings {
   return validateSettings({ ...given, valueColumns: values, groupColumns: groups, idColumn: id }, a.words);
 }
 
-function letterIndex(letters: string): number {
-  let n = 0;
-  for (const ch of letters) n = n * 26 + (ch.charCodeAt(0) - 64);
-  return n - 1;
-}
+const letterIndex = columnFromLetters;
 
 function splitAddress(a: string): { col: number; row: number; letters: string } {
   const m = /^([A-Z]+)([0-9]+)$/.exec(a)!;
   return { col: letterIndex(m[1]), row: Number(m[2]), letters: m[1] };
 }
 
-function lettersOf(c: number): string {
-  let n = c + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+const lettersOf = columnLetters;
 
 /**
  * User cells changed by the run: every cell of the data sheet outside our result columns is

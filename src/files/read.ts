@@ -39,17 +39,9 @@ export interface StreamedInfo {
   readonly sheetNames: readonly string[];
 }
 
-/** 0-based column index -> letters ("A", "Z", "AA"). */
-export function columnLetter(index: number): string {
-  let n = index + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+/** 0-based column index -> letters (src/report/columns.ts). */
+import { columnLetters } from '../report/columns.js';
+export const columnLetter = columnLetters;
 
 export function fileKind(path: string): 'xlsx' | 'csv' | null {
   const ext = extname(path).toLowerCase();

@@ -15,6 +15,7 @@
 import { createRequire } from 'node:module';
 import type ExcelJS from 'exceljs';
 import type { RawCell } from '../scoring/types.js';
+import { columnLetters } from '../report/columns.js';
 
 const require = createRequire(import.meta.url);
 
@@ -147,16 +148,8 @@ const NOT_CARRIED: Record<string, string> = {
   sharedRichText: 'rich-text cell(s): RGB colours and strikethrough of parts of their text (the text, bold, italic, underline, size, font and theme colours are kept)',
 };
 
-const colLetters = (col: number): string => {
-  let n = col;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-};
+/** 1-based column -> letters. */
+const colLetters = (col: number): string => columnLetters(col - 1);
 
 function decodeRef(ref: string): { col: number; row: number } {
   let i = 0;

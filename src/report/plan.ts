@@ -3,12 +3,13 @@
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
 import { defaultCutoff, describeCutoff, describeGroupRule, explainRowShort } from '../scoring/index.js';
+import { describeFallback } from '../scoring/fallbacks.js';
+import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
   type ColumnScores,
-  type Fallback,
   type GroupStats,
   type MethodId,
   type Population,
@@ -100,16 +101,6 @@ const METHOD_NAMES: Record<MethodId, string> = {
   skew: 'skew-aware fences (medcouple)',
 };
 
-const FALLBACK_WORDS: Record<Fallback, string> = {
-  'mad-zero-used-meanad': 'MAD was 0 (most amounts identical); used 1.2533 x mean absolute deviation instead',
-  'no-spread': 'all amounts equal; nothing can be flagged',
-  'sd-zero': 'standard deviation was 0; nothing can be flagged',
-  'iqr-zero': 'IQR was 0; fences sit at Q1 and Q3',
-  'small-pooled': 'group below the minimum size; compared with the whole column',
-  'small-skipped': 'group below the minimum size; left unscored',
-  'cutoff-unreachable': 'group too small for classic z to reach the cutoff',
-};
-
 const POPULATION_WORDS: Record<Population, string> = {
   none: 'not scored',
   group: 'its own group',
@@ -127,21 +118,10 @@ function round2(x: number): number | null {
   return Number.isFinite(x) ? Math.round(x * 100) / 100 : null;
 }
 
-/** 0-based column index -> letters. */
-function letters(index: number): string {
-  let n = index + 1;
-  let s = '';
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
 
 function tableRange(t: SourceTable): string {
   const last = t.firstColumn + Math.max(t.headers.length, 1) - 1;
-  return `${letters(t.firstColumn)}${t.headerRow}:${letters(last)}${t.headerRow + t.rowCount}`;
+  return `${columnLetters(t.firstColumn)}${t.headerRow}:${columnLetters(last)}${t.headerRow + t.rowCount}`;
 }
 
 function directionWords(d: ScoreResult['options']['direction']): string {
@@ -172,7 +152,7 @@ function groupRow(g: GroupStats, method: MethodId): PlanCell[] {
     tidy(g.lower),
     tidy(g.upper),
     g.flagged,
-    g.fallbacks.length ? g.fallbacks.map((f) => FALLBACK_WORDS[f]).join('; ') : '',
+    g.fallbacks.length ? g.fallbacks.map((f) => describeFallback(f)).join(' ') : '',
     POPULATION_WORDS[g.population],
     g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
     describeGroupRule(method, g.medcouple),

@@ -17,6 +17,7 @@
  * - errors propagate (#VALUE!, #DIV/0!, #REF!).
  * Cost: O(length of formula) to parse; evaluation O(number of nodes).
  */
+import { columnIndex, columnLetters } from './address.js';
 
 export class FormulaUnsupportedError extends Error {
   constructor(formula: string, what: string) {
@@ -53,21 +54,8 @@ type Token =
   | { t: 'colon' }
   | { t: 'bang' };
 
-function colIndex(letters: string): number {
-  let n = 0;
-  for (const ch of letters.toUpperCase()) n = n * 26 + (ch.charCodeAt(0) - 64);
-  return n - 1;
-}
-function colLetters(c: number): string {
-  let s = '';
-  let n = c + 1;
-  while (n > 0) {
-    const m = (n - 1) % 26;
-    s = String.fromCharCode(65 + m) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+const colIndex = columnIndex;
+const colLetters = columnLetters;
 
 function tokenize(formula: string): Token[] {
   const src = formula.startsWith('=') ? formula.slice(1) : formula;

@@ -1,18 +1,9 @@
 import { getMethod } from './methods/index.js';
 import { formatCutoff, formatNumber, formatScore } from './format.js';
-import { EXCLUSION_LABELS, EXCLUSION_REASONS, type ColumnScores, type Direction, type Fallback, type GroupStats, type ScoreResult } from './types.js';
+import { FALLBACK_WORDS } from './fallbacks.js';
+import { EXCLUSION_LABELS, EXCLUSION_REASONS, type ColumnScores, type Direction, type GroupStats, type ScoreResult } from './types.js';
 
 const directionWords = (d: Direction): string => (d === 'both' ? 'both directions' : d === 'high' ? 'high side only' : 'low side only');
-
-const FALLBACK_WORDS: Record<Fallback, string> = {
-  'mad-zero-used-meanad': 'More than half the values share the median (MAD = 0), so the scale is 1.2533 x the mean absolute deviation around the median instead.',
-  'no-spread': 'Every value equals the median (no spread), so nothing can be flagged.',
-  'sd-zero': 'The standard deviation is 0 (all values equal), so nothing can be flagged.',
-  'iqr-zero': "The group's IQR is 0, so the fences use the whole column's IQR as the unit.",
-  'small-pooled': '',
-  'small-skipped': '',
-  'cutoff-unreachable': 'In a group of this size classic z can never pass the cutoff ((n - 1)/sqrt(n) <= cutoff, Shiffler 1988).',
-};
 
 const q = (label: string): string => `"${label}"`;
 
@@ -56,7 +47,8 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   const z = col.scores[row];
   const flagged = col.flagged[row] === 1;
   const log = col.logScale;
-  const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled').map((f) => FALLBACK_WORDS[f]).filter((w) => w !== '');
+  // The pooled note above already says why a small group was compared with the whole column.
+  const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled' && f !== 'small-skipped').map((f) => FALLBACK_WORDS[f]);
   const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
   const fenceMethod = getMethod(col.method).kind === 'fence';
   const cut = `${fenceMethod ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;

@@ -114,7 +114,7 @@ export type Fallback =
   | 'no-spread'
   /** SD was 0 (classic): nothing flagged. */
   | 'sd-zero'
-  /** IQR was 0: fences are the group's Q1/Q3 -/+ k x the whole column's IQR (score in units of the column's IQR) if that is > 0, else not scored. */
+  /** IQR was 0; what that means is worded once, in FALLBACK_WORDS (src/scoring/fallbacks.ts). */
   | 'iqr-zero'
   /** Group smaller than the minimum size: compared with the whole column. */
   | 'small-pooled'

@@ -21,6 +21,18 @@ export function scorePreview(data: PreviewData, s: RunSettings, override?: Parti
   return scoreColumns(data.valueColumns, data.groupColumns, { ...s, ...override });
 }
 
+/**
+ * The preview's scoring, or the reason it failed: the pane shows the message instead of an empty
+ * preview (issue 7: failures used to vanish into "nothing to preview").
+ */
+export function previewOf(data: PreviewData, s: RunSettings): { readonly result: ScoreResult | null; readonly error: string | null } {
+  try {
+    return { result: scorePreview(data, s), error: null };
+  } catch (e) {
+    return { result: null, error: e instanceof Error ? e.message : String(e) };
+  }
+}
+
 export interface GroupCount {
   readonly label: string;
   readonly n: number;

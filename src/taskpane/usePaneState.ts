@@ -9,6 +9,7 @@ import {
   chartFor,
   claimContext,
   followColumn,
+  previewOf,
   scorePreview,
   summarisePreview,
   type ChartData,
@@ -68,6 +69,8 @@ export interface PaneActions {
 export interface PaneModel {
   readonly state: PaneState;
   readonly preview: PreviewSummary | null;
+  /** Why the preview could not be worked out (shown in place of it), or null. */
+  readonly previewError: string | null;
   readonly chart: ChartData | null;
   /** Groups offered in the chart picker, most flags first. */
   readonly chartGroups: readonly string[];
@@ -192,14 +195,12 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   const settings = useDeferredValue(state.settings);
   const data = state.preview && state.preview.key === key ? state.preview.data : null;
 
-  const scored = useMemo(() => {
+  const attempt = useMemo(() => {
     if (!data || !settings || settings.valueColumns.length === 0) return null;
-    try {
-      return scorePreview(data, settings);
-    } catch {
-      return null;
-    }
+    return previewOf(data, settings);
   }, [data, settings]);
+  const scored = attempt?.result ?? null;
+  const previewError = attempt?.error ?? null;
 
   const preview = useMemo(() => (scored && settings ? summarisePreview(scored, settings) : null), [scored, settings]);
 
@@ -475,5 +476,5 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer, detect, runWith, scored, selectRow, show, save],
   );
 
-  return { state, preview, chart, chartGroups, view, context, actions };
+  return { state, preview, previewError, chart, chartGroups, view, context, actions };
 }

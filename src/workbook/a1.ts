@@ -6,25 +6,9 @@
 export const MAX_ROWS = 1_048_576;
 export const MAX_COLUMNS = 16_384;
 
-/** 0-based column index -> letters ("A", "XFD"). */
-export function columnLetters(index: number): string {
-  let s = '';
-  let n = index + 1;
-  while (n > 0) {
-    const m = (n - 1) % 26;
-    s = String.fromCharCode(65 + m) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
+import { columnLetters, columnFromLetters } from '../report/columns.js';
 
-/** Letters -> 0-based column index, or -1. */
-export function columnFromLetters(letters: string): number {
-  if (!/^[A-Za-z]{1,3}$/.test(letters)) return -1;
-  let n = 0;
-  for (const ch of letters.toUpperCase()) n = n * 26 + (ch.charCodeAt(0) - 64);
-  return n - 1;
-}
+export { columnLetters, columnFromLetters };
 
 /** A sheet name as it appears in an address: quoted when it is not a plain word. */
 export function quoteSheet(name: string): string {

@@ -14,6 +14,10 @@
  *    leaves the workbook as it was;
  *  - if a write sync fails part-way (only possible when the writes need several syncs), the
  *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
+ *
+ * Where the parts live: placement of our columns in place.ts, the writes (values, dropdown, rules,
+ * notes, log) in write-results.ts, undoing a failed write in undo.ts; the run itself (resolve ->
+ * read -> pipeline -> check -> marks -> write) here. Review marks merge in src/report/marks.ts.
  */
 import { claimIds, runPipeline, validateSettings } from '../pipeline/index.js';
 import {
@@ -24,39 +28,28 @@ import {
 } from '../scoring/types.js';
 import {
   isTailmarkFormula,
-  runLogLines,
   mergeMarks,
   readMarkRecords,
   NOTES_SHEET_NAME,
-  PALETTE,
-  REVIEW_STATUSES,
-  ruleFormula,
   type Plan,
   type PlanCell,
-  type PlanColumn,
 } from '../report/index.js';
 import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
-import { MAX_COLUMNS, columnLetters, rectAddress } from './a1.js';
+import { columnLetters, rectAddress } from './a1.js';
 import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
-  HEADER_SWATCH,
   LOG_SHEET_NAME,
-  TITLE_SWATCH,
-  formatFor,
   isLogMarker,
   isNotesMarker,
-  notesGrid,
-  toCellValue,
 } from './notes.js';
-import { queueLogLines } from './log.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
-import { SETTINGS_KEY, STATE_KEY, isOurHeader, type BlockColumn, type LayerState } from './state.js';
+import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
+import { place } from './place.js';
+import { writeAll, writeNotes } from './write-results.js';
+import { compensate } from './undo.js';
 import type { Syncer } from './sync.js';
-
-/** Points per character of column width (Excel: 8.43 characters = 48 points). */
-const POINTS_PER_CHAR = 5.7;
 
 export interface RunDeps {
   readonly now: () => Date;
@@ -115,141 +108,6 @@ export async function readSpan(sync: Syncer, res: Resolved, deps: Pick<RunDeps, 
   return { columns, fingerprint: fp.value, bytesPerRow: out.bytesPerRow };
 }
 
-/** Where each plan column goes, and what happens to the old ones. */
-interface Placement {
-  /** Sheet column per plan column. */
-  readonly columns: number[];
-  readonly block: BlockColumn[];
-  /** Range path: first column of the block. */
-  readonly blockColumn: number;
-  /** Range path: insert this many entire columns at `insertAt` (0 = none). */
-  readonly insertCount: number;
-  readonly insertAt: number;
-  /** Range path: old extra columns to take away (right to left). */
-  readonly dropColumns: { column: number; info: BlockColumn }[];
-  /** Table path: names of our table columns to delete / add. */
-  readonly dropNames: string[];
-  readonly addNames: string[];
-  /** Plan columns that are new this run (for widths). */
-  readonly fresh: boolean[];
-  /** Fresh columns written into empty sheet columns whose widths we must remember (plan index). */
-  readonly pristine: number[];
-  /** Old status / note columns (sheet column) to read marks from. */
-  readonly oldStatus: number | null;
-  readonly oldNote: number | null;
-  /** Whether anything of ours existed before this run. */
-  readonly rerun: boolean;
-  /** Last sheet column (exclusive) covered by the highlight rules. */
-  readonly endColumn: number;
-  readonly startColumn: number;
-}
-
-function columnLimit(k: number): TailmarkError {
-  return new TailmarkError(
-    'column-limit',
-    `There is no room for Tailmark's ${k} result columns right of the data: they would pass the sheet's last column (XFD). Move the table further left or delete unused columns on the right, then run again. Nothing was changed.`,
-  );
-}
-
-function place(res: Resolved, plan: Plan): Placement {
-  const headers = plan.columns.map((c) => c.header);
-  const k = headers.length;
-  const statusHeader = plan.columns.find((c) => c.kind === 'status')!.header;
-  const noteHeader = plan.columns.find((c) => c.kind === 'note')!.header;
-  if (res.table && res.tableColumns) {
-    const names = [...res.tableColumns];
-    const oursNow = names.filter(isOurHeader);
-    const dropNames = oursNow.filter((n) => !headers.includes(n));
-    const addNames = headers.filter((h) => !names.includes(h));
-    const tableEnd = res.tableColumn + names.length;
-    if (addNames.length > 0 && (tableEnd + addNames.length > MAX_COLUMNS || Math.max(res.usedEnd, tableEnd) + addNames.length > MAX_COLUMNS)) {
-      throw columnLimit(k);
-    }
-    const finalNames = [...names.filter((n) => !dropNames.includes(n)), ...addNames];
-    const columns = headers.map((h) => res.tableColumn + finalNames.indexOf(h));
-    return {
-      columns,
-      block: headers.map((header) => ({ header, inserted: false, width: null })),
-      blockColumn: Math.min(...columns),
-      insertCount: 0,
-      insertAt: 0,
-      dropColumns: [],
-      dropNames,
-      addNames,
-      fresh: headers.map((h) => addNames.includes(h)),
-      pristine: [],
-      oldStatus: res.ours.get(statusHeader) ?? null,
-      oldNote: res.ours.get(noteHeader) ?? null,
-      rerun: oursNow.length > 0,
-      startColumn: res.tableColumn,
-      endColumn: res.tableColumn + finalNames.length,
-    };
-  }
-  const spanEnd = res.spanStart + res.spanCols;
-  const old: string[] = [];
-  for (let i = res.spanCols; i < res.headerCells.length; i++) {
-    const h = res.headerCells[i];
-    if (!isOurHeader(h)) break;
-    old.push(h);
-  }
-  const w = old.length;
-  const st = res.state && res.state.sheet === res.sheetName && res.state.blockColumn === spanEnd ? res.state : null;
-  const oldInfo = old.map((header): BlockColumn => st?.columns.find((c) => c.header === header) ?? { header, inserted: false, width: null });
-  const block: BlockColumn[] = [];
-  const fresh: boolean[] = [];
-  const pristine: number[] = [];
-  let insertCount = 0;
-  const insertAt = spanEnd + w;
-  if (k > w) {
-    const need = k - w;
-    const empty = res.usedEnd <= spanEnd + w;
-    if (empty) {
-      if (spanEnd + k > MAX_COLUMNS) throw columnLimit(k);
-    } else {
-      if (res.usedEnd + need > MAX_COLUMNS || spanEnd + k > MAX_COLUMNS) throw columnLimit(k);
-      insertCount = need;
-    }
-    for (let i = 0; i < k; i++) {
-      if (i < w) {
-        block.push({ ...oldInfo[i], header: headers[i] });
-        fresh.push(false);
-      } else {
-        block.push({ header: headers[i], inserted: !empty, width: null });
-        fresh.push(true);
-        if (empty) pristine.push(i);
-      }
-    }
-  } else {
-    for (let i = 0; i < k; i++) {
-      block.push({ ...oldInfo[i], header: headers[i] });
-      fresh.push(false);
-    }
-  }
-  const dropColumns: { column: number; info: BlockColumn }[] = [];
-  for (let i = w - 1; i >= k; i--) dropColumns.push({ column: spanEnd + i, info: oldInfo[i] });
-  const oldIdx = (h: string) => {
-    const i = old.indexOf(h);
-    return i >= 0 ? spanEnd + i : null;
-  };
-  return {
-    columns: headers.map((_, i) => spanEnd + i),
-    block,
-    blockColumn: spanEnd,
-    insertCount,
-    insertAt,
-    dropColumns,
-    dropNames: [],
-    addNames: [],
-    fresh,
-    pristine,
-    oldStatus: oldIdx(statusHeader),
-    oldNote: oldIdx(noteHeader),
-    rerun: w > 0,
-    startColumn: res.spanStart,
-    endColumn: spanEnd + k,
-  };
-}
-
 function summarise(result: ScoreResult, plan: Plan, syncs: number): RunSummary {
   const groups: GroupSummary[] = [];
   const multi = result.columns.length > 1;
@@ -283,13 +141,6 @@ function summarise(result: ScoreResult, plan: Plan, syncs: number): RunSummary {
 function textOf(v: unknown): string {
   if (v === null || v === undefined) return '';
   return typeof v === 'string' ? v : String(v);
-}
-
-/** Number format for a plan column: its own, or text for anything holding strings. */
-function columnFormat(col: PlanColumn): string {
-  if (col.numberFormat) return col.numberFormat;
-  if (col.kind === 'status' || col.kind === 'note' || col.kind === 'reason' || col.kind === 'flag') return '@';
-  return col.values.some((v) => typeof v === 'string') ? '@' : 'General';
 }
 
 export async function runScoring(sync: Syncer, table: DetectedTable, chosen: RunSettings, deps: RunDeps): Promise<RunOutcome> {
@@ -441,254 +292,4 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     marksKept,
     resultColumns: placement.columns.map((c) => columnLetters(c)),
   };
-}
-
-/** Queue the values of rows [r0, r0+n) of every plan column; returns bytes queued. */
-function chunkArrays(values: readonly (readonly PlanCell[])[], formats: readonly string[], i: number, r0: number, n: number) {
-  const v: (string | number | boolean)[][] = new Array<(string | number | boolean)[]>(n);
-  const f: string[][] = new Array<string[]>(n);
-  const col = values[i];
-  const fmt = formats[i];
-  for (let r = 0; r < n; r++) {
-    v[r] = [toCellValue(col[r0 + r] ?? null)];
-    f[r] = [fmt];
-  }
-  return { v, f, bytes: JSON.stringify(v).length + JSON.stringify(f).length };
-}
-
-async function writeAll(
-  sync: Syncer,
-  res: Resolved,
-  plan: Plan,
-  placement: Placement,
-  values: readonly (readonly PlanCell[])[],
-  ourRules: Excel.ConditionalFormat[],
-  firstDataRow: number,
-  deps: RunDeps,
-): Promise<void> {
-  const sheet = res.sheet;
-  const rows = res.rows;
-  const k = plan.columns.length;
-  deps.onProgress?.({ phase: 'writing', fraction: 0 });
-
-  // Structure first: take away old extra columns, make room for new ones.
-  await sync.reserve(1024);
-  const oldRows = Math.max(rows, res.state?.rowCount ?? 0);
-  for (const d of placement.dropColumns) {
-    if (d.info.inserted) sheet.getRangeByIndexes(0, d.column, 1, 1).getEntireColumn().delete('Left');
-    else {
-      const r = sheet.getRangeByIndexes(res.headerRow, d.column, oldRows + 1, 1);
-      r.dataValidation.clear();
-      r.clear('All');
-      if (d.info.width !== null) r.format.columnWidth = d.info.width;
-    }
-  }
-  if (placement.insertCount > 0) {
-    sheet.getRangeByIndexes(0, placement.insertAt, 1, placement.insertCount).getEntireColumn().insert('Right');
-  }
-  if (res.table) {
-    for (const name of placement.dropNames) res.table.columns.getItem(name).delete();
-    for (const name of placement.addNames) res.table.columns.add(undefined, undefined, name);
-  }
-  // Headers (plain ranges: we own the header cells of our columns).
-  if (!res.table) {
-    for (let i = 0; i < k; i++) {
-      const h = sheet.getRangeByIndexes(res.headerRow, placement.columns[i], 1, 1);
-      h.numberFormat = [['@']];
-      h.values = [[plan.columns[i].header]];
-      h.format.font.bold = true;
-      h.format.fill.color = `#${HEADER_SWATCH.fill}`;
-      h.format.font.color = `#${HEADER_SWATCH.font}`;
-    }
-  }
-  for (let i = 0; i < k; i++) {
-    const w = plan.columns[i].width;
-    // Widths only on columns we inserted (deleting them restores the sheet exactly); an empty
-    // column we wrote into keeps its width, because an explicit width cannot be un-set.
-    if (placement.fresh[i] && placement.block[i].inserted && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
-  }
-  // Rows the table or block no longer has (the data shrank): clear our cells below.
-  if (!res.table && (res.state?.rowCount ?? 0) > rows) {
-    const extra = (res.state?.rowCount ?? 0) - rows;
-    sheet.getRangeByIndexes(firstDataRow + rows, placement.blockColumn, extra, k).clear('Contents');
-  }
-
-  // Values in row chunks under the budget. Text columns get the text format first.
-  const formats = plan.columns.map(columnFormat);
-  const target = sync.budget.target;
-  let bytesPerRow = 0;
-  for (let i = 0; i < k; i++) bytesPerRow += chunkArrays(values, formats, i, 0, Math.min(rows, 200)).bytes / Math.max(1, Math.min(rows, 200));
-  bytesPerRow = Math.max(8, bytesPerRow * 1.25);
-  let done = 0;
-  while (done < rows) {
-    const n = Math.max(1, Math.min(rows - done, Math.floor((target * 0.9) / bytesPerRow)));
-    let chunkBytes = 0;
-    const parts = [];
-    for (let i = 0; i < k; i++) {
-      const a = chunkArrays(values, formats, i, done, n);
-      chunkBytes += a.bytes;
-      parts.push(a);
-    }
-    await sync.reserve(chunkBytes);
-    for (let i = 0; i < k; i++) {
-      const r = sheet.getRangeByIndexes(firstDataRow + done, placement.columns[i], n, 1);
-      r.numberFormat = parts[i].f;
-      r.values = parts[i].v;
-    }
-    bytesPerRow = Math.max(8, (chunkBytes / n) * 1.1);
-    done += n;
-    deps.onProgress?.({ phase: 'writing', fraction: done / rows });
-  }
-
-  // Status dropdown.
-  deps.onProgress?.({ phase: 'highlighting', fraction: 0 });
-  await sync.reserve(1024);
-  const statusCol = placement.columns[plan.columns.findIndex((c) => c.kind === 'status')];
-  const statusRange = sheet.getRangeByIndexes(firstDataRow, statusCol, rows, 1);
-  statusRange.dataValidation.clear();
-  statusRange.dataValidation.rule = {
-    list: { inCellDropDown: true, source: REVIEW_STATUSES.map((s) => s.label).join(',') },
-  };
-
-  // Highlight rules: drop our old ones (recognised by their marker), add the plan's.
-  for (const cf of ourRules) cf.delete();
-  const flagColumns = plan.columns.flatMap((c, i) => (c.kind === 'flag' ? [columnLetters(placement.columns[i])] : []));
-  const cfRange = sheet.getRangeByIndexes(firstDataRow, placement.startColumn, rows, placement.endColumn - placement.startColumn);
-  const rules = [...plan.rules].sort((a, b) => a.priority - b.priority);
-  for (const rule of rules) {
-    const formula = ruleFormula(rule, { firstDataRow: firstDataRow + 1, flagColumns, statusColumn: columnLetters(statusCol) });
-    await sync.reserve(formula.length + 200);
-    const cf = cfRange.conditionalFormats.add('Custom');
-    cf.custom.rule.formula = formula;
-    cf.custom.format.fill.color = `#${rule.swatch.fill}`;
-    cf.custom.format.font.color = `#${rule.swatch.font}`;
-  }
-  deps.onProgress?.({ phase: 'highlighting', fraction: 1 });
-}
-
-async function writeGrid(sync: Syncer, sheet: Excel.Worksheet, row0: number, grid: readonly (readonly PlanCell[])[], width: number): Promise<void> {
-  const target = sync.budget.target;
-  let r = 0;
-  while (r < grid.length) {
-    // Take rows while they fit.
-    const v: (string | number | boolean)[][] = [];
-    const f: string[][] = [];
-    let bytes = 0;
-    while (r + v.length < grid.length) {
-      const row = grid[r + v.length];
-      const vr = row.map(toCellValue);
-      const fr = row.map((x) => formatFor(x));
-      const b = JSON.stringify(vr).length + JSON.stringify(fr).length + 2;
-      if (v.length > 0 && bytes + b > target * 0.9) break;
-      v.push(vr);
-      f.push(fr);
-      bytes += b;
-    }
-    await sync.reserve(bytes);
-    const range = sheet.getRangeByIndexes(row0 + r, 0, v.length, width);
-    range.numberFormat = f;
-    range.values = v;
-    r += v.length;
-  }
-}
-
-async function writeNotes(
-  sync: Syncer,
-  res: Resolved,
-  plan: Plan,
-  createdNotes: boolean,
-  createdLog: boolean,
-  logUsed: Excel.Range | null,
-  settings: RunSettings,
-  record: RunRecord | undefined,
-): Promise<void> {
-  const wb = sync.context.workbook;
-  await sync.reserve(1024);
-  const notes = createdNotes ? wb.worksheets.add(plan.notes.name) : res.notesSheet;
-  if (!createdNotes) notes.getRange().clear('All');
-  const grid = notesGrid(plan.notes, plan.caution);
-  await writeGrid(sync, notes, 0, grid.rows, grid.width);
-  await sync.reserve(256 * (grid.titleRows.length + grid.headerRows.length + 2));
-  notes.getRange('A1').format.font.bold = true;
-  for (const r of grid.titleRows) {
-    const t = notes.getRangeByIndexes(r, 0, 1, 1);
-    t.format.font.bold = true;
-    t.format.fill.color = `#${TITLE_SWATCH.fill}`;
-    t.format.font.color = `#${TITLE_SWATCH.font}`;
-  }
-  for (const r of grid.headerRows) notes.getRangeByIndexes(r, 0, 1, grid.width).format.font.bold = true;
-  if (createdNotes) notes.getRange('A:A').format.columnWidth = 200;
-
-  // Log: append the run's line, and a cutoff-change line when the cutoff differs from the last run's.
-  const log = createdLog ? wb.worksheets.add(LOG_SHEET_NAME) : res.logSheet;
-  const next = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
-  const previous = res.savedSettings && res.savedSettings.method === settings.method ? res.savedSettings.cutoff : null;
-  const lines = runLogLines(plan.log, settings.reviewer, previous, { reason: record?.cutoffReason ?? '', budget: record?.budget ?? null });
-  await queueLogLines(sync, log, createdLog, next, lines);
-  void PALETTE;
-}
-
-/** Undo a write phase that failed part-way (see the module comment). Never hides the original error. */
-async function compensate(
-  sync: Syncer,
-  res: Resolved,
-  placement: Placement,
-  plan: Plan,
-  createdNotes: boolean,
-  createdLog: boolean,
-  oldStatus: readonly string[],
-  oldNote: readonly string[],
-  firstDataRow: number,
-  original: unknown,
-): Promise<void> {
-  const wb = sync.context.workbook;
-  sync.pending = 0;
-  try {
-    if (!placement.rerun) {
-      if (res.table) {
-        const added = placement.addNames.map((name) => res.table!.columns.getItemOrNullObject(name));
-        for (const c of added) c.load('name');
-        await sync.sync();
-        for (const c of added) if (!c.isNullObject) c.delete();
-      } else {
-        for (let i = plan.columns.length - 1; i >= 0; i--) {
-          const c = placement.columns[i];
-          const b = placement.block[i];
-          if (b.inserted) res.sheet.getRangeByIndexes(0, c, 1, 1).getEntireColumn().delete('Left');
-          else {
-            const r = res.sheet.getRangeByIndexes(res.headerRow, c, res.rows + 1, 1);
-            r.dataValidation.clear();
-            r.clear('All');
-          }
-        }
-      }
-      await sync.sync();
-      const cfs = res.sheet.getRangeByIndexes(firstDataRow, placement.startColumn, res.rows, Math.max(1, placement.endColumn - placement.startColumn)).conditionalFormats;
-      cfs.load('items/type');
-      await sync.sync();
-      const custom = cfs.items.filter((cf) => cf.type === 'Custom');
-      for (const cf of custom) cf.custom.rule.load('formula');
-      await sync.sync();
-      for (const cf of custom) if (isTailmarkFormula(cf.custom.rule.formula)) cf.delete();
-    } else if (placement.oldStatus !== null && placement.oldNote !== null && placement.dropColumns.length === 0 && placement.insertCount === 0) {
-      // Put the review marks back where they were.
-      const s = res.sheet.getRangeByIndexes(firstDataRow, placement.oldStatus, res.rows, 1);
-      s.values = oldStatus.map((x) => [x]);
-      const n = res.sheet.getRangeByIndexes(firstDataRow, placement.oldNote, res.rows, 1);
-      n.values = oldNote.map((x) => [x]);
-    }
-    const made = [createdNotes ? plan.notes.name : null, createdLog ? LOG_SHEET_NAME : null]
-      .filter((n): n is string => n !== null)
-      .map((n) => wb.worksheets.getItemOrNullObject(n));
-    for (const m of made) m.load('name');
-    await sync.sync();
-    for (const m of made) if (!m.isNullObject) m.delete();
-    await sync.sync();
-  } catch (e) {
-    const msg = original instanceof Error ? original.message : String(original);
-    throw new TailmarkError(
-      'changed-during-run',
-      `Writing the results failed (${msg}) and undoing the partial write also failed (${e instanceof Error ? e.message : String(e)}). Use "Remove results" and run again.`,
-    );
-  }
 }

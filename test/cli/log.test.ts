@@ -26,7 +26,7 @@ describe('tailmark score: the log sheet', () => {
     const first = join(dir, 'first.xlsx');
     const second = join(dir, 'second.xlsx');
     await writeDemoWorkbook(input, demoClaims());
-    const args = ['--value', 'Amount', '--group', 'Cost centre', '--group', 'Category'];
+    const args = ['--value', 'Amount', '--group', 'Cost centre', '--group', 'Category', '--method', 'robust'];
     expect((await run('score', input, ...args, '--reviewer', 'K.M.', '--out', first)).code).toBe(0);
     const one = logOf(first);
     expect(one).toHaveLength(1);

@@ -141,6 +141,11 @@ export function MethodSection({ model }: { model: PaneModel }) {
       </div>
       <div aria-live="polite" data-testid="preview">
         {state.previewLoading && <Text className={s.muted}>Reading the chosen columns…</Text>}
+        {model.previewError && (
+          <Text block role="alert" data-testid="preview-error">
+            No preview: {model.previewError}
+          </Text>
+        )}
         {preview && first && (
           <>
             <Text block>
