@@ -59,6 +59,8 @@ export function planToJson(plan: Plan): PlanJson {
         flagged: g.flagged,
         medcouple: g.medcouple,
         rule: describeGroupRule(col.method, g.medcouple),
+        chanceRate: g.chanceRate,
+        unreachable: g.unreachable,
       };
       if (multi) entry.column = col.column;
       groups.push(entry);

@@ -2,7 +2,7 @@
  * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
-import { defaultCutoff, describeCutoff, describeGroupRule, explainRowShort } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN } from '../scoring/index.js';
 import { describeFallback } from '../scoring/fallbacks.js';
 import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
@@ -156,6 +156,7 @@ function groupRow(g: GroupStats, method: MethodId): PlanCell[] {
     POPULATION_WORDS[g.population],
     g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
     describeGroupRule(method, g.medcouple),
+    g.chanceRate === null ? null : `${g.chanceRateAtMost ? 'fewer than 1 in ' + oneInN(g.chanceRate).replace('about 1 in ', '') : oneInN(g.chanceRate)}`,
   ];
 }
 
@@ -163,7 +164,7 @@ const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.la
 
 const GROUP_TABLE_HEADER: PlanCell[] = [
   'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
-  'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)', 'Rule applied and why',
+  'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)', 'Rule applied and why', 'Claims flagged by chance at this size',
 ];
 
 /** Build the plan of a run. */
@@ -235,7 +236,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   sections.push({
     title: 'How the cutoff was chosen and what it means',
     rows: [
-      [describeCutoff(options.method, options.cutoff, options.direction)],
+      [describeCutoff(options.method, options.cutoff, options.direction, options.logScale)],
       [cutoffOrigin(result)],
       ['The same settings on next period\'s sheet give comparable flags; change the cutoff only with a reason you can record here.'],
     ],
@@ -274,11 +275,12 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   if (excludedRows.length === 1) excludedRows.push(['(all columns)', 'no cells were left out', 0]);
   sections.push({ title: 'Cells left out', table: true, rows: excludedRows });
 
-  const unreachable: PlanCell[][] = [['Column', 'Group', 'n', 'Largest possible |z| = (n-1)/sqrt(n)', 'Cutoff']];
+  const unreachable: PlanCell[][] = [['Column', 'Group', 'n', 'Largest possible score at this size', 'Cutoff']];
   for (const col of result.columns) {
     for (const g of col.groups) {
-      if (g.fallbacks.includes('cutoff-unreachable')) {
-        unreachable.push([col.column, g.label, g.n, g.maxAttainableZ === null ? null : Math.round(g.maxAttainableZ * 1000) / 1000, col.cutoff]);
+      if (g.unreachable) {
+        const most = maxReach(col.method, g.population === 'column' ? col.pooled.n : g.n);
+        unreachable.push([col.column, g.label, g.n, Number.isFinite(most) ? Math.round(most * 1000) / 1000 : null, col.cutoff]);
       }
     }
   }
@@ -289,13 +291,15 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       unreachable.length > 1
         ? [
             ...unreachable,
-            ['In a group of n amounts no classic z-score can exceed (n-1)/sqrt(n) (Shiffler, 1988), so these groups can never flag a claim with this cutoff.'],
+            [
+              'In a group of n amounts no score of this method can pass the largest possible score shown (classic z: (n-1)/sqrt(n), ' +
+                'Shiffler 1988; robust z of 2 amounts: 0.6745; IQR fences of 3 amounts: 1 IQR; see maxReach.ts), so these groups can ' +
+                'never flag a claim with this cutoff.',
+            ],
           ]
         : [
             [
-              options.method === 'classic'
-                ? 'None: every scored group is large enough for classic z to reach the cutoff.'
-                : 'Not applicable to this method (the limit (n-1)/sqrt(n), Shiffler 1988, concerns classic z-scores).',
+              'None: in every scored group some amounts could reach the cutoff.',
             ],
           ],
   });

@@ -94,7 +94,7 @@ function mergeRects(input: Rect[]): Rect[] {
 }
 
 /** An .xlsx file's bytes as an ExcelJS workbook (for the browser preview, which reaches ExcelJS only through this module). */
-export async function readXlsx(data: ArrayBuffer): Promise<ExcelJS.Workbook> {
+export async function readXlsx(data: Parameters<ExcelJS.Xlsx['load']>[0]): Promise<ExcelJS.Workbook> {
   const wb = new ExcelJS.Workbook();
   await wb.xlsx.load(data);
   return wb;

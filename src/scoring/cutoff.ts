@@ -54,9 +54,19 @@ export function iqrFenceInSds(k: number): number {
 
 /**
  * Plain-words meaning of a cutoff, with the chance that a value from normally distributed data
- * passes it (for IQR via the normal-equivalent fence 0.6745 + 1.349k SDs).
+ * passes it in a large group (for IQR via the normal-equivalent fence 0.6745 + 1.349k SDs); with
+ * `logScale`, "log-normally distributed". The rate at each group's own size is `GroupStats.chanceRate`.
  */
-export function describeCutoff(method: MethodId, cutoff: number, direction: Direction): string {
+export function describeCutoff(method: MethodId, cutoff: number, direction: Direction, logScale = false): string {
+  return wordsFor(logScale, describeCutoffLinear(method, cutoff, direction));
+}
+
+/** Under --log the reference distribution is the log-normal: the same figures hold for ln(amount). */
+function wordsFor(logScale: boolean, text: string): string {
+  return logScale ? text.replace(/normally distributed amounts/g, 'log-normally distributed amounts') : text;
+}
+
+function describeCutoffLinear(method: MethodId, cutoff: number, direction: Direction): string {
   const c = formatCutoff(cutoff);
   if (method === 'skew') {
     const p = tailProbability(iqrFenceInSds(cutoff), direction);

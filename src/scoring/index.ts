@@ -9,6 +9,8 @@ export { formatNumber, formatScore, formatCutoff } from './format.js';
 export { defaultCutoff, tailProbability, oneInN, describeCutoff, cutoffForBudget, countFlaggedAt, iqrFenceInSds } from './cutoff.js';
 export { METHODS, getMethod, robustMethod, classicMethod, iqrMethod, adjustedMethod, skewMethod, fenceFactors, type ScoringMethod, type Fit } from './methods/index.js';
 export { medcouple } from './medcouple.js';
+export { chanceRate, type ChanceRate } from './chanceRate.js';
+export { maxReach } from './maxReach.js';
 export { describeGroupRule, SYMMETRIC_MC } from './groupRule.js';
 export { tukeyHinges } from './tukeyHinges.js';
 export { maxAttainableZ } from './methods/classic.js';

@@ -185,6 +185,9 @@ export interface StatsTail {
   readonly fallbacks: readonly Fallback[];
   readonly population: Population;
   readonly maxAttainableZ: number | null;
+  readonly chanceRate: number | null;
+  readonly chanceRateAtMost: boolean;
+  readonly unreachable: boolean;
 }
 
 /**
@@ -216,5 +219,8 @@ export function lazyGroupStats(
     fallbacks: tail.fallbacks,
     population: tail.population,
     maxAttainableZ: tail.maxAttainableZ,
+    chanceRate: tail.chanceRate,
+    chanceRateAtMost: tail.chanceRateAtMost,
+    unreachable: tail.unreachable,
   };
 }

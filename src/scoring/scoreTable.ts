@@ -1,4 +1,6 @@
+import { chanceRate } from './chanceRate.js';
 import { maxAttainableZ } from './methods/classic.js';
+import { maxReach } from './maxReach.js';
 import { getMethod } from './methods/index.js';
 import type { Fit, ScoringMethod } from './methods/method.js';
 import { NO_FIT } from './methods/method.js';
@@ -247,7 +249,7 @@ function scoreColumn(
 
   // 5. Per-group results (descriptive fields lazy).
   const bits = SCORING_FIELDS[method.id];
-  const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, groupFallbacks, popOf);
+  const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, groupFallbacks, popOf, opts, nAll);
   const flaggedRows = sumOf(flaggedPerGroup, popOf, -1);
   const pooledFlagged = sumOf(flaggedPerGroup, popOf, POP_COLUMN);
 
@@ -260,7 +262,7 @@ function scoreColumn(
     pooled = lazyGroupStats(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
       store, -1, logScale ? null : whole.s, bits,
-      statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll),
+      statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll, opts, nAll),
       logScale,
     );
     return pooled;
@@ -505,6 +507,7 @@ function sumOf(values: Int32Array, popOf: Uint8Array, pop: number): number {
 function buildGroups(
   grouping: Grouping, count: Int32Array, gCounts: Int32Array, store: DescriptiveStore, scoringSummaries: readonly (Summary | null)[],
   bits: number, fits: readonly Fit[], logScale: boolean, flaggedPerGroup: Int32Array, groupFallbacks: readonly Fallback[][], popOf: Uint8Array,
+  opts: Required<ScoreOptions>, nAll: number,
 ): GroupStats[] {
   const nGroups = count.length;
   const { start } = grouping;
@@ -514,7 +517,7 @@ function buildGroups(
     groups[g] = lazyGroupStats(
       { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
       store, g, scoringSummaries[g], bits,
-      statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n),
+      statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n, opts, popOf[g] === POP_COLUMN ? nAll : n),
       logScale,
     );
   }
@@ -568,8 +571,14 @@ function scatter(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, yO
 }
 
 /** The fit-derived fields of a GroupStats: centre, scale and bounds in real (bounds: original) units, and the rest. */
-function statsTail(fit: Fit, logScale: boolean, flagged: number, fallbacks: readonly Fallback[], population: Population, n: number): StatsTail {
+function statsTail(
+  fit: Fit, logScale: boolean, flagged: number, fallbacks: readonly Fallback[], population: Population, n: number,
+  opts: Required<ScoreOptions>, popN: number,
+): StatsTail {
   const scored = fit.kind !== 'none';
+  const chance = scored ? chanceRate(opts.method, opts.cutoff, opts.direction, popN) : null;
+  const unreachable = scored && maxReach(opts.method, popN) <= opts.cutoff;
+  if (unreachable && !fallbacks.includes('cutoff-unreachable')) fallbacks = [...fallbacks, 'cutoff-unreachable'];
   return {
     center: scored ? real(fit.center, fit.unit) : null,
     scale: scored && fit.scale > 0 ? real(fit.scale, fit.unit) : null,
@@ -579,6 +588,9 @@ function statsTail(fit: Fit, logScale: boolean, flagged: number, fallbacks: read
     fallbacks,
     population,
     maxAttainableZ: n >= 2 ? maxAttainableZ(n) : null,
+    chanceRate: chance === null ? null : chance.rate,
+    chanceRateAtMost: chance !== null && chance.atMost,
+    unreachable,
   };
 }
 

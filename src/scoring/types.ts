@@ -120,7 +120,7 @@ export type Fallback =
   | 'small-pooled'
   /** Group smaller than the minimum size: left unscored. */
   | 'small-skipped'
-  /** Classic z cannot reach the cutoff in a group of this size ((n-1)/sqrt(n) <= cutoff, Shiffler 1988). */
+  /** No score can reach the cutoff in a population of this size, whatever the amounts (`maxReach.ts`; classic z: (n-1)/sqrt(n) <= cutoff, Shiffler 1988). */
   | 'cutoff-unreachable';
 
 /** Statistics of one population (a group, or the whole column). NaN never appears: undefined stats are null. */
@@ -162,6 +162,17 @@ export interface GroupStats {
   readonly population: Population;
   /** Largest |classic z| attainable in a sample of n, (n - 1)/sqrt(n); null when n < 2. */
   readonly maxAttainableZ: number | null;
+  /**
+   * Share of claims expected to be flagged by chance in the population this group was scored
+   * against, at its size, under the method, cutoff and direction used, for normally (log scale:
+   * log-normally) distributed amounts: from a seeded simulation of the engine (`chanceRate.ts`).
+   * null when not scored.
+   */
+  readonly chanceRate: number | null;
+  /** true when `chanceRate` is only an upper bound (the simulation saw no chance flag). */
+  readonly chanceRateAtMost: boolean;
+  /** No claim of this group can reach the cutoff, whatever the amounts (`maxReach.ts`); also listed as 'cutoff-unreachable'. */
+  readonly unreachable: boolean;
 }
 
 /**

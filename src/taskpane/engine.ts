@@ -5,7 +5,7 @@
  */
 import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
-import { defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, quantile, sampleStandardDeviation } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, oneInN, quantile, sampleStandardDeviation } from '../scoring/index.js';
 import { scoreColumns } from '../pipeline/run.js';
 import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
 
@@ -39,6 +39,8 @@ export interface GroupCount {
   readonly flagged: number;
   readonly unreachable: boolean;
   readonly fallbacks: readonly string[];
+  /** "about 1 in N" flagged by chance at this group's size (engine's chanceRate); '' when not scored. */
+  readonly chance: string;
 }
 
 export interface ColumnPreview {
@@ -62,6 +64,7 @@ function groupCounts(col: ColumnScores): GroupCount[] {
     flagged: g.flagged,
     unreachable: g.fallbacks.includes('cutoff-unreachable'),
     fallbacks: g.fallbacks,
+    chance: g.chanceRate === null ? '' : `${g.chanceRateAtMost ? 'at most ' : ''}${oneInN(g.chanceRate)} by chance`,
   }));
 }
 
@@ -76,7 +79,7 @@ export function summarisePreview(result: ScoreResult, s: RunSettings): PreviewSu
   for (let r = 0; r < result.rowCount; r++) {
     if (result.columns.some((c) => c.flagged[r] === 1)) flaggedRows++;
   }
-  return { columns, flaggedRows, meaning: describeCutoff(s.method, s.cutoff, s.direction) };
+  return { columns, flaggedRows, meaning: describeCutoff(s.method, s.cutoff, s.direction, s.logScale) };
 }
 
 /** The cutoff for a review budget (see src/pipeline/budget.ts). */

@@ -190,7 +190,7 @@ describe('notes sheet', () => {
     expect(s.table).toBe(true);
     expect(s.rows[0]).toEqual([
       'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
-      'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)', 'Rule applied and why',
+      'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)', 'Rule applied and why', 'Claims flagged by chance at this size',
     ]);
     const g1 = s.rows.find((r) => r[0] === '=G1')!;
     expect(g1).toBeDefined();

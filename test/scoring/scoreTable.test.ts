@@ -281,8 +281,8 @@ describe('contract details', () => {
   it('every GroupStats field is present', () => {
     const g = one([1, 2, 3, 4]).columns[0].groups[0];
     expect(Object.keys(g).sort()).toEqual([
-      'center', 'excluded', 'fallbacks', 'flagged', 'key', 'keyParts', 'label', 'lower', 'mad', 'maxAttainableZ', 'mean', 'meanAbsDev',
-      'medcouple', 'median', 'n', 'population', 'q1', 'q3', 'rows', 'scale', 'scaledMad', 'sd', 'upper',
+      'center', 'chanceRate', 'chanceRateAtMost', 'excluded', 'fallbacks', 'flagged', 'key', 'keyParts', 'label', 'lower', 'mad', 'maxAttainableZ', 'mean', 'meanAbsDev',
+      'medcouple', 'median', 'n', 'population', 'q1', 'q3', 'rows', 'scale', 'scaledMad', 'sd', 'unreachable', 'upper',
     ]);
   });
   it('an empty table scores to empty arrays', () => {

@@ -162,13 +162,13 @@ export function MethodSection({ model }: { model: PaneModel }) {
             </Text>
             {unreachable > 0 && (
               <Text block className={s.small}>
-                In {unreachable} small group{unreachable === 1 ? '' : 's'} classic z cannot reach this cutoff at all.
+                In {unreachable} small group{unreachable === 1 ? '' : 's'} this method cannot reach the cutoff at all.
               </Text>
             )}
             <GroupCountTable
               caption="Flagged claims per peer group at this cutoff"
               testId="group-counts"
-              rows={groups.slice(0, MAX_GROUP_ROWS).map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.unreachable ? ' (cutoff out of reach)' : undefined }))}
+              rows={groups.slice(0, MAX_GROUP_ROWS).map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.unreachable ? ' (cutoff out of reach)' : g.chance ? ` (${g.chance})` : undefined }))}
             />
             {groups.length > MAX_GROUP_ROWS && (
               <Text className={s.muted}>
