@@ -11,6 +11,7 @@
  */
 import { SandboxWorkbook } from '../src/sandbox/index.js';
 import { officeClientFor } from '../src/cli/office-client.js';
+import { nodePipeline } from '../src/cli/threads.js';
 import { createWorkbookLayer } from '../src/workbook/index.js';
 import type { RunSettings } from '../src/workbook/api.js';
 
@@ -84,7 +85,9 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
   const buildMs = performance.now() - t0;
   const host = client === 'office-js' ? officeClientFor(sb) : null;
   const runner = host ? (host.run as SandboxWorkbook['run']) : sb.run;
-  const layer = createWorkbookLayer(runner, { now: () => new Date('2025-03-31T09:00:00Z') });
+  // The pipeline on a worker thread, as `tailmark sandbox` runs it (TAILMARK_BENCH_SAME_THREAD=1: the fallback, to compare).
+  const threads = process.env.TAILMARK_BENCH_SAME_THREAD === '1' ? null : nodePipeline();
+  const layer = createWorkbookLayer(runner, { now: () => new Date('2025-03-31T09:00:00Z'), ...(threads ? { pipeline: threads.pipeline } : {}) });
   /** Largest request/response: the real JSON through the client, else the sandbox's estimate. */
   const maxReq = () => (host ? host.wire.requestBytes.max : sb.stats.requestBytes.max);
   const maxResp = () => (host ? host.wire.responseBytes.max : sb.stats.responseBytes.max);
@@ -107,6 +110,7 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
   t0 = performance.now();
   const summary = await layer.run(table, BENCH_SETTINGS);
   clearInterval(ticker);
+  await threads?.close();
   longest = Math.max(longest, performance.now() - last);
   const run = {
     syncs: sb.stats.syncs,

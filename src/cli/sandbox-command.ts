@@ -8,6 +8,7 @@
  *
  * Exit codes: 0 success, 2 bad input or options (one line on stderr), 1 unexpected failure.
  */
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { stat } from 'node:fs/promises';
 import { extname, resolve } from 'node:path';
 import ExcelJS from 'exceljs';
@@ -18,6 +19,7 @@ import { isTailmarkError } from '../pipeline/errors.js';
 import { TailmarkError, type DetectedTable, type RunSettings } from '../workbook/api.js';
 import { findColumn, validateSettings, type SettingWords, type SettingsInput } from '../pipeline/index.js';
 import { parseFlags, settingOptionSpec, settingsFromOptions, settingWords } from './args.js';
+import { nodePipeline } from './threads.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
 import { officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
@@ -165,6 +167,7 @@ export function countUserCellsChanged(before: SandboxSnapshot, after: SandboxSna
 }
 
 export async function runSandboxCommand(argv: string[]): Promise<number> {
+  const threads = nodePipeline();
   try {
     const args = parseSandboxArgs(argv);
     const input = resolve(args.input);
@@ -185,8 +188,11 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     sb.setSelection(sheet, 'A1');
     const host = args.officeClient ? officeClientFor(sb) : null;
     const run = host ? (host.run as SandboxWorkbook['run']) : sb.run;
-    const layer = createWorkbookLayer(run, { runInContext: run });
+    const layer = createWorkbookLayer(run, { runInContext: run, pipeline: threads.pipeline });
     const before = sb.snapshot();
+    // The longest stall of this thread's event loop from detect to the end of the run(s).
+    const stalls = monitorEventLoopDelay({ resolution: 10 });
+    stalls.enable();
     sb.stats.reset();
     host?.wire.reset();
     const table = await layer.detect();
@@ -259,6 +265,9 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
       reviewMarksKept = kept === wanted.length;
     }
 
+    stalls.disable();
+    const longestBlockMs = Math.round(stalls.max / 1e6);
+
     if (args.out !== undefined) {
       await sandboxToExcelJs(sb).xlsx.writeFile(resolve(args.out));
     }
@@ -278,6 +287,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
       reviewMarksKept,
       reviewMarks: marks,
       changes: diffSnapshots(before, afterFirst).length,
+      longestBlockMs,
     };
     if (args.json) process.stdout.write(JSON.stringify(report, null, 2) + '\n');
     else {
@@ -298,5 +308,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
     }
     process.stderr.write(`tailmark: unexpected error: ${e instanceof Error ? e.message : String(e)}\n`);
     return 1;
+  } finally {
+    await threads.close();
   }
 }

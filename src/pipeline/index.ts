@@ -15,3 +15,15 @@ export {
 export { columnsToRead, findColumn, resolveColumns, type ResolvedColumns } from './columns.js';
 export { claimIds, runPipeline, scoreColumns, type NamedCells, type PipelineContext, type PipelineRun, type PipelineTable } from './run.js';
 export { cutoffForReviewBudget, type BudgetAnswer } from './budget.js';
+export {
+  createWorkerPipeline,
+  runPipelineYielding,
+  servePipeline,
+  transferablesOf,
+  type AsyncPipeline,
+  type FromWorker,
+  type PipelineJob,
+  type PipelinePhase,
+  type PipelinePort,
+  type ToWorker,
+} from './offthread.js';

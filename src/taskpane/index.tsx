@@ -7,6 +7,7 @@ import { FluentProvider, Link, Text, makeStyles, tokens } from '@fluentui/react-
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { createWorkbookLayer } from '../workbook/layer.js';
+import { browserPipeline } from './offThread.js';
 import { TailmarkPane } from './Pane.js';
 import { fluentTheme, pickTheme } from './theme.js';
 
@@ -64,7 +65,7 @@ function start(): void {
   void Office.onReady((info) => {
     const background = Office.context?.officeTheme?.bodyBackgroundColor ?? null;
     if (info.host === Office.HostType.Excel) {
-      const layer = createWorkbookLayer(Excel.run, { runInContext: Excel.run });
+      const layer = createWorkbookLayer(Excel.run, { runInContext: Excel.run, pipeline: browserPipeline() });
       render(<TailmarkPane layer={layer} />, background);
     } else {
       render(<OutsideOffice />, background);

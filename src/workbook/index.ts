@@ -7,6 +7,7 @@
  * Every action is one `run(...)` (one Excel.run) with a bounded number of context.sync() calls
  * that grows with the number of cells only.
  */
+import type { AsyncPipeline } from '../pipeline/index.js';
 import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
@@ -50,6 +51,8 @@ export interface WorkbookLayerOptions {
    * Without it the registering run stays open until unsubscribe (the fallback).
    */
   readonly runInContext?: ExcelContextRunner;
+  /** How a run's pipeline runs: the pane and the preview pass a worker-backed one (default: same thread). */
+  readonly pipeline?: AsyncPipeline;
   /** Called with errors of background work (removing a selection handler). */
   readonly onBackgroundError?: (e: unknown) => void;
   /**
@@ -143,6 +146,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
           ...(onProgress ? { onProgress } : {}),
           ...(signal ? { signal } : {}),
           ...(record ? { record } : {}),
+          ...(options.pipeline ? { pipeline: options.pipeline } : {}),
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };

@@ -19,7 +19,7 @@
  * notes, log) in write-results.ts, undoing a failed write in undo.ts; the run itself (resolve ->
  * read -> pipeline -> check -> marks -> write) here. Review marks merge in src/report/marks.ts.
  */
-import { claimIds, runPipeline, validateSettings } from '../pipeline/index.js';
+import { claimIds, runPipelineYielding, validateSettings, type AsyncPipeline } from '../pipeline/index.js';
 import {
   EXCLUSION_LABELS,
   EXCLUSION_REASONS,
@@ -57,6 +57,8 @@ export interface RunDeps {
   readonly signal?: AbortSignal;
   /** Why the cutoff was changed and whether a review budget set it (for the log sheet). */
   readonly record?: RunRecord;
+  /** How the pipeline runs (the pane passes a worker-backed one; default: same thread, yielding between steps). */
+  readonly pipeline?: AsyncPipeline;
 }
 
 export interface RunOutcome {
@@ -165,7 +167,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
   const address = rectAddress(res.sheetName, { row: res.headerRow, column: res.spanStart, rowCount: res.rows + 1, columnCount: res.spanCols });
-  const { result, plan: built, columns } = runPipeline(
+  const pipeline = deps.pipeline ?? runPipelineYielding;
+  const { result, plan: built, columns } = await pipeline(
     {
       source: res.tableName ? `${address} (table ${res.tableName})` : address,
       sheetName: res.sheetName,
@@ -177,7 +180,12 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     },
     settings,
     // The marks sit in our columns outside the data read here: merged below, after the check read them.
-    { when: deps.now(), marks: 'host' },
+    {
+      when: deps.now(),
+      marks: 'host',
+      onProgress: (phase, fraction) => deps.onProgress?.({ phase: 'scoring', fraction: phase === 'sending' ? fraction * 0.2 : phase === 'scoring' ? 0.2 + fraction * 0.5 : 0.7 + fraction * 0.3 }),
+      ...(signal ? { signal } : {}),
+    },
   );
   deps.onProgress?.({ phase: 'scoring', fraction: 1 });
   if (signal?.aborted) throw cancelled();
