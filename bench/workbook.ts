@@ -75,6 +75,8 @@ export const BENCH_SETTINGS: RunSettings = {
   minGroupSize: 8,
   smallGroups: 'pool',
   decimal: 'auto',
+  reviewer: null,
+  detailColumns: null,
 };
 
 export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell' = 'block', client: BenchClient = 'sandbox'): Promise<WorkbookBenchResult> {

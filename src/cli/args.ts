@@ -48,6 +48,9 @@ export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: strin
   smallGroups: { name: 'small-groups', kind: 'value' },
   // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
   decimal: null,
+  reviewer: { name: 'reviewer', kind: 'value' },
+  // The add-in's follow-up view only.
+  detailColumns: null,
 };
 
 /** The option spec of every setting, for parseFlags. */
@@ -215,6 +218,7 @@ score options:
                           (default: from its byte-order mark, else UTF-8, else Windows-1252; said in the notes)
   --header-row <n>        row number of the header (default: the first row that looks like one, so
                           report titles and blank lines above it are skipped)
+  --reviewer <name>       your name or initials, recorded with the run in the log sheet
   --sheet <name>          worksheet to read (.xlsx; default the first)
   --out <output.xlsx>     where to write the scored workbook (default <input>-tailmark.xlsx beside the input)
   --force                 replace --out if it exists (the input itself is never replaced)

@@ -117,7 +117,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       const summary = await writeScoredWorkbookStreaming(args.input, table, plan, outPath, { force: args.force, onProgress });
       notCarried = summary.notCarried;
     } else {
-      await writeScoredWorkbook(args.input, table, plan, outPath, { force: args.force, workbook: table.workbook, onProgress });
+      await writeScoredWorkbook(args.input, table, plan, outPath, { force: args.force, workbook: table.workbook, onProgress, reviewer: args.settings.reviewer });
     }
     if (large) progress('');
     if (io.progress && large) io.err('\n');

@@ -12,6 +12,8 @@ import ExcelJS from 'exceljs';
 import type { SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell } from '../report/types.js';
 import { isTailmarkFormula } from '../report/rules.js';
+import { LOG_HEADER, LOG_SHEET_NAME, isLogMarker, lastRunCutoff, runLogLines } from '../report/log.js';
+import { LOG_TITLE } from '../report/notesSheet.js';
 import { fileKind, readTable, type ReadTable } from './read.js';
 import { compactValidations } from './validation-ranges.js';
 import { checkOutPath, inStatusColumn, isOurNotesSheet, notesLayout, ourRules, placeColumns, RESULT_HEADER_STYLE, statusDropdown } from './layout.js';
@@ -26,6 +28,8 @@ export interface WriteOptions {
   readonly onProgress?: (phase: 'writing' | 'saving', fraction: number) => void;
   /** Lines for the notes sheet about how the file was written (e.g. what streaming could not carry). */
   readonly extraNotes?: Plan['notes']['sections'];
+  /** Who ran it (--reviewer), for the log sheet; null = not given. */
+  readonly reviewer?: string | null;
 }
 
 export interface WriteSummary {
@@ -58,6 +62,54 @@ function isEmptyValue(v: ExcelJS.CellValue): boolean {
 /** The plan's cells as sheet values: strings stay strings (text), null is an empty cell. */
 function planValue(v: PlanCell): ExcelJS.CellValue {
   return v === null ? null : v;
+}
+
+/** A cell of the log sheet as a plan cell (exceljs values: numbers and text are all the log holds). */
+function logCell(v: ExcelJS.CellValue): PlanCell {
+  return typeof v === 'number' || typeof v === 'string' || typeof v === 'boolean' ? v : null;
+}
+
+/**
+ * The log sheet, as the add-in keeps it (src/report/log.ts): this run's lines are added below the
+ * last one and nothing above is rewritten. A sheet of that name that is not ours is left alone and
+ * ours gets a suffix, as for the notes sheet.
+ */
+function appendLogSheet(wb: ExcelJS.Workbook, plan: Plan, reviewer: string | null): void {
+  let name = LOG_SHEET_NAME;
+  let log: ExcelJS.Worksheet | undefined;
+  for (let k = 2; ; k++) {
+    const found = wb.getWorksheet(name);
+    if (!found || isLogMarker(found.getCell('A1').value)) {
+      log = found;
+      break;
+    }
+    name = `${LOG_SHEET_NAME} (${k})`;
+  }
+  if (!log) {
+    log = wb.addWorksheet(name);
+    log.getCell('A1').value = LOG_TITLE;
+    log.getCell('A1').font = { bold: true };
+    log.getColumn(1).width = 26;
+    log.getColumn(2).width = 30;
+  }
+  const header = log.getRow(2);
+  LOG_HEADER.forEach((h, i) => {
+    header.getCell(i + 1).value = h;
+    header.getCell(i + 1).font = { bold: true };
+  });
+  const earlier: PlanCell[][] = [];
+  for (let r = 3; r <= log.rowCount; r++) {
+    const row = log.getRow(r);
+    earlier.push(LOG_HEADER.map((_, i) => logCell(row.getCell(i + 1).value)));
+  }
+  const lines = runLogLines(plan.log, reviewer, lastRunCutoff(earlier, plan.log.method));
+  let next = Math.max(3, log.rowCount + 1);
+  for (const l of lines) {
+    const row = log.getRow(next++);
+    l.forEach((v, i) => {
+      if (v !== null) row.getCell(i + 1).value = v;
+    });
+  }
 }
 
 export async function writeScoredWorkbook(
@@ -171,6 +223,7 @@ export async function writeScoredWorkbook(
 
   // Validations go back with the ranges they came with (ExcelJS would write overlapping ones).
   for (const sheet of wb.worksheets) compactValidations((sheet as unknown as { dataValidations: SheetValidations }).dataValidations.model);
+  appendLogSheet(wb, plan, options.reviewer ?? null);
 
   options.onProgress?.('saving', 0);
   const tmp = join(dirname(resolve(outPath)), `.${basename(outPath)}.${process.pid}.tmp`);

@@ -46,6 +46,13 @@ export interface Settings {
   readonly smallGroups: SmallGroupPolicy;
   /** Decimal separator of text amounts: 'auto' decides per column from its cells (said in the notes), or given. */
   readonly decimal: DecimalMode;
+  /**
+   * Name or initials recorded in the log sheet with each run and status change; null = not given.
+   * Office gives add-ins no user identity without sign-in, so this is what the reviewer typed.
+   */
+  readonly reviewer: string | null;
+  /** Columns the pane's follow-up view shows with each claim (headers); null = the pane's guess. */
+  readonly detailColumns: readonly string[] | null;
 }
 
 export type SettingKey = keyof Settings;
@@ -98,6 +105,17 @@ export const SETTING_SPECS: { readonly [K in SettingKey]: Spec<Settings[K]> } = 
   },
   smallGroups: { label: 'The small-group choice', fallback: () => 'pool', check: oneOf(SMALL_GROUP_POLICIES) },
   decimal: { label: 'The decimal separator', fallback: () => 'auto', check: oneOf(DECIMAL_MODES) },
+  reviewer: {
+    label: 'The reviewer name',
+    fallback: () => null,
+    check: (v) =>
+      v === null || (typeof v === 'string' && v.trim() !== '' && v.length <= 60) ? null : 'must be a name or initials of 1 to 60 characters',
+  },
+  detailColumns: {
+    label: 'The follow-up columns',
+    fallback: () => null,
+    check: (v) => (v === null || isStringList(v) ? null : 'must be a list of column headers or none'),
+  },
 };
 
 export const SETTING_KEYS = Object.keys(SETTING_SPECS) as SettingKey[];

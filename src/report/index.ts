@@ -15,5 +15,17 @@ export {
 } from './style.js';
 export { planToJson, planJsonChunks, type PlanJson } from './json.js';
 export { describeDecimal } from './decimal.js';
+export {
+  LOG_HEADER,
+  LOG_SHEET_NAME,
+  NO_NAME,
+  cutoffLine,
+  isLogMarker,
+  lastRunCutoff,
+  markLine,
+  runLine,
+  runLogLines,
+  type CutoffChange,
+} from './log.js';
 export { WORKBOOK_FORMAT, NOTES_TITLE, LOG_TITLE, notesFormatOf, logFormatOf, notesGrid, type NotesGrid } from './notesSheet.js';
 export { MARKS_TITLE, GONE_TITLE, isMark, mergeMarks, priorMarksOf, readMarkRecords, type MarkRecord, type MarksOutcome, type PriorMarks } from './marks.js';

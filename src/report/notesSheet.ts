@@ -18,7 +18,7 @@ const NOTES_PREFIX = 'Tailmark notes · workbook format ';
 const LOG_PREFIX = 'Tailmark run log · workbook format ';
 
 export const NOTES_TITLE = `${NOTES_PREFIX}${WORKBOOK_FORMAT} · rewritten on every run; keep your own notes on another sheet.`;
-export const LOG_TITLE = `${LOG_PREFIX}${WORKBOOK_FORMAT} · one row per run, newest last.`;
+export const LOG_TITLE = `${LOG_PREFIX}${WORKBOOK_FORMAT} · one line per run, cutoff change and saved status or note, newest last; lines are never rewritten.`;
 
 /** Earlier forms of A1 that also mean "ours" (format 1 in all but name). */
 const LEGACY_NOTES = [/\(tm:notes:v1\)/, /^What was done$/];

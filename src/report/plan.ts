@@ -2,7 +2,7 @@
  * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
-import { defaultCutoff, describeCutoff, describeGroupRule, explainRow, maxReach, oneInN } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN } from '../scoring/index.js';
 import { describeFallback } from '../scoring/fallbacks.js';
 import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
@@ -190,14 +190,14 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     for (let r = 0; r < rows; r++) {
       score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
-      if (!lazy) reason[r] = explainRow(result, col, r);
+      if (!lazy) reason[r] = explainRowShort(result, col, r);
       if (col.flagged[r]) anyFlag[r] = 1;
       if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
     }
     columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
     columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
-    const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRow(result, col, r)) : reason;
-    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 60 });
+    const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRowShort(result, col, r)) : reason;
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 42 });
   });
   const open = statusLabel('open');
   const status: PlanCell[] = new Array<PlanCell>(rows);
@@ -222,6 +222,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     cutoff: options.cutoff,
     rowsScored: scoredRows,
     flagged: flaggedRows,
+    defaultCutoff: defaultCutoff(options.method),
   };
 
   const sections: NotesSection[] = [];
@@ -237,6 +238,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       [`${scoredRows} of ${rows} rows scored; ${flaggedRows} flagged.`],
     ],
   });
+  sections.push(termsSection(result));
   sections.push({
     title: 'How the cutoff was chosen and what it means',
     rows: [
@@ -341,6 +343,37 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     result,
     table: ctx.table,
     idColumn: ctx.idColumn ?? null,
+  };
+}
+
+/** Every term the result columns use, in plain words (shown near the top of the notes sheet). */
+function termsSection(result: ScoreResult): NotesSection {
+  const h = resultHeaders(result.columns[0]?.column ?? 'Amount');
+  return {
+    title: 'Terms used',
+    table: true,
+    rows: [
+      ['Term', 'Meaning'],
+      [
+        'Peer group',
+        result.groupColumns.length
+          ? `Claims with the same ${result.groupColumns.join(' and ')}. Each claim is compared only with its own peer group.`
+          : 'No group columns were chosen, so every claim is compared with the whole column.',
+      ],
+      [
+        `Tail score ("${h.score}")`,
+        'How far an amount sits from the middle of its peer group, measured in the group\'s usual spread. About 0 is typical; ' +
+          'a positive score is above the middle, a negative one below. Robust z uses the median and 1.4826 x MAD, classic z the ' +
+          'mean and standard deviation, IQR fences the quartiles and the interquartile range.',
+      ],
+      ['Cutoff', 'The size of tail score beyond which a claim is flagged. A higher cutoff flags fewer claims.'],
+      [`Flag ("${h.flag}")`, `${FLAG_WORDS.high} or ${FLAG_WORDS.low}: the score passed the cutoff. It means "look here", nothing more.`],
+      [`Why ("${h.reason}")`, 'The amount, the middle and spread of the group it was compared with, its score and the cutoff, in words.'],
+      ['MAD', 'Median absolute deviation: the median distance of the amounts from their median. 1.4826 x MAD matches the standard deviation for normally distributed amounts.'],
+      ['IQR', 'Interquartile range: Q3 - Q1, the width of the middle half of the amounts.'],
+      [STATUS_HEADER, 'Where the follow-up stands (see "Review statuses" below). Kept with its claim when the sheet is scored again.'],
+      [NOTE_HEADER, 'The reviewer\'s own note on the claim, kept like the status.'],
+    ],
   };
 }
 

@@ -53,6 +53,9 @@ export function resultHeaders(valueColumn: string): { score: string; flag: strin
   };
 }
 
+/** One line for places with little room (beside a live count); the full CAUTION is a click or a scroll away. */
+export const CAUTION_SHORT = 'A flag means "look here", not misconduct: a flagged claim is only unusual for its peer group.';
+
 /** Shown wherever results are shown. */
 export const CAUTION =
   'A flag means "look here", not misconduct. A flagged claim is only unusual for its peer group; ' +

@@ -75,6 +75,8 @@ export interface RunLogEntry {
   readonly cutoff: number;
   readonly rowsScored: number;
   readonly flagged: number;
+  /** The method's default cutoff (a first run's "previous cutoff" in the log). */
+  readonly defaultCutoff: number;
 }
 
 export interface Plan {

@@ -89,3 +89,35 @@ function fmtQ(s: GroupStats, which: 'q1' | 'q3'): string {
   const v = s[which];
   return v === null ? 'n/a' : formatNumber(v);
 }
+
+/**
+ * The same result in a few words for a cell (the "why" column), e.g. `6.2 robust z above median
+ * 212.00` or `not scored: blank cell`; the full sentence is `explainRow` (the pane shows it). At
+ * most about 60 characters for ordinary amounts. O(1) per row.
+ */
+export function explainRowShort(result: ScoreResult, col: ColumnScores, row: number): string {
+  if (!(row >= 0 && row < col.scores.length) || !Number.isInteger(row)) return 'outside the table';
+  const g = col.groups[col.groupOf[row]];
+  const e = col.exclusion[row];
+  if (e !== 0) return `not scored: ${EXCLUSION_LABELS[EXCLUSION_REASONS[e - 1]]}`;
+  const pop = col.population[row];
+  if (pop === 0) {
+    return g.fallbacks.includes('small-skipped') || g.fallbacks.includes('small-pooled')
+      ? `not scored: group of ${g.n} (< ${result.options.minGroupSize})`
+      : 'not scored: no spread to measure by';
+  }
+  const stats: GroupStats = pop === 2 ? col.pooled : g;
+  const vsColumn = pop === 2 ? ' (whole column)' : '';
+  const z = col.scores[row];
+  const log = col.logScale;
+  const centre = (c: number | null): string => (c === null ? 'n/a' : formatNumber(log ? Math.exp(c) : c));
+  if (col.method === 'iqr') {
+    if (z > 0) return `${formatScore(z)} IQRs above upper fence ${stats.upper === null ? 'n/a' : formatNumber(stats.upper)}${vsColumn}`;
+    if (z < 0) return `${formatScore(-z)} IQRs below lower fence ${stats.lower === null ? 'n/a' : formatNumber(stats.lower)}${vsColumn}`;
+    return `within the fences${vsColumn}`;
+  }
+  const robust = col.method === 'robust';
+  const centreName = robust ? 'median' : 'mean';
+  if (z === 0) return `at the ${centreName}${vsColumn}`;
+  return `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'z'} ${z > 0 ? 'above' : 'below'} ${centreName} ${centre(stats.center)}${vsColumn}`;
+}

@@ -1,4 +1,4 @@
-import { Button, MessageBar, MessageBarActions, MessageBarBody, MessageBarTitle, Text } from '@fluentui/react-components';
+import { Text } from '@fluentui/react-components';
 import type { WorkbookLayer } from '../workbook/api.js';
 import { ChartSection } from './components/ChartSection.js';
 import { ManageSection } from './components/ManageSection.js';
@@ -7,40 +7,7 @@ import { ReviewSection } from './components/ReviewSection.js';
 import { RunSection } from './components/RunSection.js';
 import { usePaneStyles } from './components/styles.js';
 import { TableSection } from './components/TableSection.js';
-import { errorText } from './messages.js';
 import { usePaneState, type PaneModel } from './usePaneState.js';
-
-function Messages({ model }: { model: PaneModel }) {
-  const { state, actions } = model;
-  if (state.error) {
-    const t = errorText(state.error);
-    return (
-      <MessageBar intent="warning" layout="multiline" data-testid="error" role="alert">
-        <MessageBarBody>
-          <MessageBarTitle>{t.title}</MessageBarTitle> {t.message} {t.next}
-        </MessageBarBody>
-        <MessageBarActions>
-          <Button size="small" onClick={actions.dismiss}>
-            OK
-          </Button>
-        </MessageBarActions>
-      </MessageBar>
-    );
-  }
-  if (state.notice) {
-    return (
-      <MessageBar intent="info" layout="multiline" data-testid="notice">
-        <MessageBarBody>{state.notice}</MessageBarBody>
-        <MessageBarActions>
-          <Button size="small" onClick={actions.dismiss}>
-            OK
-          </Button>
-        </MessageBarActions>
-      </MessageBar>
-    );
-  }
-  return null;
-}
 
 /** The pane's screens, rendered from the model only. */
 export function PaneView({ model }: { model: PaneModel }) {
@@ -55,7 +22,6 @@ export function PaneView({ model }: { model: PaneModel }) {
         </h1>
         <Text className={s.muted}>Find claims that are unusual for their peer group, and follow them up in place.</Text>
       </header>
-      <Messages model={model} />
       <TableSection model={model} />
       <MethodSection model={model} />
       <ChartSection model={model} />

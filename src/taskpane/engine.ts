@@ -6,7 +6,7 @@
 import { describeDecimal } from '../report/decimal.js';
 import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
-import { defaultCutoff, describeCutoff, oneInN } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, oneInN, quantile, sampleStandardDeviation } from '../scoring/index.js';
 import { scoreColumns } from '../pipeline/run.js';
 import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
 
@@ -153,4 +153,111 @@ export function chartFor(data: PreviewData, s: RunSettings, column: string, grou
     classic = lineOf(cc.groups[0] ?? cc.pooled, cc.flaggedRows, 'classic', classicCut);
   }
   return { column, group, n: values.length, values, logScale: s.logScale, pooled, robust, classic };
+}
+
+/** Largest number of points drawn in the follow-up view's strip (evenly spaced order statistics). */
+export const STRIP_POINTS = 240;
+
+export interface ClaimContext {
+  readonly column: string;
+  readonly value: number | null;
+  readonly score: number | null;
+  readonly flagged: boolean;
+  /** The full explanation, in the words the "why" column uses. */
+  readonly reason: string;
+  /** What the claim was compared with: its group's label, or the whole column. */
+  readonly against: string;
+  readonly pooled: boolean;
+  readonly n: number;
+  readonly centreName: string;
+  readonly centre: number | null;
+  readonly spreadName: string;
+  readonly spread: number | null;
+  readonly lower: number | null;
+  readonly upper: number | null;
+  /** How many amounts of the population are at or above this one (1 = the largest). */
+  readonly rankFromTop: number | null;
+  /** Sorted sample of the population's amounts for the strip (at most STRIP_POINTS). */
+  readonly strip: readonly number[];
+}
+
+/**
+ * The follow-up view's context of one claim: its explanation, the centre and spread of the
+ * population it was compared with (in the claim's own units, computed from the amounts: median and
+ * 1.4826 x MAD for robust z, mean and SD for classic z, median and IQR for the fence methods), its bounds,
+ * and a sorted sample for the strip. O(rows) for the group scan plus O(n log n) for its sort.
+ */
+export function claimContext(result: ScoreResult, columnIndex: number, row: number): ClaimContext | null {
+  const col = result.columns[columnIndex];
+  if (!col || !Number.isInteger(row) || row < 0 || row >= col.values.length) return null;
+  const reason = explainRow(result, col, row);
+  const pop = col.population[row];
+  const gi = col.groupOf[row];
+  const g = col.groups[gi];
+  const pooled = pop === 2;
+  const stats = pooled ? col.pooled : g;
+  const values: number[] = [];
+  for (let r = 0; r < col.values.length; r++) {
+    const v = col.values[r];
+    if (Number.isNaN(v)) continue;
+    if (pooled || col.groupOf[r] === gi) values.push(v);
+  }
+  values.sort((a, b) => a - b);
+  const v = col.values[row];
+  const value = Number.isNaN(v) ? null : v;
+  const n = values.length;
+  const fin = (x: number) => (Number.isFinite(x) ? x : null);
+  let centreName = 'median';
+  let spreadName = '1.4826 × MAD';
+  let centre: number | null = null;
+  let spread: number | null = null;
+  if (n > 0) {
+    if (col.method === 'classic') {
+      centreName = 'mean';
+      spreadName = 'SD';
+      centre = fin(mean(values));
+      spread = n > 1 ? fin(sampleStandardDeviation(values)) : null;
+    } else if (col.method !== 'robust') {
+      spreadName = 'IQR';
+      centre = fin(median(values));
+      spread = fin(quantile(values, 0.75) - quantile(values, 0.25));
+    } else {
+      centre = fin(median(values));
+      spread = fin(mad(values, MAD_NORMAL_CONSTANT));
+    }
+  }
+  let rankFromTop: number | null = null;
+  if (value !== null && n > 0) {
+    let below = 0;
+    while (below < n && values[below] < value) below++;
+    rankFromTop = n - below;
+  }
+  const strip: number[] = [];
+  if (n <= STRIP_POINTS) strip.push(...values);
+  else for (let i = 0; i < STRIP_POINTS; i++) strip.push(values[Math.round((i * (n - 1)) / (STRIP_POINTS - 1))]);
+  const score = col.scores[row];
+  return {
+    column: col.column,
+    value,
+    score: Number.isFinite(score) ? score : null,
+    flagged: col.flagged[row] === 1,
+    reason,
+    against: pooled || result.groupColumns.length === 0 ? `the whole column "${col.column}"` : `peer group ${g.label}`,
+    pooled,
+    n,
+    centreName,
+    centre,
+    spreadName,
+    spread,
+    lower: stats.lower,
+    upper: stats.upper,
+    rankFromTop,
+    strip,
+  };
+}
+
+/** The value column a claim is followed up on: the first one that flags it, else the first. */
+export function followColumn(result: ScoreResult, row: number): number {
+  const i = result.columns.findIndex((c) => c.flagged[row] === 1);
+  return i >= 0 ? i : 0;
 }

@@ -17,7 +17,8 @@ const TITLES: Record<string, { title: string; next: string }> = {
 
 export function errorText(e: PaneError): { title: string; message: string; next: string } {
   const known = TITLES[e.code];
-  if (known) return { title: known.title, message: e.message, next: known.next };
+  // A message that already says what to click or select needs no second instruction.
+  if (known) return { title: known.title, message: e.message, next: /\b(click|select)\b[^.]*\b(then|and)\b/i.test(e.message) ? '' : known.next };
   if (e.code.startsWith('office:')) {
     return { title: 'Excel refused the request', message: e.message, next: 'Close any open cell edit (press Esc), then try again.' };
   }

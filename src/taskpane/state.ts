@@ -4,11 +4,15 @@
  */
 import type { MethodId } from '../scoring/types.js';
 import { DEFAULT_OPTIONS } from '../scoring/types.js';
+import { REVIEW_STATUSES, statusLabel } from '../report/style.js';
+import type { ReviewStatus } from '../report/types.js';
 import type {
+  ClaimRecord,
   DetectedColumn,
   DetectedTable,
   Exception,
   PreviewData,
+  ReviewPrefs,
   RunProgress,
   RunSettings,
   RunSummary,
@@ -18,10 +22,34 @@ import { methodDefaultCutoff } from './engine.js';
 
 export type Busy = null | 'detecting' | 'running' | 'marking' | 'removing' | 'loading';
 
+/** The pane's sections: each can fold, and a message shows in the section whose control caused it. */
+export const AREAS = ['table', 'method', 'chart', 'run', 'review', 'manage'] as const;
+export type Area = (typeof AREAS)[number];
+
+/** Orders of the follow-up list. */
+export type ReviewOrder = 'score' | 'group' | 'sheet';
+/** Status filters of the follow-up list: all, not finished, one status (by id), or no status. */
+export type ReviewFilter = 'all' | 'unfinished' | 'none' | ReviewStatus['id'];
+
 export interface PaneError {
   /** TailmarkError code, or 'unexpected'. */
   readonly code: string;
   readonly message: string;
+  /** The section whose action failed (the message shows there). */
+  readonly area?: Area;
+}
+
+export interface PaneNotice {
+  readonly text: string;
+  readonly area: Area;
+}
+
+/** What a pending move is waiting for: the reviewer's answer about an unsaved status or note. */
+export interface PendingMove {
+  /** Data row the reviewer asked to go to. */
+  readonly row: number;
+  /** True when the request came from a selection in the sheet (no need to select the row again). */
+  readonly fromSheet: boolean;
 }
 
 export interface PaneState {
@@ -37,14 +65,25 @@ export interface PaneState {
   readonly chartColumn: string | null;
   /** Text in the "I can review N claims" field. */
   readonly budget: string;
+  /** The budget (claims) that set the current cutoff, until the cutoff is changed another way. */
+  readonly budgetUsed: number | null;
+  /** Optional reason the reviewer gives for a cutoff other than the saved one (goes to the log). */
+  readonly cutoffReason: string;
   readonly busy: Busy;
   readonly progress: RunProgress | null;
   /** Progress shows only once a run has taken longer than a moment. */
   readonly showProgress: boolean;
   readonly summary: RunSummary | null;
   readonly exceptions: readonly Exception[];
-  /** Index into `exceptions` of the claim under review. */
-  readonly current: number;
+  /** Data row of the claim under review (an exception, or any row picked in the sheet); null = none. */
+  readonly currentRow: number | null;
+  readonly order: ReviewOrder;
+  readonly filter: ReviewFilter;
+  /** A move held back because the drafts are unsaved. */
+  readonly pending: PendingMove | null;
+  /** The current claim as the sheet shows it (null while loading). */
+  readonly claim: ClaimRecord | null;
+  readonly prefs: ReviewPrefs;
   /** Data rows ticked for a bulk mark. */
   readonly checked: readonly number[];
   readonly statusDraft: string;
@@ -52,8 +91,11 @@ export interface PaneState {
   /** The reviewer has edited the drafts since they were loaded: a refresh must not overwrite them. */
   readonly draftDirty: boolean;
   readonly error: PaneError | null;
-  readonly notice: string | null;
+  readonly notice: PaneNotice | null;
   readonly confirmRemove: boolean;
+  readonly folded: readonly Area[];
+  /** Show every peer group in the run summary, not only those that matter. */
+  readonly allGroups: boolean;
 }
 
 export const initialState: PaneState = {
@@ -65,12 +107,19 @@ export const initialState: PaneState = {
   chartGroup: null,
   chartColumn: null,
   budget: '',
+  budgetUsed: null,
+  cutoffReason: '',
   busy: 'detecting',
   progress: null,
   showProgress: false,
   summary: null,
   exceptions: [],
-  current: 0,
+  currentRow: null,
+  order: 'score',
+  filter: 'all',
+  pending: null,
+  claim: null,
+  prefs: { reviewer: null, detailColumns: null },
   checked: [],
   statusDraft: '',
   noteDraft: '',
@@ -78,31 +127,42 @@ export const initialState: PaneState = {
   error: null,
   notice: null,
   confirmRemove: false,
+  folded: [],
+  allGroups: false,
 };
 
 export type Action =
   | { readonly type: 'busy'; readonly busy: Busy }
   | { readonly type: 'detected'; readonly table: DetectedTable; readonly saved: RunSettings | null }
-  | { readonly type: 'failed'; readonly error: unknown }
+  | { readonly type: 'failed'; readonly error: unknown; readonly area?: Area }
   | { readonly type: 'settings'; readonly patch: Partial<RunSettings> }
   | { readonly type: 'preview-loading' }
   | { readonly type: 'preview-loaded'; readonly key: string; readonly data: PreviewData }
   | { readonly type: 'chart'; readonly group?: string | null; readonly column?: string | null }
   | { readonly type: 'budget'; readonly text: string }
+  | { readonly type: 'budget-applied'; readonly cutoff: number; readonly claims: number }
+  | { readonly type: 'cutoff-reason'; readonly text: string }
   | { readonly type: 'run-start' }
   | { readonly type: 'run-progress'; readonly progress: RunProgress }
   | { readonly type: 'show-progress' }
   | { readonly type: 'run-done'; readonly summary: RunSummary; readonly settings: RunSettings }
   | { readonly type: 'exceptions'; readonly list: readonly Exception[]; readonly keepRow?: number | null }
-  | { readonly type: 'move'; readonly delta: number }
-  | { readonly type: 'goto'; readonly index: number }
+  | { readonly type: 'goto'; readonly row: number; readonly fromSheet?: boolean; readonly force?: boolean }
+  | { readonly type: 'pending-done' }
+  | { readonly type: 'order'; readonly order: ReviewOrder }
+  | { readonly type: 'filter'; readonly filter: ReviewFilter }
+  | { readonly type: 'claim'; readonly claim: ClaimRecord }
+  | { readonly type: 'prefs'; readonly prefs: ReviewPrefs }
   | { readonly type: 'check'; readonly row: number; readonly on: boolean }
   | { readonly type: 'check-none' }
   | { readonly type: 'drafts'; readonly status?: string; readonly note?: string }
-  | { readonly type: 'marked'; readonly count: number }
+  | { readonly type: 'discard-drafts' }
+  | { readonly type: 'marked'; readonly count: number; readonly quiet?: boolean }
   | { readonly type: 'confirm-remove'; readonly open: boolean }
-  | { readonly type: 'removed'; readonly includeNotes: boolean }
-  | { readonly type: 'notice'; readonly text: string | null }
+  | { readonly type: 'removed'; readonly includeNotes: boolean; readonly keptMarks: number; readonly lostMarks: number }
+  | { readonly type: 'notice'; readonly text: string | null; readonly area?: Area }
+  | { readonly type: 'fold'; readonly area: Area; readonly folded: boolean }
+  | { readonly type: 'all-groups'; readonly on: boolean }
   | { readonly type: 'dismiss' };
 
 /** Turns anything thrown into what the pane shows. */
@@ -123,9 +183,14 @@ export function valueCandidates(table: DetectedTable): readonly DetectedColumn[]
   return table.columns.filter((c) => c.numericShare > 0 && c.guess !== 'empty' && c.guess !== 'date' && c.guess !== 'id');
 }
 
-/** Columns offered as group columns: keys and short text. */
-export function groupCandidates(table: DetectedTable): readonly DetectedColumn[] {
-  return table.columns.filter((c) => c.guess !== 'empty' && c.guess !== 'amount' && c.guess !== 'date' && c.guess !== 'id');
+/**
+ * Columns offered as group columns: key-like columns only. Free text (notes, descriptions), dates,
+ * ids and amounts would make a group per claim; a column already chosen stays offered.
+ */
+const NOT_A_PEER_GROUP = /note|comment|descr|memo|remark|purpose|detail|reason|date|time|\bday\b|when/i;
+
+export function groupCandidates(table: DetectedTable, chosen: readonly string[] = []): readonly DetectedColumn[] {
+  return table.columns.filter((c) => (c.guess === 'key' && !NOT_A_PEER_GROUP.test(c.header)) || chosen.includes(c.header));
 }
 
 /** True when every column a saved setting names is present in the table. */
@@ -170,6 +235,8 @@ export function initialSettings(table: DetectedTable, saved: RunSettings | null)
     minGroupSize: DEFAULT_OPTIONS.minGroupSize,
     smallGroups: DEFAULT_OPTIONS.smallGroups,
     decimal: 'auto',
+    reviewer: null,
+    detailColumns: null,
   };
 }
 
@@ -197,6 +264,11 @@ export function previewKey(table: DetectedTable, s: RunSettings): string {
   return JSON.stringify([table.address, table.rowCount, s.valueColumns, s.groupColumns]);
 }
 
+
+/** Statuses after which a claim's follow-up is finished. */
+export const DONE_LABELS: readonly string[] = REVIEW_STATUSES.filter((r) => r.id === 'cleared' || r.id === 'escalated').map((r) => r.label);
+export const labelOf = (id: ReviewStatus['id']): string => statusLabel(id);
+
 /** Status labels that mean the follow-up is finished. The others count as open. */
 export function isDone(status: string, doneLabels: readonly string[]): boolean {
   return doneLabels.includes(status);
@@ -208,6 +280,49 @@ export function reviewCounts(list: readonly Exception[], doneLabels: readonly st
   return { open: list.length - done, done };
 }
 
+/** Does an exception pass a status filter? `labelOf` maps a status id to its label. */
+export function passesFilter(e: Exception, filter: ReviewFilter, labelOf: (id: ReviewStatus['id']) => string, doneLabels: readonly string[]): boolean {
+  switch (filter) {
+    case 'all':
+      return true;
+    case 'unfinished':
+      return !isDone(e.status, doneLabels);
+    case 'none':
+      return e.status === '';
+    default:
+      return e.status === labelOf(filter) || (filter === 'open' && e.status === '');
+  }
+}
+
+const magnitude = (e: Exception) => (e.score === null ? -1 : Math.abs(e.score));
+
+/**
+ * The follow-up list as the reviewer asked to see it: filtered by status, then ordered by score
+ * (largest |score| first), by peer group (then score), or in sheet order. Ties keep sheet order.
+ */
+export function reviewView(
+  list: readonly Exception[],
+  order: ReviewOrder,
+  filter: ReviewFilter,
+  labelOf: (id: ReviewStatus['id']) => string,
+  doneLabels: readonly string[],
+): Exception[] {
+  const out = list.filter((e) => passesFilter(e, filter, labelOf, doneLabels));
+  const bySheet = (a: Exception, b: Exception) => a.row - b.row;
+  if (order === 'sheet') return out.sort(bySheet);
+  if (order === 'score') return out.sort((a, b) => magnitude(b) - magnitude(a) || bySheet(a, b));
+  return out.sort((a, b) => (a.group < b.group ? -1 : a.group > b.group ? 1 : 0) || magnitude(b) - magnitude(a) || bySheet(a, b));
+}
+
+/** The row after (delta > 0) or before the current one in a view, wrapping; null for an empty view. */
+export function stepRow(view: readonly Exception[], currentRow: number | null, delta: number): number | null {
+  if (view.length === 0) return null;
+  const at = currentRow === null ? -1 : view.findIndex((e) => e.row === currentRow);
+  if (at < 0) return delta >= 0 ? view[0].row : view[view.length - 1].row;
+  const n = view.length;
+  return view[(((at + delta) % n) + n) % n].row;
+}
+
 function sameTable(a: DetectedTable | null, b: DetectedTable): boolean {
   if (!a) return false;
   if (a.sheetName !== b.sheetName) return false;
@@ -217,15 +332,26 @@ function sameTable(a: DetectedTable | null, b: DetectedTable): boolean {
   return hb.startsWith(ha) || ha.startsWith(hb);
 }
 
-function clampIndex(i: number, n: number): number {
-  if (n === 0) return 0;
-  return ((i % n) + n) % n;
-}
-
-function draftsFor(list: readonly Exception[], index: number): { statusDraft: string; noteDraft: string; draftDirty: false } {
-  const e = list[index];
+function draftsFor(list: readonly Exception[], row: number | null): { statusDraft: string; noteDraft: string; draftDirty: false } {
+  const e = row === null ? undefined : list.find((x) => x.row === row);
   return { statusDraft: e ? e.status : '', noteDraft: e ? e.note : '', draftDirty: false };
 }
+
+/** The section a failure belongs to, from what the pane was doing. */
+function areaOf(busy: Busy): Area {
+  switch (busy) {
+    case 'running':
+      return 'run';
+    case 'marking':
+      return 'review';
+    case 'removing':
+      return 'manage';
+    default:
+      return 'table';
+  }
+}
+
+const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 
 export function reducer(state: PaneState, action: Action): PaneState {
   switch (action.type) {
@@ -240,20 +366,33 @@ export function reducer(state: PaneState, action: Action): PaneState {
         saved: action.saved,
         settings,
         busy: state.busy === 'detecting' ? null : state.busy,
-        error: null,
-        ...(keep ? {} : { chartGroup: null, chartColumn: null, preview: null, summary: null, exceptions: [], current: 0, checked: [] }),
+        error: state.error?.area === 'table' ? null : state.error,
+        ...(keep
+          ? {}
+          : { chartGroup: null, chartColumn: null, preview: null, summary: null, exceptions: [], currentRow: null, claim: null, checked: [], pending: null }),
       };
     }
     case 'failed': {
       const error = toPaneError(action.error);
+      const area = action.area ?? areaOf(state.busy);
       if (error.code === 'cancelled') {
-        return { ...state, busy: null, progress: null, showProgress: false, notice: 'Run cancelled. The workbook is as it was before the run.' };
+        return {
+          ...state,
+          busy: null,
+          progress: null,
+          showProgress: false,
+          notice: { area: 'run', text: 'Run cancelled. The workbook is as it was before the run.' },
+        };
       }
-      return { ...state, busy: null, progress: null, showProgress: false, previewLoading: false, error };
+      return { ...state, busy: null, progress: null, showProgress: false, previewLoading: false, error: { ...error, area } };
     }
-    case 'settings':
+    case 'settings': {
       if (!state.settings) return state;
-      return { ...state, settings: patchSettings(state.settings, action.patch), notice: null };
+      const next = patchSettings(state.settings, action.patch);
+      // A cutoff set any other way than from the budget is no longer "from a review budget".
+      const budgetUsed = action.patch.cutoff !== undefined || next.method !== state.settings.method ? null : state.budgetUsed;
+      return { ...state, settings: next, budgetUsed, notice: state.notice?.area === 'method' ? null : state.notice };
+    }
     case 'preview-loading':
       return { ...state, previewLoading: true };
     case 'preview-loaded':
@@ -266,6 +405,11 @@ export function reducer(state: PaneState, action: Action): PaneState {
       };
     case 'budget':
       return { ...state, budget: action.text };
+    case 'budget-applied':
+      if (!state.settings) return state;
+      return { ...state, settings: patchSettings(state.settings, { cutoff: action.cutoff }), budgetUsed: action.claims, notice: null };
+    case 'cutoff-reason':
+      return { ...state, cutoffReason: action.text };
     case 'run-start':
       return { ...state, busy: 'running', progress: null, showProgress: false, error: null, notice: null, confirmRemove: false };
     case 'run-progress':
@@ -283,29 +427,48 @@ export function reducer(state: PaneState, action: Action): PaneState {
         settings: action.settings,
         table: state.table ? { ...state.table, hasResults: true } : state.table,
         notice: null,
+        cutoffReason: '',
+        allGroups: false,
+        // After a run the reviewer's work is the follow-up: fold the choices away.
+        folded: [...new Set<Area>([...state.folded, 'table', 'method', 'chart'])],
       };
     case 'exceptions': {
       const list = action.list;
-      let current = clampIndex(state.current, list.length);
-      if (action.keepRow !== undefined && action.keepRow !== null) {
-        const at = list.findIndex((e) => e.row === action.keepRow);
-        if (at >= 0) current = at;
-      }
       const rows = new Set(list.map((e) => e.row));
-      const sameClaim = list[current]?.row === state.exceptions[state.current]?.row;
-      const drafts = state.draftDirty && sameClaim ? {} : draftsFor(list, current);
-      return { ...state, exceptions: list, current, checked: state.checked.filter((r) => rows.has(r)), ...drafts };
-    }
-    case 'move': {
-      if (state.exceptions.length === 0) return state;
-      const current = clampIndex(state.current + action.delta, state.exceptions.length);
-      return { ...state, current, ...draftsFor(state.exceptions, current) };
+      let currentRow = state.currentRow;
+      if (action.keepRow !== undefined && action.keepRow !== null) currentRow = action.keepRow;
+      else if (currentRow !== null && !rows.has(currentRow) && state.claim?.row !== currentRow) currentRow = null;
+      if (currentRow === null && list.length > 0) {
+        // Start with the first claim of the list as the reviewer orders it (worst first by default).
+        const first = reviewView(list, state.order, state.filter, labelOf, DONE_LABELS)[0] ?? list[0];
+        currentRow = first.row;
+      }
+      const sameClaim = currentRow === state.currentRow;
+      const drafts = state.draftDirty && sameClaim ? {} : draftsFor(list, currentRow);
+      return {
+        ...state,
+        exceptions: list,
+        currentRow,
+        claim: sameClaim ? state.claim : null,
+        checked: state.checked.filter((r) => rows.has(r)),
+        ...drafts,
+      };
     }
     case 'goto': {
-      if (state.exceptions.length === 0) return state;
-      const current = clampIndex(action.index, state.exceptions.length);
-      return { ...state, current, ...draftsFor(state.exceptions, current) };
+      if (action.row === state.currentRow) return { ...state, pending: null };
+      if (state.draftDirty && !action.force) return { ...state, pending: { row: action.row, fromSheet: action.fromSheet === true } };
+      return { ...state, currentRow: action.row, claim: null, pending: null, ...draftsFor(state.exceptions, action.row) };
     }
+    case 'pending-done':
+      return { ...state, pending: null };
+    case 'order':
+      return { ...state, order: action.order };
+    case 'filter':
+      return { ...state, filter: action.filter };
+    case 'claim':
+      return action.claim.row === state.currentRow ? { ...state, claim: action.claim } : state;
+    case 'prefs':
+      return { ...state, prefs: action.prefs };
     case 'check': {
       const set = new Set(state.checked);
       if (action.on) set.add(action.row);
@@ -321,26 +484,49 @@ export function reducer(state: PaneState, action: Action): PaneState {
         noteDraft: action.note !== undefined ? action.note : state.noteDraft,
         draftDirty: true,
       };
+    case 'discard-drafts':
+      return { ...state, ...draftsFor(state.exceptions, state.currentRow) };
     case 'marked':
-      return { ...state, busy: null, checked: [], draftDirty: false, notice: `Saved the mark on ${action.count} claim${action.count === 1 ? '' : 's'}.` };
+      return {
+        ...state,
+        busy: null,
+        checked: [],
+        draftDirty: false,
+        notice: action.quiet ? state.notice : { area: 'review', text: `Saved the mark on ${plural(action.count, 'claim')}.` },
+      };
     case 'confirm-remove':
       return { ...state, confirmRemove: action.open };
-    case 'removed':
+    case 'removed': {
+      const parts = [
+        action.keptMarks > 0
+          ? `Removed the score, flag and reason columns and the highlighting. The status and note columns stay as plain cells (${plural(action.keptMarks, 'marked claim')}); a later run picks them up again.`
+          : 'Removed the result columns and the highlighting.',
+        action.lostMarks > 0 ? `${plural(action.lostMarks, 'status or note', 'statuses and notes')} were deleted with them.` : '',
+        action.includeNotes ? 'The notes and log sheets were deleted.' : 'The notes and log sheets are kept.',
+        'Your claim data was not changed.',
+      ];
       return {
         ...state,
         busy: null,
         confirmRemove: false,
         summary: null,
         exceptions: [],
-        current: 0,
+        currentRow: null,
+        claim: null,
+        pending: null,
         checked: [],
         table: state.table ? { ...state.table, hasResults: false } : state.table,
-        notice: action.includeNotes
-          ? 'Removed the result columns, highlighting and the notes sheet. Your own cells are untouched.'
-          : 'Removed the result columns and highlighting. The notes sheet is kept. Your own cells are untouched.',
+        notice: { area: 'manage', text: parts.filter(Boolean).join(' ') },
       };
+    }
     case 'notice':
-      return { ...state, notice: action.text };
+      return { ...state, notice: action.text === null ? null : { text: action.text, area: action.area ?? 'table' } };
+    case 'fold': {
+      const rest = state.folded.filter((a) => a !== action.area);
+      return { ...state, folded: action.folded ? [...rest, action.area] : rest };
+    }
+    case 'all-groups':
+      return { ...state, allGroups: action.on };
     case 'dismiss':
       return { ...state, error: null, notice: null };
   }
@@ -349,6 +535,12 @@ export function reducer(state: PaneState, action: Action): PaneState {
 /** The rows a mark applies to: the ticked ones, else the claim under review. */
 export function rowsToMark(state: PaneState): readonly number[] {
   if (state.checked.length > 0) return state.checked;
-  const e = state.exceptions[state.current];
-  return e ? [e.row] : [];
+  return state.currentRow === null ? [] : [state.currentRow];
+}
+
+/** Claims that carry a reviewer's mark (a status other than the default, or a note). */
+export function markedCount(list: readonly Exception[], defaultLabel: string): number {
+  let n = 0;
+  for (const e of list) if ((e.status !== '' && e.status !== defaultLabel) || e.note !== '') n++;
+  return n;
 }

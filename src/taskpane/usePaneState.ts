@@ -3,16 +3,33 @@
  * injected `WorkbookLayer`; components receive `PaneModel` and only render it.
  */
 import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef } from 'react';
-import type { RunSettings, WorkbookLayer } from '../workbook/api.js';
+import type { Exception, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
 import {
   budgetCutoff,
   chartFor,
+  claimContext,
+  followColumn,
   previewOf,
+  scorePreview,
   summarisePreview,
   type ChartData,
+  type ClaimContext,
   type PreviewSummary,
 } from './engine.js';
-import { initialState, previewKey, reducer, rowsToMark, type PaneState } from './state.js';
+import {
+  DONE_LABELS,
+  initialState,
+  labelOf,
+  previewKey,
+  reducer,
+  reviewView,
+  rowsToMark,
+  stepRow,
+  type Area,
+  type PaneState,
+  type ReviewFilter,
+  type ReviewOrder,
+} from './state.js';
 
 /** How long a run may take before the progress bar appears, ms. */
 export const PROGRESS_DELAY_MS = 300;
@@ -29,12 +46,23 @@ export interface PaneActions {
   readonly rerunSaved: () => void;
   readonly cancel: () => void;
   readonly move: (delta: number) => void;
-  readonly goTo: (index: number) => void;
+  /** Show a claim (any data row); held back while the drafts are unsaved. */
+  readonly goToRow: (row: number) => void;
+  /** Answer to the unsaved-changes question of a held-back move. */
+  readonly resolvePending: (answer: 'save' | 'discard' | 'stay') => void;
+  readonly setOrder: (order: ReviewOrder) => void;
+  readonly setFilter: (filter: ReviewFilter) => void;
+  readonly setPrefs: (prefs: ReviewPrefs) => void;
   readonly check: (row: number, on: boolean) => void;
   readonly setDrafts: (d: { status?: string; note?: string }) => void;
   readonly saveMark: () => void;
+  /** Save the current claim's status and note, then show the next claim of the list. */
+  readonly saveAndNext: () => void;
+  readonly setCutoffReason: (text: string) => void;
   readonly askRemove: (open: boolean) => void;
-  readonly remove: (includeNotes: boolean) => void;
+  readonly remove: (includeNotes: boolean, keepMarks: boolean) => void;
+  readonly fold: (area: Area, folded: boolean) => void;
+  readonly showAllGroups: (on: boolean) => void;
   readonly dismiss: () => void;
 }
 
@@ -46,7 +74,16 @@ export interface PaneModel {
   readonly chart: ChartData | null;
   /** Groups offered in the chart picker, most flags first. */
   readonly chartGroups: readonly string[];
+  /** The follow-up list as ordered and filtered. */
+  readonly view: readonly Exception[];
+  /** The claim under review in its peer group (null when the data read for the pane is not the last run's). */
+  readonly context: ClaimContext | null;
   readonly actions: PaneActions;
+}
+
+/** Same columns as the last run, so the pane's own read of the data lines up with the sheet's results. */
+function sameColumns(a: RunSettings, b: RunSettings): boolean {
+  return JSON.stringify([a.valueColumns, a.groupColumns]) === JSON.stringify([b.valueColumns, b.groupColumns]);
 }
 
 export function usePaneState(layer: WorkbookLayer): PaneModel {
@@ -73,7 +110,12 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
         const [table, saved] = await Promise.all([layer.detect(), layer.loadSettings()]);
         if (!mounted.current) return;
         dispatch({ type: 'detected', table, saved });
-        if (table.hasResults) await loadExceptions(stateRef.current.exceptions[stateRef.current.current]?.row ?? null);
+        if (table.hasResults) {
+          await loadExceptions(stateRef.current.currentRow);
+          // A claim row selected in the sheet is shown in the follow-up view.
+          const row = table.selectedRow;
+          if (quiet && row !== null && row !== undefined && mounted.current) dispatch({ type: 'goto', row, fromSheet: true });
+        }
       } catch (error) {
         if (mounted.current) dispatch({ type: 'failed', error });
       }
@@ -121,7 +163,7 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     const onFocus = () => {
       const st = stateRef.current;
       if (st.busy === null && st.table?.hasResults) {
-        loadExceptions(st.exceptions[st.current]?.row ?? null).catch((error: unknown) => dispatch({ type: 'failed', error }));
+        loadExceptions(st.currentRow).catch((error: unknown) => dispatch({ type: 'failed', error, area: 'review' }));
       }
     };
     window.addEventListener('focus', onFocus);
@@ -180,15 +222,19 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   }, [data, settings, chartGroups, state.chartGroup, state.chartColumn]);
 
   const runWith = useCallback(
-    async (chosen: RunSettings) => {
+    async (picked: RunSettings) => {
       const table = stateRef.current.table;
       if (!table) return;
+      // The reviewer's name and follow-up columns travel with the run settings (kept in the workbook).
+      const { prefs } = stateRef.current;
+      const chosen: RunSettings = { ...picked, reviewer: prefs.reviewer, detailColumns: prefs.detailColumns };
       const controller = new AbortController();
       abortRef.current = controller;
       dispatch({ type: 'run-start' });
       const timer = setTimeout(() => dispatch({ type: 'show-progress' }), PROGRESS_DELAY_MS);
       try {
-        const summary = await layer.run(table, chosen, (progress) => dispatch({ type: 'run-progress', progress }), controller.signal);
+        const record = { cutoffReason: stateRef.current.cutoffReason, budget: stateRef.current.budgetUsed };
+        const summary = await layer.run(table, chosen, (progress) => dispatch({ type: 'run-progress', progress }), controller.signal, record);
         clearTimeout(timer);
         if (!mounted.current) return;
         dispatch({ type: 'run-done', summary, settings: chosen });
@@ -221,6 +267,87 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer],
   );
 
+  // The reviewer's kept choices (name or initials, the follow-up view's columns).
+  useEffect(() => {
+    layer
+      .loadReviewPrefs()
+      .then((prefs) => {
+        if (mounted.current) dispatch({ type: 'prefs', prefs });
+      })
+      .catch((error: unknown) => {
+        if (mounted.current) dispatch({ type: 'failed', error, area: 'review' });
+      });
+  }, [layer]);
+
+  // The claim under review as the sheet shows it.
+  const hasResults = state.table?.hasResults === true;
+  useEffect(() => {
+    const row = state.currentRow;
+    if (row === null || !hasResults) return;
+    let stale = false;
+    layer
+      .readClaim(row)
+      .then((claim) => {
+        if (!stale && mounted.current) dispatch({ type: 'claim', claim });
+      })
+      .catch((error: unknown) => {
+        if (!stale && mounted.current) dispatch({ type: 'failed', error, area: 'review' });
+      });
+    return () => {
+      stale = true;
+    };
+  }, [layer, state.currentRow, hasResults]);
+
+  const view = useMemo(() => reviewView(state.exceptions, state.order, state.filter, labelOf, DONE_LABELS), [state.exceptions, state.order, state.filter]);
+
+  // The last run's scores, recomputed from the pane's read of the same columns (for the claim's context).
+  const saved = state.saved;
+  const reviewScored = useMemo(() => {
+    if (!data || !saved || !state.settings || !sameColumns(saved, state.settings)) return null;
+    if (data.valueColumns.length !== saved.valueColumns.length) return null;
+    try {
+      return scorePreview(data, saved);
+    } catch {
+      return null;
+    }
+  }, [data, saved, state.settings]);
+
+  const context = useMemo(() => {
+    const row = state.currentRow;
+    if (!reviewScored || row === null || row >= reviewScored.rowCount) return null;
+    return claimContext(reviewScored, followColumn(reviewScored, row), row);
+  }, [reviewScored, state.currentRow]);
+
+  const viewRef = useRef(view);
+  viewRef.current = view;
+
+  /** Show a row (after any unsaved-drafts question); selects it in the sheet unless it came from there. */
+  const show = useCallback(
+    (row: number, fromSheet: boolean) => {
+      const st = stateRef.current;
+      if (row === st.currentRow) return;
+      dispatch({ type: 'goto', row, fromSheet });
+      if (!st.draftDirty && !fromSheet) selectRow(row);
+    },
+    [selectRow],
+  );
+
+  const save = useCallback(
+    async (rows: readonly number[], status: string, note: string, keepRow: number | null, quiet: boolean): Promise<boolean> => {
+      dispatch({ type: 'busy', busy: 'marking' });
+      try {
+        await layer.mark(rows, status || null, note);
+        dispatch({ type: 'marked', count: rows.length, quiet });
+        await loadExceptions(keepRow);
+        return true;
+      } catch (error) {
+        dispatch({ type: 'failed', error, area: 'review' });
+        return false;
+      }
+    },
+    [layer, loadExceptions],
+  );
+
   const actions = useMemo<PaneActions>(
     () => ({
       refresh: () => void detect(false),
@@ -229,26 +356,29 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
       setBudget: (text) => dispatch({ type: 'budget', text }),
       applyBudget: () => {
         const s = stateRef.current.settings;
-        const n = Number(stateRef.current.budget.trim());
+        const text = stateRef.current.budget.trim();
+        const n = Number(text);
         if (!s || !scored) return;
-        if (!Number.isInteger(n) || n < 0) {
-          dispatch({ type: 'notice', text: 'Enter how many claims you can review as a whole number, e.g. 25.' });
+        if (text === '' || !Number.isInteger(n) || n < 1) {
+          dispatch({ type: 'notice', area: 'method', text: 'Enter how many claims you can review as a whole number of at least 1, e.g. 25.' });
           return;
         }
         const answer = budgetCutoff(scored, n);
         if (answer.kind === 'all-fit') {
           dispatch({
             type: 'notice',
+            area: 'method',
             text: `All ${answer.flaggable} claims that any cutoff could flag fit in ${n}, so the budget does not set a cutoff; it stays at ${s.cutoff}.`,
           });
           return;
         }
         if (answer.kind === 'none') {
-          dispatch({ type: 'notice', text: 'No cutoff gives that many claims with these settings.' });
+          dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
           return;
         }
-        dispatch({ type: 'settings', patch: { cutoff: answer.cutoff } });
+        dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
       },
+      setCutoffReason: (text) => dispatch({ type: 'cutoff-reason', text }),
       run: () => {
         const s = stateRef.current.settings;
         if (s) void runWith(s);
@@ -258,31 +388,49 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
           try {
             const saved = await layer.loadSettings();
             if (!saved) {
-              dispatch({ type: 'notice', text: 'This workbook has no saved run yet. Choose the columns and press Run.' });
+              dispatch({ type: 'notice', area: 'run', text: 'This workbook has no saved run yet. Choose the columns and press Run.' });
               return;
             }
             dispatch({ type: 'settings', patch: saved });
             await runWith(saved);
           } catch (error) {
-            dispatch({ type: 'failed', error });
+            dispatch({ type: 'failed', error, area: 'run' });
           }
         })();
       },
       cancel: () => abortRef.current?.abort(),
       move: (delta) => {
         const st = stateRef.current;
-        if (st.exceptions.length === 0) return;
-        const n = st.exceptions.length;
-        const next = (((st.current + delta) % n) + n) % n;
-        dispatch({ type: 'goto', index: next });
-        selectRow(st.exceptions[next].row);
+        const next = stepRow(viewRef.current, st.currentRow, delta);
+        if (next !== null) show(next, false);
       },
-      goTo: (index) => {
+      goToRow: (row) => show(row, false),
+      resolvePending: (answer) => {
         const st = stateRef.current;
-        const e = st.exceptions[index];
-        if (!e) return;
-        dispatch({ type: 'goto', index });
-        selectRow(e.row);
+        const p = st.pending;
+        if (!p) return;
+        if (answer === 'stay') {
+          dispatch({ type: 'pending-done' });
+          return;
+        }
+        const go = () => {
+          dispatch({ type: 'goto', row: p.row, fromSheet: p.fromSheet, force: true });
+          if (!p.fromSheet) selectRow(p.row);
+        };
+        if (answer === 'discard') {
+          go();
+          return;
+        }
+        const rows = rowsToMark(st);
+        void save(rows, st.statusDraft, st.noteDraft, st.currentRow, true).then((ok) => {
+          if (ok) go();
+        });
+      },
+      setOrder: (order) => dispatch({ type: 'order', order }),
+      setFilter: (filter) => dispatch({ type: 'filter', filter }),
+      setPrefs: (prefs) => {
+        dispatch({ type: 'prefs', prefs });
+        layer.saveReviewPrefs(prefs).catch((error: unknown) => dispatch({ type: 'failed', error, area: 'review' }));
       },
       check: (row, on) => dispatch({ type: 'check', row, on }),
       setDrafts: (d) => dispatch({ type: 'drafts', ...d }),
@@ -290,28 +438,43 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
         const st = stateRef.current;
         const rows = rowsToMark(st);
         if (rows.length === 0) return;
-        const keepRow = st.exceptions[st.current]?.row ?? null;
-        dispatch({ type: 'busy', busy: 'marking' });
-        layer
-          .mark(rows, st.statusDraft || null, st.noteDraft)
-          .then(async () => {
-            dispatch({ type: 'marked', count: rows.length });
-            await loadExceptions(keepRow);
-          })
-          .catch((error: unknown) => dispatch({ type: 'failed', error }));
+        void save(rows, st.statusDraft, st.noteDraft, st.currentRow, false);
+      },
+      saveAndNext: () => {
+        const st = stateRef.current;
+        const row = st.currentRow;
+        if (row === null || st.busy !== null) return;
+        const rows = rowsToMark(st);
+        // The next claim as the list stands now (saving may take this one out of a filtered list).
+        const next = stepRow(viewRef.current, row, 1);
+        const last = next === null || next === row || (viewRef.current.length > 0 && viewRef.current[viewRef.current.length - 1].row === row);
+        void save(rows, st.statusDraft, st.noteDraft, last ? row : next, true).then((ok) => {
+          if (!ok) return;
+          if (last) {
+            dispatch({ type: 'notice', area: 'review', text: 'Saved. That was the last claim in this list.' });
+          } else if (next !== null) {
+            selectRow(next);
+          }
+        });
       },
       askRemove: (open) => dispatch({ type: 'confirm-remove', open }),
-      remove: (includeNotes) => {
+      remove: (includeNotes, keepMarks) => {
+        const st = stateRef.current;
+        const marks = st.exceptions.filter((e) => (e.status !== '' && e.status !== labelOf('open')) || e.note !== '').length;
         dispatch({ type: 'busy', busy: 'removing' });
         layer
-          .remove(includeNotes)
-          .then(() => dispatch({ type: 'removed', includeNotes }))
-          .catch((error: unknown) => dispatch({ type: 'failed', error }));
+          .remove(includeNotes, keepMarks)
+          .then(() =>
+            dispatch({ type: 'removed', includeNotes, keptMarks: keepMarks ? marks : 0, lostMarks: keepMarks ? 0 : marks }),
+          )
+          .catch((error: unknown) => dispatch({ type: 'failed', error, area: 'manage' }));
       },
+      fold: (area, folded) => dispatch({ type: 'fold', area, folded }),
+      showAllGroups: (on) => dispatch({ type: 'all-groups', on }),
       dismiss: () => dispatch({ type: 'dismiss' }),
     }),
-    [layer, detect, runWith, loadExceptions, scored, selectRow],
+    [layer, detect, runWith, scored, selectRow, show, save],
   );
 
-  return { state, preview, previewError, chart, chartGroups, actions };
+  return { state, preview, previewError, chart, chartGroups, view, context, actions };
 }

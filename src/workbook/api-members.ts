@@ -57,6 +57,7 @@ export const EXCEL_MEMBERS: readonly ExcelMember[] = [
   { member: 'Range.rowCount', apiSet: 'ExcelApi 1.1' },
   { member: 'Range.rowIndex', apiSet: 'ExcelApi 1.1' },
   { member: 'Range.select', apiSet: 'ExcelApi 1.1' },
+  { member: 'Range.text', apiSet: 'ExcelApi 1.1' },
   { member: 'Range.values', apiSet: 'ExcelApi 1.1' },
   { member: 'Range.valueTypes', apiSet: 'ExcelApi 1.1' },
   { member: 'Range.worksheet', apiSet: 'ExcelApi 1.1' },

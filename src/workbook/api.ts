@@ -30,10 +30,23 @@ export interface DetectedTable {
   readonly columns: readonly DetectedColumn[];
   /** True when our result columns are already present (a previous run). */
   readonly hasResults: boolean;
+  /**
+   * 0-based data row of the selection when the reviewer selected cells of one claim row inside
+   * the table (the follow-up view shows that claim); null otherwise. Optional for older callers.
+   */
+  readonly selectedRow?: number | null;
 }
 
 /** What the reviewer chose; saved in workbook.settings and offered again next period (src/pipeline/settings.ts). */
 export type RunSettings = Settings;
+
+/** What the log sheet records about a run besides its settings (the add-in's cutoff field and budget). */
+export interface RunRecord {
+  /** The reviewer's reason for a cutoff other than the last run's; empty or absent = none given. */
+  readonly cutoffReason?: string;
+  /** The review budget (claims) that set the cutoff; null or absent = set by hand. */
+  readonly budget?: number | null;
+}
 
 export interface RunProgress {
   readonly phase: 'reading' | 'scoring' | 'writing' | 'highlighting' | 'notes';
@@ -70,6 +83,24 @@ export interface Exception {
   readonly note: string;
 }
 
+/** One claim row as the sheet shows it, for the follow-up view. */
+export interface ClaimRecord {
+  /** 0-based data row. */
+  readonly row: number;
+  /** The reviewer's own columns, in sheet order, as displayed text (dates as formatted). */
+  readonly fields: readonly { readonly header: string; readonly text: string }[];
+  /** The "why" cell of each value column (as written by the last run). */
+  readonly reasons: readonly { readonly valueColumn: string; readonly text: string }[];
+}
+
+/** Review choices kept in the workbook (asked once): who marks, and which columns the follow-up view shows. */
+export interface ReviewPrefs {
+  /** Initials or name the reviewer typed; null until asked. Office gives add-ins no user identity without sign-in. */
+  readonly reviewer: string | null;
+  /** Columns shown beside each claim in the follow-up view; null = our guess. */
+  readonly detailColumns: readonly string[] | null;
+}
+
 /** Errors the pane shows: the pipeline's one user-facing error type. */
 export { TailmarkError } from '../pipeline/errors.js';
 
@@ -79,11 +110,18 @@ export interface WorkbookLayer {
   /** Read the chosen columns (for previewing cutoffs in the pane without writing). */
   readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData>;
   /** Score and write results, highlights, notes and log. Cancelling via `signal` leaves the workbook unchanged. */
-  run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal): Promise<RunSummary>;
-  /** Remove everything Tailmark added. `includeNotes` also deletes the notes sheet. */
-  remove(includeNotes: boolean): Promise<void>;
+  run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary>;
+  /**
+   * Remove everything Tailmark added. `includeNotes` also deletes the notes sheet. `keepMarks`
+   * leaves the status and note columns in place as plain cells (no dropdown, no highlighting).
+   */
+  remove(includeNotes: boolean, keepMarks?: boolean): Promise<void>;
   loadSettings(): Promise<RunSettings | null>;
   listExceptions(): Promise<readonly Exception[]>;
+  /** One claim row as displayed, for the follow-up view. */
+  readClaim(row: number): Promise<ClaimRecord>;
+  loadReviewPrefs(): Promise<ReviewPrefs>;
+  saveReviewPrefs(prefs: ReviewPrefs): Promise<void>;
   /** Select the sheet row of a data row. */
   selectRow(row: number): Promise<void>;
   /** Set the status (label) and/or note of data rows. */

@@ -63,6 +63,22 @@ const sameRect = (a: Rect, b: Rect): boolean => a.row === b.row && a.column === 
 const isBlank = (v: unknown): boolean => v === null || v === undefined || v === '';
 
 export async function detectTable(sync: Syncer): Promise<DetectedTable> {
+  const seen: { rect: Rect | null } = { rect: null };
+  const found = await detectBlock(sync, (r) => {
+    seen.rect = r;
+  });
+  const sel = seen.rect;
+  if (sel === null) return found;
+  // The claim row the reviewer selected (one row, inside the data, not the header).
+  const span = spanOf(found);
+  const inRows = sel.rowCount === 1 && sel.row > span.row && sel.row < span.row + span.rowCount;
+  const withRow: DetectedTable = { ...found, selectedRow: inRows ? sel.row - span.row - 1 : null };
+  const memo = detectMemo.get(found);
+  if (memo) detectMemo.set(withRow, memo);
+  return withRow;
+}
+
+async function detectBlock(sync: Syncer, onSelection: (r: Rect) => void): Promise<DetectedTable> {
   const wb = sync.context.workbook;
   const sel = wb.getSelectedRange();
   sel.load(['address', 'rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
@@ -92,6 +108,7 @@ export async function detectTable(sync: Syncer): Promise<DetectedTable> {
   }
   const sheetName = sheet.name;
   const selRect = rectOf(sel);
+  onSelection(selRect);
   const single = selRect.rowCount === 1 && selRect.columnCount === 1;
   const entire = selRect.rowCount === MAX_ROWS || selRect.columnCount === MAX_COLUMNS;
   if (tables.items.length > 0) {

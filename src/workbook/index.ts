@@ -8,10 +8,20 @@
  * that grows with the number of cells only.
  */
 import type { AsyncPipeline } from '../pipeline/index.js';
-import type { DetectedTable, Exception, PreviewData, RunProgress, RunSettings, RunSummary, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
-import { listExceptionRows, loadRunSettings, markRows, previewColumns, removeResults, selectDataRow } from './ops.js';
+import {
+  listExceptionRows,
+  loadReviewPrefs,
+  loadRunSettings,
+  markRows,
+  previewColumns,
+  readClaimRow,
+  removeResults,
+  saveReviewPrefs,
+  selectDataRow,
+} from './ops.js';
 import { runScoring } from './run.js';
 import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
 
@@ -128,21 +138,31 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
     readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
       return act('preview', (s) => previewColumns(s, table, settings));
     },
-    async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal): Promise<RunSummary> {
+    async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary> {
       if (signal?.aborted) throw new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
       const out = await act('run', (s) =>
         runScoring(s, table, settings, {
           now,
           ...(onProgress ? { onProgress } : {}),
           ...(signal ? { signal } : {}),
+          ...(record ? { record } : {}),
           ...(options.pipeline ? { pipeline: options.pipeline } : {}),
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
       return out.summary;
     },
-    remove(includeNotes: boolean): Promise<void> {
-      return act('remove', (s) => removeResults(s, includeNotes));
+    remove(includeNotes: boolean, keepMarks = false): Promise<void> {
+      return act('remove', (s) => removeResults(s, includeNotes, keepMarks));
+    },
+    readClaim(row: number): Promise<ClaimRecord> {
+      return act('readClaim', (s) => readClaimRow(s, row));
+    },
+    loadReviewPrefs(): Promise<ReviewPrefs> {
+      return act('loadReviewPrefs', (s) => loadReviewPrefs(s));
+    },
+    saveReviewPrefs(prefs: ReviewPrefs): Promise<void> {
+      return act('saveReviewPrefs', (s) => saveReviewPrefs(s, prefs));
     },
     loadSettings(): Promise<RunSettings | null> {
       return act('loadSettings', (s) => loadRunSettings(s));
@@ -154,7 +174,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('selectRow', (s) => selectDataRow(s, row));
     },
     mark(rows: readonly number[], status: string | null, note: string | null): Promise<void> {
-      return act('mark', (s) => markRows(s, rows, status, note));
+      return act('mark', (s) => markRows(s, rows, status, note, now()));
     },
     async onSelectionChanged(handler: () => void): Promise<() => void> {
       const runIn = options.runInContext;

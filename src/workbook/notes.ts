@@ -4,25 +4,15 @@
  * shared with the batch command); a sheet of that name without it is the user's and is never
  * touched (TailmarkError 'name-clash').
  */
-import { LOG_TITLE, PALETTE, logFormatOf, notesFormatOf, notesGrid, type NotesGrid, type PlanCell, type RunLogEntry } from '../report/index.js';
+import { PALETTE, notesFormatOf, type PlanCell } from '../report/index.js';
 
-export const LOG_SHEET_NAME = 'Tailmark log';
-export { LOG_TITLE };
-export const LOG_HEADER: readonly string[] = ['When (UTC)', 'Source', 'Method', 'Cutoff', 'Rows scored', 'Flagged'];
+export { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, notesGrid, type NotesGrid } from '../report/index.js';
 
 /** True when A1 of a notes sheet says it is ours (any host, any format version; src/report/notesSheet.ts). */
 export function isNotesMarker(v: unknown): boolean {
   return notesFormatOf(v) !== null;
 }
-export function isLogMarker(v: unknown): boolean {
-  return logFormatOf(v) !== null;
-}
 
-export { notesGrid, type NotesGrid };
-
-export function logRow(e: RunLogEntry): PlanCell[] {
-  return [e.when, e.source, e.method, e.cutoff, e.rowsScored, e.flagged];
-}
 
 /** A cell for Range.values: null stays empty (""), text is written under the text format "@". */
 export function toCellValue(v: PlanCell): string | number | boolean {

@@ -2,11 +2,13 @@
  * The other pane actions: remove, mark, listExceptions, selectRow, readForPreview, loadSettings.
  * Each is one Excel.run with a small, fixed number of syncs plus row chunks where it reads data.
  */
+import { validateSettings } from '../pipeline/settings.js';
 import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
-import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, resultHeaders } from '../report/index.js';
-import { TailmarkError, type DetectedTable, type Exception, type PreviewData, type RunSettings } from './api.js';
+import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, resultHeaders, type PlanCell } from '../report/index.js';
+import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
 import { cellText, toRawCell } from './cells.js';
+import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
@@ -97,8 +99,15 @@ async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Prom
   return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected };
 }
 
-/** remove(): delete exactly what we added. */
-export async function removeResults(sync: Syncer, includeNotes: boolean): Promise<void> {
+/** Headers of the columns that hold the reviewer's marks (kept as plain cells on request). */
+const MARK_HEADERS: ReadonlySet<string> = new Set([STATUS_HEADER, NOTE_HEADER]);
+
+/**
+ * remove(): delete exactly what we added. With `keepMarks` the status and note columns stay where
+ * they are as plain cells (their dropdown and our highlighting go); a later run finds them by
+ * their headers and carries the marks on.
+ */
+export async function removeResults(sync: Syncer, includeNotes: boolean, keepMarks = false): Promise<void> {
   const loc = await locate(sync, { allowMissing: true });
   const wb = sync.context.workbook;
   const notes = wb.worksheets.getItemOrNullObject(NOTES_SHEET_NAME);
@@ -125,8 +134,13 @@ export async function removeResults(sync: Syncer, includeNotes: boolean): Promis
 
   if (loc) {
     for (const cf of custom) if (isTailmarkFormula(cf.custom.rule.formula)) cf.delete();
+    const goes = (header: string) => !(keepMarks && MARK_HEADERS.has(header));
     if (loc.table) {
-      for (const c of loc.state.columns) if (loc.columns.has(c.header)) loc.table.columns.getItem(c.header).delete();
+      for (const c of loc.state.columns) if (loc.columns.has(c.header) && goes(c.header)) loc.table.columns.getItem(c.header).delete();
+      if (keepMarks) {
+        const sc = loc.columns.get(STATUS_HEADER);
+        if (sc !== undefined) loc.sheet.getRangeByIndexes(loc.firstDataRow, sc, Math.max(1, loc.rows), 1).dataValidation.clear();
+      }
     } else {
       const rows = Math.max(loc.rows, loc.state.rowCount) + 1;
       // Right to left so the columns to delete keep their places.
@@ -135,7 +149,14 @@ export async function removeResults(sync: Syncer, includeNotes: boolean): Promis
         .filter((x): x is { c: (typeof loc.state.columns)[number]; col: number } => x.col !== undefined)
         .sort((a, b) => b.col - a.col);
       for (const { c, col } of ours) {
-        if (c.inserted) loc.sheet.getRangeByIndexes(0, col, 1, 1).getEntireColumn().delete('Left');
+        if (!goes(c.header)) {
+          if (c.header === STATUS_HEADER) loc.sheet.getRangeByIndexes(loc.firstDataRow, col, Math.max(1, loc.rows), 1).dataValidation.clear();
+          continue;
+        }
+        // Kept mark columns must end up next to the data, where a later run looks for them: the
+        // columns that go are taken out whole (they were inserted by us, or empty when we wrote
+        // into them), so the kept ones move left with every row.
+        if (c.inserted || keepMarks) loc.sheet.getRangeByIndexes(0, col, 1, 1).getEntireColumn().delete('Left');
         else {
           const r = loc.sheet.getRangeByIndexes(loc.state.headerRow, col, rows, 1);
           r.dataValidation.clear();
@@ -167,7 +188,13 @@ function statusText(status: string): string {
   return s.label;
 }
 
-export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null): Promise<void> {
+/**
+ * Set the status and/or note of data rows, and add one line per changed claim to the log sheet:
+ * who (the name the reviewer typed once, kept in the workbook's settings; never a guessed
+ * identity), when, the claim, the status before and after, and the note. Syncs: locate 2-3, the
+ * marks before 1, the log sheet 1-2, writes 1 (more only when the marks pass the payload budget).
+ */
+export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null, now: Date = new Date()): Promise<void> {
   const label = status === null ? null : statusText(status);
   const loc = await locate(sync);
   if (!loc) throw noResults();
@@ -185,25 +212,57 @@ export async function markRows(sync: Syncer, rows: readonly number[], status: st
   const sorted = [...new Set(rows)].sort((a, b) => a - b);
   const target = sync.budget.target;
   // Contiguous runs of rows become one range each.
-  let i = 0;
-  while (i < sorted.length) {
+  const runs: { start: number; n: number }[] = [];
+  for (let i = 0; i < sorted.length; ) {
     let j = i;
     while (j + 1 < sorted.length && sorted[j + 1] === sorted[j] + 1) j++;
-    const n = j - i + 1;
+    runs.push({ start: sorted[i], n: j - i + 1 });
+    i = j + 1;
+  }
+  // What the claims hold now (for the log's "before"), their claim IDs and the reviewer's name.
+  const idCol = loc.settings?.idColumn ? loc.userColumns.get(loc.settings.idColumn) : undefined;
+  const before = runs.map((run) => {
+    const st = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, sc, run.n, 1);
+    const nt = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, nc, run.n, 1);
+    const id = idCol === undefined ? null : loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, idCol, run.n, 1);
+    st.load('values');
+    nt.load('values');
+    id?.load('values');
+    return { st, nt, id };
+  });
+  await sync.sync();
+  const who = loc.settings?.reviewer ?? null;
+  const text = (v: unknown) => (v === null || v === undefined ? '' : String(v).trim());
+  const lines: PlanCell[][] = [];
+  runs.forEach((run, k) => {
+    const b = before[k];
+    for (let i = 0; i < run.n; i++) {
+      const oldStatus = text(b.st.values[i][0]);
+      const oldNote = text(b.nt.values[i][0]);
+      const newStatus = label ?? oldStatus;
+      const newNote = note ?? oldNote;
+      if (newStatus === oldStatus && newNote === oldNote) continue;
+      const id = b.id ? text(b.id.values[i][0]) : '';
+      const claim = id !== '' ? id : `sheet row ${loc.firstDataRow + run.start + i + 1}`;
+      lines.push(markLine(now.toISOString(), who, claim, oldStatus, newStatus, newNote === oldNote ? null : newNote));
+    }
+  });
+  await appendLog(sync, lines);
+  for (const run of runs) {
+    const n = run.n;
     const bytes = n * ((label?.length ?? 0) + (note?.length ?? 0) + 16);
     if (bytes > target) throw new TailmarkError('too-large', 'Too many rows or too long a note to mark at once; mark fewer rows.');
     await sync.reserve(bytes);
     if (label !== null) {
-      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], sc, n, 1);
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, sc, n, 1);
       r.numberFormat = Array.from({ length: n }, () => ['@']);
       r.values = Array.from({ length: n }, () => [label]);
     }
     if (note !== null) {
-      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + sorted[i], nc, n, 1);
+      const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + run.start, nc, n, 1);
       r.numberFormat = Array.from({ length: n }, () => ['@']);
       r.values = Array.from({ length: n }, () => [note]);
     }
-    i = j + 1;
   }
   await sync.flush();
 }
@@ -317,6 +376,57 @@ export async function previewColumns(sync: Syncer, table: DetectedTable, setting
     valueColumns: want.flatMap((w, i) => (w.kind === 'value' ? [{ name: w.name, cells: cells[i] }] : [])),
     groupColumns: want.flatMap((w, i) => (w.kind === 'group' ? [{ name: w.name, cells: cells[i] }] : [])),
   };
+}
+
+/**
+ * One claim row as the sheet displays it: the reviewer's columns (left of our block, or the
+ * table's own columns) and our "why" cells. 3 syncs (locate 2-3, the row 1).
+ */
+export async function readClaimRow(sync: Syncer, row: number): Promise<ClaimRecord> {
+  const loc = await locate(sync);
+  if (!loc) throw noResults();
+  if (!Number.isInteger(row) || row < 0 || row >= loc.rows) {
+    throw new TailmarkError('bad-settings', `Row ${row} is outside the data (0..${loc.rows - 1}).`);
+  }
+  const user = [...loc.userColumns.entries()].sort((a, b) => a[1] - b[1]);
+  const whys = (loc.settings?.valueColumns ?? []).flatMap((v) => {
+    const c = loc.columns.get(resultHeaders(v).reason);
+    return c === undefined ? [] : [{ valueColumn: v, column: c }];
+  });
+  const cols = [...user.map((u) => u[1]), ...whys.map((w) => w.column)];
+  if (cols.length === 0) return { row, fields: [], reasons: [] };
+  const start = Math.min(...cols);
+  const end = Math.max(...cols) + 1;
+  await sync.reserve(256);
+  const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + row, start, 1, end - start);
+  r.load('text');
+  await sync.sync();
+  const line = r.text[0] ?? [];
+  const at = (c: number) => String(line[c - start] ?? '');
+  return {
+    row,
+    fields: user.map(([header, c]) => ({ header, text: at(c) })),
+    reasons: whys.map((w) => ({ valueColumn: w.valueColumn, text: at(w.column) })),
+  };
+}
+
+/** The reviewer's name and follow-up columns, as saved with the run settings. */
+export async function loadReviewPrefs(sync: Syncer): Promise<ReviewPrefs> {
+  const saved = await loadRunSettings(sync);
+  return { reviewer: saved?.reviewer ?? null, detailColumns: saved?.detailColumns ?? null };
+}
+
+/**
+ * Keep the reviewer's name and follow-up columns with the saved run settings (no run needed), so
+ * the next status change and the next run record them. Needs a workbook with a saved run.
+ */
+export async function saveReviewPrefs(sync: Syncer, prefs: ReviewPrefs): Promise<void> {
+  const saved = await loadRunSettings(sync);
+  if (!saved) throw noResults();
+  const next = validateSettings({ ...saved, reviewer: prefs.reviewer === null ? null : prefs.reviewer.trim() || null, detailColumns: prefs.detailColumns });
+  await sync.reserve(2048);
+  sync.context.workbook.settings.add(SETTINGS_KEY, JSON.stringify(next));
+  await sync.flush();
 }
 
 export async function loadRunSettings(sync: Syncer): Promise<RunSettings | null> {

@@ -34,7 +34,7 @@ import {
   type Plan,
   type PlanCell,
 } from '../report/index.js';
-import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunSettings, type RunSummary } from './api.js';
+import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
 import { columnLetters, rectAddress } from './a1.js';
 import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
@@ -55,6 +55,8 @@ export interface RunDeps {
   readonly now: () => Date;
   readonly onProgress?: (p: RunProgress) => void;
   readonly signal?: AbortSignal;
+  /** Why the cutoff was changed and whether a review budget set it (for the log sheet). */
+  readonly record?: RunRecord;
   /** How the pipeline runs (the pane passes a worker-backed one; default: same thread, yielding between steps). */
   readonly pipeline?: AsyncPipeline;
 }
@@ -283,7 +285,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   };
   try {
     await writeAll(sync, res, plan, placement, values, ourRules, firstDataRow, deps);
-    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed);
+    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed, settings, deps.record);
     await sync.reserve(2048);
     ctx.workbook.settings.add(SETTINGS_KEY, JSON.stringify(settings));
     ctx.workbook.settings.add(STATE_KEY, JSON.stringify(newState));

@@ -5,7 +5,10 @@
 import { REVIEW_STATUSES, ruleFormula, type Plan, type PlanCell, type PlanColumn } from '../report/index.js';
 import type { RunProgress } from './api.js';
 import { columnLetters } from './a1.js';
-import { HEADER_SWATCH, LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, TITLE_SWATCH, formatFor, logRow, notesGrid, toCellValue } from './notes.js';
+import { HEADER_SWATCH, LOG_SHEET_NAME, TITLE_SWATCH, formatFor, notesGrid, toCellValue } from './notes.js';
+import { queueLogLines } from './log.js';
+import { runLogLines } from '../report/index.js';
+import type { RunRecord, RunSettings } from './api.js';
 import type { Placement } from './place.js';
 import type { Resolved } from './resolve.js';
 import type { Syncer } from './sync.js';
@@ -176,6 +179,8 @@ export async function writeNotes(
   createdNotes: boolean,
   createdLog: boolean,
   logUsed: Excel.Range | null,
+  settings: RunSettings,
+  record: RunRecord | undefined,
 ): Promise<void> {
   const wb = sync.context.workbook;
   await sync.reserve(1024);
@@ -194,13 +199,11 @@ export async function writeNotes(
   for (const r of grid.headerRows) notes.getRangeByIndexes(r, 0, 1, grid.width).format.font.bold = true;
   if (createdNotes) notes.getRange('A:A').format.columnWidth = 200;
 
-  // Run log: append one row.
+  // Log: the run's line, and a cutoff-change line when the cutoff differs from the last run's
+  // (src/report/log.ts); lines are only appended.
   const log = createdLog ? wb.worksheets.add(LOG_SHEET_NAME) : res.logSheet;
-  if (createdLog) {
-    await writeGrid(sync, log, 0, [[LOG_TITLE, null, null, null, null, null], [...LOG_HEADER]], LOG_HEADER.length);
-    log.getRangeByIndexes(1, 0, 1, LOG_HEADER.length).format.font.bold = true;
-    log.getRange('A:B').format.columnWidth = 160;
-  }
   const next = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
-  await writeGrid(sync, log, next, [logRow(plan.log)], LOG_HEADER.length);
+  const previous = res.savedSettings && res.savedSettings.method === settings.method ? res.savedSettings.cutoff : null;
+  const lines = runLogLines(plan.log, settings.reviewer, previous, { reason: record?.cutoffReason ?? '', budget: record?.budget ?? null });
+  await queueLogLines(sync, log, createdLog, next, lines);
 }

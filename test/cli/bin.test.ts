@@ -62,7 +62,7 @@ describe('bin/tailmark.js (real process)', () => {
       expect(r.stdout).toContain(join('out', 'demo-claims-scored.xlsx'));
     }
     const book = readBook(join(cwd, 'out', 'demo-claims-scored.xlsx'));
-    expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes', 'Tailmark log']);
     const header = XLSX.utils.sheet_to_json<unknown[]>(book.Sheets.Claims, { header: 1 })[0];
     expect(header).toContain('Amount · tail score');
   });

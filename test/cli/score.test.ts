@@ -125,7 +125,7 @@ describe('tailmark score on the demo workbook', () => {
 
   it('has the notes sheet with the caution', () => {
     const book = readBook(scored);
-    expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes', 'Tailmark log']);
     const text = XLSX.utils.sheet_to_json<unknown[]>(book.Sheets['Tailmark notes'], { header: 1 }).flat().join('\n');
     expect(text).toContain(CAUTION);
     expect(text).toMatch(/How the cutoff was chosen/);
@@ -181,7 +181,7 @@ describe('tailmark score on the demo workbook', () => {
     const xml = decodeXml(zipPart(again, sheetPart(again, 'Claims')));
     expect(xml.match(/ISTEXT\("tailmark:open"\)/g)).toHaveLength(1);
     expect(xml.match(/<dataValidation /g)).toHaveLength(1);
-    expect(readBook(again).SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    expect([...readBook(again).SheetNames].sort()).toEqual(['Claims', 'Tailmark log', 'Tailmark notes']);
   });
 });
 
@@ -216,7 +216,7 @@ describe('tailmark score keeps the user own formulas, formats and rules', () => 
     }
     expect(b.D11.f).toBe('C11*2');
     const outBook = readBook(out);
-    expect(outBook.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)']);
+    expect(outBook.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)', 'Tailmark log']);
     expect(cellsOf(outBook.Sheets['Tailmark notes']).A1.v).toBe('my own sheet that happens to share the name');
     // Column E is empty but F has the user's note, so results start in G.
     expect(b.G1.v).toBe('Amount · tail score');

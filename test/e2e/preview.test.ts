@@ -229,7 +229,7 @@ describe('preview page with the real task pane', () => {
     await page.keyboard.press('Space');
     await expect.poll(() => page.getByTestId('position').textContent()).toMatch(/^2 \//);
     // A checkbox toggles with Space.
-    const box = pane.locator('input[type=checkbox]').first();
+    const box = pane.locator('input[type=checkbox]:visible').first();
     const was = await box.isChecked();
     await box.focus();
     await page.keyboard.press('Space');

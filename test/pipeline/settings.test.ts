@@ -36,7 +36,7 @@ describe('validateSettings', () => {
     expect(validateSettings({ ...cols, method: 'iqr' }).cutoff).toBe(1.5);
     expect(validateSettings(cols)).toEqual({
       valueColumns: ['Amount'], groupColumns: ['Team'], idColumn: null, method: 'skew', cutoff: 3,
-      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', decimal: 'auto',
+      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', decimal: 'auto', reviewer: null, detailColumns: null,
     });
     expect(Object.keys(defaultSettings()).sort()).toEqual([...SETTING_KEYS].sort());
   });
@@ -102,5 +102,15 @@ describe('runPipeline', () => {
     expect(codeOf(() => runPipeline(table, { valueColumns: ['Team'] }, { when: new Date(0) }))).toBe(
       'no-numbers: value column "Team" has no numbers in test table (5 text that is not a number)',
     );
+  });
+});
+
+describe('reviewer name', () => {
+  it('is optional, kept as typed, and refused when blank or longer than 60 characters', () => {
+    const cols = { valueColumns: ['Amount'] };
+    expect(validateSettings(cols).reviewer).toBeNull();
+    expect(validateSettings({ ...cols, reviewer: 'T.R.' }).reviewer).toBe('T.R.');
+    expect(() => validateSettings({ ...cols, reviewer: '   ' })).toThrow(/reviewer name must be a name or initials/);
+    expect(() => validateSettings({ ...cols, reviewer: 'x'.repeat(61) })).toThrow(/1 to 60 characters/);
   });
 });

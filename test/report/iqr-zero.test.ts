@@ -9,6 +9,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { runPipeline } from '../../src/pipeline/index.js';
+import { explainRow } from '../../src/scoring/index.js';
 
 /** Type-7 quantile, written independently of src/scoring. */
 function q7(values: readonly number[], p: number): number {
@@ -47,7 +48,9 @@ describe('IQR = 0 fallback: one description for notes, bounds and row explanatio
     const notesWords = String(cell('Fallbacks'));
     expect(notesWords).toMatch(/whole column's IQR/);
     expect(notesWords).not.toMatch(/fences sit at Q1 and Q3/);
-    const reason = run.plan.columns.find((c) => c.kind === 'reason')!.values[9];
-    expect(String(reason)).toContain(notesWords);
+    // The row's full explanation (the pane shows it; the cell holds the short form of explainRowShort).
+    const reason = explainRow(run.result, run.result.columns[0], 9);
+    expect(reason).toContain(notesWords);
+    expect(String(run.plan.columns.find((c) => c.kind === 'reason')!.values[9])).toMatch(/IQRs above upper fence/);
   });
 });

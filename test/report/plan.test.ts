@@ -89,10 +89,11 @@ describe('buildPlan: result columns', () => {
     expect(p.columns[4].values.filter((v) => v !== null)).toEqual([]);
   });
 
-  it('writes a plain-words reason for every row, naming the group', () => {
+  it('writes a short reason for every row (the full sentence, naming the group, is explainRow: the pane shows it)', () => {
     const why = p.columns[2].values[9];
     expect(typeof why).toBe('string');
-    expect(why as string).toMatch(/=G1/);
+    expect(why as string).toMatch(/robust z (above|below) median/);
+    expect((why as string).length).toBeLessThanOrEqual(60);
     expect(typeof p.columns[2].values[13]).toBe('string');
   });
 
@@ -245,6 +246,8 @@ describe('notes sheet', () => {
       cutoff: 3.5,
       rowsScored: 13,
       flagged: p.columns[3].values.filter((v) => v !== null).length,
+      // Iglewicz and Hoaglin's 3.5 for robust z (the method's default, src/scoring/cutoff.ts).
+      defaultCutoff: 3.5,
     });
     expect(p.log.flagged).toBeGreaterThanOrEqual(1);
   });

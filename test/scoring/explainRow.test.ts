@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { explainRow, formatCutoff, formatNumber, formatScore, scoreTable, type RawCell, type ScoreOptions } from '../../src/scoring/index.js';
+import { explainRow, explainRowShort, formatCutoff, formatNumber, formatScore, scoreTable, type RawCell, type ScoreOptions } from '../../src/scoring/index.js';
 
 // Invented claims: cost centre / category groups.
 const cc: RawCell[] = [];
@@ -71,5 +71,23 @@ describe('explainRow', () => {
   });
   it('a row outside the table gets a message, not an exception', () => {
     expect(explainRow(res, col, 999)).toContain('outside the table');
+  });
+});
+
+describe('explainRowShort', () => {
+  it('says the score, side and centre in a few words, the same figures as the full sentence', () => {
+    const r = scoreTable(input, opts({ cutoff: 3.5 }));
+    const col = r.columns[0];
+    const big = amt.indexOf(1840);
+    const z = col.scores[big];
+    // The figures come from the full sentence, so the two can never disagree.
+    const median = /median ([\d,]+\.\d+)/.exec(explainRow(r, col, big))![1];
+    expect(explainRowShort(r, col, big)).toBe(`${formatScore(z)} robust z above median ${median}`);
+    expect(explainRowShort(r, col, amt.indexOf('n/a'))).toMatch(/^not scored: /);
+    for (let i = 0; i < amt.length; i++) expect(explainRowShort(r, col, i).length, `row ${i}`).toBeLessThanOrEqual(60);
+    const classic = scoreTable(input, opts({ method: 'classic', cutoff: 2 }));
+    expect(explainRowShort(classic, classic.columns[0], big)).toMatch(/^[\d.]+ z above mean [\d,.]+$/);
+    const iqr = scoreTable(input, opts({ method: 'iqr', cutoff: 1.5 }));
+    expect(explainRowShort(iqr, iqr.columns[0], big)).toMatch(/^[\d.]+ IQRs above upper fence [\d,.]+$/);
   });
 });

@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { DEMO_GROUPS, demoClaims } from '../../src/demo/claims.js';
 import { scoreTable } from '../../src/scoring/index.js';
 import type { RawCell } from '../../src/scoring/types.js';
-import { budgetCutoff, chartFor, scorePreview, summarisePreview } from '../../src/taskpane/engine.js';
+import * as ss from 'simple-statistics';
+import { budgetCutoff, chartFor, claimContext, followColumn, scorePreview, summarisePreview } from '../../src/taskpane/engine.js';
 import { validateSettings } from '../../src/pipeline/settings.js';
 import { errorText } from '../../src/taskpane/messages.js';
 import {
@@ -12,7 +13,9 @@ import {
   patchSettings,
   reducer,
   reviewCounts,
+  reviewView,
   rowsToMark,
+  stepRow,
   settingsFit,
   type PaneState,
 } from '../../src/taskpane/state.js';
@@ -107,9 +110,9 @@ describe('reducer', () => {
     st = reducer(st, { type: 'failed', error: new TailmarkError('cancelled', 'Run cancelled.') });
     expect(st.busy).toBeNull();
     expect(st.error).toBeNull();
-    expect(st.notice).toMatch(/as it was/);
+    expect(st.notice?.text).toMatch(/as it was/);
     st = reducer(st, { type: 'failed', error: new TailmarkError('no-selection', 'Select a cell in your table.') });
-    expect(st.error).toEqual({ code: 'no-selection', message: 'Select a cell in your table.' });
+    expect(st.error).toEqual({ code: 'no-selection', message: 'Select a cell in your table.', area: 'table' });
     expect(errorText(st.error!).next).toMatch(/Use selection/);
   });
 
@@ -128,35 +131,98 @@ describe('reducer', () => {
     note: i === 2 ? 'asked for receipt' : '',
   }));
 
-  it('steps through exceptions with wrap-around and loads the drafts of the current one', () => {
-    let st = reducer(ready(), { type: 'exceptions', list });
-    expect(st.current).toBe(0);
-    st = reducer(st, { type: 'move', delta: -1 });
-    expect(st.current).toBe(2);
-    expect(st.noteDraft).toBe('asked for receipt');
-    st = reducer(st, { type: 'move', delta: 1 });
-    expect(st.current).toBe(0);
-    expect(st.statusDraft).toBe('To look at');
-    // After a refresh the same claim stays current even if the list order changed.
-    st = reducer(st, { type: 'goto', index: 1 });
-    st = reducer(st, { type: 'exceptions', list: [list[2], list[0], list[1]], keepRow: 20 });
-    expect(st.current).toBe(2);
+  const labels = (id: string) => ({ open: 'To look at', asked: 'Asked claimant', cleared: 'Cleared', escalated: 'Sent up' })[id] ?? id;
+
+  it('orders the follow-up list by |score| (largest first), by group, or in sheet order, and filters by status', () => {
+    const mixed: Exception[] = [
+      { row: 5, claimId: 'A', group: 'b', value: 1, score: 3.6, status: 'To look at', note: '' },
+      { row: 1, claimId: 'B', group: 'a', value: 1, score: -7.2, status: 'Cleared', note: '' },
+      { row: 9, claimId: 'C', group: 'a', value: 1, score: 4.1, status: '', note: '' },
+      { row: 3, claimId: 'D', group: 'b', value: 1, score: null, status: 'Asked claimant', note: 'x' },
+    ];
+    const done = ['Cleared', 'Sent up'];
+    // Expected orders worked out by hand from the scores above.
+    expect(reviewView(mixed, 'score', 'all', labels, done).map((e) => e.claimId)).toEqual(['B', 'C', 'A', 'D']);
+    expect(reviewView(mixed, 'group', 'all', labels, done).map((e) => e.claimId)).toEqual(['B', 'C', 'A', 'D']);
+    expect(reviewView(mixed, 'sheet', 'all', labels, done).map((e) => e.claimId)).toEqual(['B', 'D', 'A', 'C']);
+    expect(reviewView(mixed, 'score', 'unfinished', labels, done).map((e) => e.claimId)).toEqual(['C', 'A', 'D']);
+    // "To look at" also covers a flagged claim with an empty status cell.
+    expect(reviewView(mixed, 'sheet', 'open', labels, done).map((e) => e.claimId)).toEqual(['A', 'C']);
+    expect(reviewView(mixed, 'sheet', 'none', labels, done).map((e) => e.claimId)).toEqual(['C']);
+    expect(stepRow(reviewView(mixed, 'score', 'all', labels, done), 1, 1)).toBe(9);
+    expect(stepRow(reviewView(mixed, 'score', 'all', labels, done), 1, -1)).toBe(3);
+    expect(stepRow([], 1, 1)).toBeNull();
   });
 
-  it('keeps what the reviewer is typing when the list refreshes under it', () => {
+  it('starts at the largest score and loads the drafts of the claim shown', () => {
     let st = reducer(ready(), { type: 'exceptions', list });
+    // Scores 4, 5, 6: the largest is row 30.
+    expect(st.currentRow).toBe(30);
+    expect(st.noteDraft).toBe('asked for receipt');
+    st = reducer(st, { type: 'goto', row: 10 });
+    expect(st.currentRow).toBe(10);
+    expect(st.statusDraft).toBe('To look at');
+    // After a refresh the same claim stays current even if the list order changed.
+    st = reducer(st, { type: 'goto', row: 20 });
+    st = reducer(st, { type: 'exceptions', list: [list[2], list[0], list[1]] });
+    expect(st.currentRow).toBe(20);
+  });
+
+  it('never drops an unsaved note silently: a move waits for save, discard or stay', () => {
+    let st = reducer(ready(), { type: 'exceptions', list, keepRow: 10 });
     st = reducer(st, { type: 'drafts', note: 'half-typed' });
+    // A refresh under the reviewer keeps the draft.
     st = reducer(st, { type: 'exceptions', list, keepRow: 10 });
     expect(st.noteDraft).toBe('half-typed');
-    // Moving on loads the next claim's own note.
-    st = reducer(st, { type: 'move', delta: 2 });
+    // Moving on is held back and asks.
+    st = reducer(st, { type: 'goto', row: 30 });
+    expect(st.currentRow).toBe(10);
+    expect(st.noteDraft).toBe('half-typed');
+    expect(st.pending).toEqual({ row: 30, fromSheet: false });
+    // "Stay here" keeps everything.
+    st = reducer(st, { type: 'pending-done' });
+    expect(st.pending).toBeNull();
+    expect(st.noteDraft).toBe('half-typed');
+    // A selection in the sheet asks too; "Discard" then moves and loads that claim's own note.
+    st = reducer(st, { type: 'goto', row: 30, fromSheet: true });
+    expect(st.pending).toEqual({ row: 30, fromSheet: true });
+    st = reducer(st, { type: 'goto', row: 30, force: true });
+    expect(st.currentRow).toBe(30);
     expect(st.noteDraft).toBe('asked for receipt');
     expect(st.draftDirty).toBe(false);
   });
 
+  it('puts each message in the section whose action caused it', () => {
+    let st = reducer({ ...ready(), busy: 'marking' }, { type: 'failed', error: new TailmarkError('protected', 'The sheet is protected.') });
+    expect(st.error?.area).toBe('review');
+    st = reducer({ ...ready(), busy: 'removing' }, { type: 'failed', error: new Error('x') });
+    expect(st.error?.area).toBe('manage');
+    st = reducer(ready(), { type: 'notice', text: 'hello', area: 'method' });
+    expect(st.notice).toEqual({ text: 'hello', area: 'method' });
+  });
+
+  it('says after a removal what happened to the marks', () => {
+    const kept = reducer(ready(), { type: 'removed', includeNotes: false, keptMarks: 3, lostMarks: 0 });
+    expect(kept.notice?.text).toMatch(/3 marked claims/);
+    expect(kept.notice?.text).not.toMatch(/untouched/);
+    const lost = reducer(ready(), { type: 'removed', includeNotes: true, keptMarks: 0, lostMarks: 2 });
+    expect(lost.notice?.text).toMatch(/2 statuses and notes were deleted/);
+    expect(lost.notice?.area).toBe('manage');
+  });
+
+  it('remembers that a cutoff came from a review budget until it is changed another way', () => {
+    let st = reducer(ready(), { type: 'budget-applied', cutoff: 4.2, claims: 25 });
+    expect(st.settings?.cutoff).toBe(4.2);
+    expect(st.budgetUsed).toBe(25);
+    st = reducer(st, { type: 'settings', patch: { logScale: true } });
+    expect(st.budgetUsed).toBe(25);
+    st = reducer(st, { type: 'settings', patch: { cutoff: 3 } });
+    expect(st.budgetUsed).toBeNull();
+  });
+
   it('marks the ticked claims, else the current one', () => {
     let st = reducer(ready(), { type: 'exceptions', list });
-    expect(rowsToMark(st)).toEqual([10]);
+    expect(rowsToMark(st)).toEqual([30]);
     st = reducer(st, { type: 'check', row: 30, on: true });
     st = reducer(st, { type: 'check', row: 20, on: true });
     expect(rowsToMark(st)).toEqual([20, 30]);
@@ -187,6 +253,8 @@ describe('in-memory preview', () => {
     minGroupSize: 8,
     smallGroups: 'pool',
     decimal: 'auto',
+    reviewer: null,
+    detailColumns: null,
   };
 
   it('counts the same flagged rows as scoring the table directly', () => {
@@ -206,6 +274,32 @@ describe('in-memory preview', () => {
       const at = scoreTable(data, { method: 'robust', cutoff: cut, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' });
       expect(at.columns[0].flaggedRows).toBeLessThanOrEqual(budget);
     }
+  });
+
+  it('gives the follow-up view the centre and spread of the claim\'s peer group (checked with simple-statistics)', () => {
+    const scored = scorePreview(data, settings);
+    const col = scored.columns[0];
+    const row = col.flagged.findIndex((f) => f === 1);
+    expect(row).toBeGreaterThanOrEqual(0);
+    expect(followColumn(scored, row)).toBe(0);
+    const ctx = claimContext(scored, 0, row)!;
+    const g = col.groupOf[row];
+    const peers: number[] = [];
+    for (let r = 0; r < col.values.length; r++) if (col.groupOf[r] === g && !Number.isNaN(col.values[r])) peers.push(col.values[r]);
+    // simple-statistics 7.x: median, medianAbsoluteDeviation (unscaled), times 1.4826 as R's mad() does.
+    expect(ctx.centreName).toBe('median');
+    expect(ctx.centre).toBeCloseTo(ss.median(peers), 9);
+    expect(ctx.spread).toBeCloseTo(1.4826 * ss.medianAbsoluteDeviation(peers), 9);
+    expect(ctx.n).toBe(peers.length);
+    expect(ctx.flagged).toBe(true);
+    expect(ctx.reason).toMatch(/Flagged/);
+    const larger = peers.filter((v) => v >= col.values[row]).length;
+    expect(ctx.rankFromTop).toBe(larger);
+    expect(ctx.strip.length).toBe(Math.min(peers.length, 240));
+    const classic = claimContext(scorePreview(data, { ...settings, method: 'classic', cutoff: 3 }), 0, row)!;
+    expect(classic.centreName).toBe('mean');
+    expect(classic.centre).toBeCloseTo(ss.mean(peers), 9);
+    expect(classic.spread).toBeCloseTo(ss.sampleStandardDeviation(peers), 9);
   });
 
   it('issue 7: a budget of at least the number of claims never gives cutoff 0 (which the run refuses)', () => {

@@ -73,6 +73,8 @@ export const SETTINGS: RunSettings = {
   minGroupSize: 8,
   smallGroups: 'pool',
   decimal: 'auto',
+  reviewer: null,
+  detailColumns: null,
 };
 
 /** A runner whose k-th sync (counted from now, across everything run through the sandbox) fails part-way. */

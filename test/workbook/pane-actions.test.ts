@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { diffSnapshots, sandboxFromRows } from '../../src/sandbox/index.js';
 import { countUserCellsChanged } from '../../src/cli/sandbox-command.js';
 import { TailmarkError } from '../../src/workbook/api.js';
+import { LOG_HEADER } from '../../src/report/index.js';
 import { claimsSandbox, layerFor, SETTINGS } from './helpers.js';
 
 describe('pane actions', () => {
@@ -85,5 +86,98 @@ describe('pane actions', () => {
     expect(await layer.loadSettings()).toBeNull();
     sb.setSetting('tailmark.settings', '{"not":"settings"}');
     expect(await layer.loadSettings()).toBeNull();
+  });
+
+  it('readClaim returns the claim row as displayed and its "why" cell; detect reports the selected claim row', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    const c = await layer.readClaim(13);
+    // Data row 13 is sheet row 15 (header in row 1): values straight from the sandbox.
+    expect(c.fields.map((f) => f.header)).toEqual(['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount']);
+    expect(c.fields[0].text).toBe(String(sb.valueAt('Claims', 14, 0)));
+    expect(c.fields[1].text).toBe(String(sb.valueAt('Claims', 14, 1)));
+    expect(c.reasons).toHaveLength(1);
+    expect(c.reasons[0].text).toBe(String(sb.valueAt('Claims', 14, 7)));
+    await expect(layer.readClaim(100)).rejects.toThrow(/outside the data/);
+    sb.userSelect('Claims', 'B15:C15');
+    expect((await layer.detect()).selectedRow).toBe(13);
+    sb.userSelect('Claims', 'B1');
+    expect((await layer.detect()).selectedRow).toBeNull();
+  });
+
+  it('keeps the reviewer\'s name and chosen columns with the saved run settings, and a run keeps them', async () => {
+    const sb = claimsSandbox(20);
+    const layer = layerFor(sb);
+    expect(await layer.loadReviewPrefs()).toEqual({ reviewer: null, detailColumns: null });
+    await expect(layer.saveReviewPrefs({ reviewer: 'JD', detailColumns: null })).rejects.toThrow(/no Tailmark results/);
+    await layer.run(await layer.detect(), SETTINGS);
+    await layer.saveReviewPrefs({ reviewer: '  JD ', detailColumns: ['Employee'] });
+    expect(await layerFor(sb).loadReviewPrefs()).toEqual({ reviewer: 'JD', detailColumns: ['Employee'] });
+    expect(await layer.loadSettings()).toMatchObject({ ...SETTINGS, reviewer: 'JD', detailColumns: ['Employee'] });
+    sb.setSetting('tailmark.settings', 'not json');
+    expect(await layer.loadReviewPrefs()).toEqual({ reviewer: null, detailColumns: null });
+  });
+
+  it('remove can keep the status and note columns as plain cells, and a later run carries the marks on', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    await layer.mark([13], 'Cleared', 'receipt seen');
+    await layer.remove(false, true);
+    const headers = [0, 1, 2, 3, 4, 5, 6].map((c) => String(sb.valueAt('Claims', 0, c)));
+    expect(headers).toEqual(['Claim ID', 'Employee', 'Cost centre', 'Category', 'Amount', 'Tailmark status', 'Tailmark note']);
+    expect(sb.valueAt('Claims', 14, 5)).toBe('Cleared');
+    expect(sb.valueAt('Claims', 14, 6)).toBe('receipt seen');
+    // No dropdown and none of our rules are left.
+    expect(sb.validationAt('Claims', 14, 5)).toBeNull();
+    const claims = sb.snapshot().sheets.find((x) => x.name === 'Claims')!;
+    expect(claims.conditionalFormats.filter((c) => /tailmark:/.test(c.formula))).toEqual([]);
+    sb.setSelection('Claims', 'B3');
+    await layer.run(await layer.detect(), SETTINGS);
+    const ex = await layer.listExceptions();
+    expect(ex.find((e) => e.row === 13)).toMatchObject({ status: 'Cleared', note: 'receipt seen' });
+  });
+
+  it('logs each run, each cutoff change with its reason and budget, and each saved status with who and when; never rewrites a line', async () => {
+    const sb = claimsSandbox(100);
+    const layer = layerFor(sb); // clock: 2025-03-31T09:00:00Z (helpers.ts)
+    await layer.run(await layer.detect(), { ...SETTINGS, cutoff: 4 }, undefined, undefined, { cutoffReason: 'one afternoon', budget: 5 });
+    const logText = () => {
+      const rows: string[][] = [];
+      for (let r = 0; r < 20; r++) {
+        const row = Array.from({ length: LOG_HEADER.length }, (_, c) => String(sb.valueAt('Tailmark log', r, c) ?? ''));
+        if (row.every((x) => x === '')) break;
+        rows.push(row);
+      }
+      return rows;
+    };
+    const col = (name: string) => LOG_HEADER.indexOf(name);
+    let log = logText();
+    expect(log[1]).toEqual([...LOG_HEADER]);
+    expect(log[2][col('Event')]).toBe('Run');
+    expect(log[2][col('Who')]).toBe('(name not given)');
+    expect(log[3][col('Event')]).toBe('Cutoff changed');
+    expect(log[3][col('Previous cutoff')]).toBe('3.5');
+    expect(log[3][col('Cutoff')]).toBe('4');
+    expect(log[3][col('Reason given')]).toBe('one afternoon');
+    expect(log[3][col('From a review budget')]).toBe('yes: at most 5 claims');
+    await layer.saveReviewPrefs({ reviewer: 'JD', detailColumns: null });
+    await layer.mark([13], 'Cleared', 'receipt seen');
+    await layer.mark([13], null, 'receipt seen');
+    log = logText();
+    expect(log).toHaveLength(5);
+    expect(log[4][col('Event')]).toBe('Status set');
+    expect(log[4][col('Who')]).toBe('JD');
+    expect(log[4][col('When (UTC)')]).toBe('2025-03-31T09:00:00.000Z');
+    expect(log[4][col('Claim')]).toBe('CL-000014');
+    expect(log[4][col('Status')]).toBe('To look at → Cleared');
+    expect(log[4][col('Note')]).toBe('receipt seen');
+    const before = log;
+    // Same cutoff again: a run line only, below the others.
+    await layer.run(await layer.detect(), { ...SETTINGS, cutoff: 4, reviewer: 'JD' });
+    log = logText();
+    expect(log.slice(0, before.length)).toEqual(before);
+    expect(log.slice(before.length).map((r) => [r[col('Event')], r[col('Who')]])).toEqual([['Run', 'JD']]);
   });
 });

@@ -2,6 +2,7 @@ import { Field, Select, Text, tokens } from '@fluentui/react-components';
 import { useId } from 'react';
 import type { ChartData, ChartLine } from '../engine.js';
 import type { PaneModel } from '../usePaneState.js';
+import { Fold } from './Section.js';
 import { usePaneStyles } from './styles.js';
 
 const W = 300;
@@ -144,10 +145,7 @@ export function ChartSection({ model }: { model: PaneModel }) {
   const { chart, chartGroups, actions, state } = model;
   if (!state.settings || chartGroups.length === 0) return null;
   return (
-    <section className={s.section} aria-labelledby="tm-chart-h">
-      <h2 id="tm-chart-h" className={s.heading}>
-        3. Look at one group
-      </h2>
+    <Fold model={model} area="chart" title="3. Look at one group" summary={chart ? `${chart.group}` : undefined}>
       <div className={s.row}>
         {state.settings.valueColumns.length > 1 && (
           <Field label="Amount" className={s.grow}>
@@ -167,6 +165,6 @@ export function ChartSection({ model }: { model: PaneModel }) {
         </Field>
       </div>
       {chart ? <DistributionChart chart={chart} /> : <Text className={s.muted}>No numbers in this group.</Text>}
-    </section>
+    </Fold>
   );
 }

@@ -7,47 +7,84 @@ import {
   DialogContent,
   DialogSurface,
   DialogTitle,
+  Text,
 } from '@fluentui/react-components';
 import { useState } from 'react';
+import { labelOf } from '../state.js';
 import type { PaneModel } from '../usePaneState.js';
+import { Fold } from './Section.js';
 import { usePaneStyles } from './styles.js';
 
-/** (f) Remove what Tailmark added, with a confirm before the notes sheet goes. */
+const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
+
+/** (f) Remove what Tailmark added; says what the reviewer's marks become and offers to keep them. */
 export function ManageSection({ model }: { model: PaneModel }) {
   const s = usePaneStyles();
   const { state, actions } = model;
   const [withNotes, setWithNotes] = useState(false);
-  if (!state.table?.hasResults) return null;
+  const [keepMarks, setKeepMarks] = useState(true);
+  if (!state.table?.hasResults) {
+    // After a removal its message stays readable here.
+    return state.notice?.area === 'manage' ? (
+      <Fold model={model} area="manage" title="6. Tidy up">
+        {null}
+      </Fold>
+    ) : null;
+  }
+  const open = labelOf('open');
+  const statuses = state.exceptions.filter((e) => e.status !== '' && e.status !== open).length;
+  const notes = state.exceptions.filter((e) => e.note !== '').length;
+  const marks = statuses + notes;
   return (
-    <section className={s.section} aria-labelledby="tm-manage-h">
-      <h2 id="tm-manage-h" className={s.heading}>
-        6. Tidy up
-      </h2>
-      <Button onClick={() => actions.askRemove(true)} disabled={state.busy !== null} data-testid="remove">
-        Remove results…
-      </Button>
+    <Fold model={model} area="manage" title="6. Tidy up">
+      <Text className={s.small}>Take Tailmark's columns and highlighting out of the sheet. Your claim data stays as it is.</Text>
+      <div className={s.row}>
+        <Button appearance="secondary" onClick={() => actions.askRemove(true)} disabled={state.busy !== null} data-testid="remove">
+          Remove results…
+        </Button>
+      </div>
       <Dialog open={state.confirmRemove} onOpenChange={(_, d) => actions.askRemove(d.open)} modalType="alert">
         <DialogSurface aria-describedby="tm-remove-d">
           <DialogBody>
-            <DialogTitle>Remove Tailmark results?</DialogTitle>
+            <DialogTitle>Remove Tailmark's results?</DialogTitle>
             <DialogContent id="tm-remove-d">
-              This removes the score, flag, reason, status and note columns and our highlighting. Your own cells stay as they are.
+              <Text block>
+                This takes out the score, flag and reason columns and the highlighting.{' '}
+                <span data-testid="remove-counts">
+                  {marks === 0
+                    ? 'No claim has a status other than the default or a note yet.'
+                    : `${plural(statuses, 'claim has a status', 'claims have a status')} and ${plural(notes, 'claim has a note', 'claims have a note')} that you set.`}
+                </span>
+              </Text>
               <Checkbox
-                label="Also delete the notes sheet (its record of cutoffs and runs is lost)"
+                label={`Keep the status and note columns as plain cells${marks > 0 ? ` (${plural(marks, 'mark')} stay)` : ''}; a later run picks them up again`}
+                checked={keepMarks}
+                onChange={(_, d) => setKeepMarks(d.checked === true)}
+                data-testid="remove-keep"
+              />
+              {!keepMarks && marks > 0 && (
+                <Text block className={s.small} data-testid="remove-warning">
+                  The statuses and notes will be deleted. Copy the two columns to another sheet first if you need them.
+                </Text>
+              )}
+              <Checkbox
+                label="Also delete the notes and log sheets (the record of cutoffs and runs is lost)"
                 checked={withNotes}
                 onChange={(_, d) => setWithNotes(d.checked === true)}
                 data-testid="remove-notes"
               />
             </DialogContent>
             <DialogActions>
-              <Button appearance="primary" onClick={() => actions.remove(withNotes)} data-testid="confirm-remove">
+              <Button appearance="primary" onClick={() => actions.askRemove(false)} data-testid="cancel-remove">
+                Keep everything
+              </Button>
+              <Button onClick={() => actions.remove(withNotes, keepMarks)} data-testid="confirm-remove">
                 Remove
               </Button>
-              <Button onClick={() => actions.askRemove(false)}>Keep</Button>
             </DialogActions>
           </DialogBody>
         </DialogSurface>
       </Dialog>
-    </section>
+    </Fold>
   );
 }

@@ -1,9 +1,11 @@
-import { Button, Checkbox, Field, Input, Select, Slider, Text } from '@fluentui/react-components';
+import { Button, Checkbox, Field, Input, Select, Slider, Text, Textarea } from '@fluentui/react-components';
+import { CAUTION_SHORT } from '../../report/style.js';
 import type { DecimalMode, Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
 import { GroupCountTable } from './GroupCountTable.js';
 import { NumberInput } from './NumberInput.js';
 import type { PaneModel } from '../usePaneState.js';
+import { Fold } from './Section.js';
 import { usePaneStyles } from './styles.js';
 
 export const METHOD_WORDS: Record<MethodId, { label: string; unit: string; range: [number, number] }> = {
@@ -33,11 +35,10 @@ export function MethodSection({ model }: { model: PaneModel }) {
   const first = preview?.columns[0];
   const groups = first ? [...first.groups].sort((a, b) => b.flagged - a.flagged || b.n - a.n) : [];
   const unreachable = first ? first.groups.filter((g) => g.unreachable).length : 0;
+  const reference = state.saved && state.saved.method === settings.method ? state.saved.cutoff : def;
+  const cutoffChanged = settings.cutoff !== reference;
   return (
-    <section className={s.section} aria-labelledby="tm-method-h">
-      <h2 id="tm-method-h" className={s.heading}>
-        2. How to score
-      </h2>
+    <Fold model={model} area="method" title="2. How to score" summary={`${m.label}, cutoff ${settings.cutoff}`}>
       <Field label="Method">
         <Select value={settings.method} onChange={(_, d) => actions.setSettings({ method: d.value as MethodId })} data-testid="method">
           {(Object.keys(METHOD_WORDS) as MethodId[]).map((id) => (
@@ -94,6 +95,8 @@ export function MethodSection({ model }: { model: PaneModel }) {
             step={0.1}
             value={Math.min(m.range[1], Math.max(m.range[0], settings.cutoff))}
             onChange={(_, d) => actions.setSettings({ cutoff: Math.round(d.value * 10) / 10 })}
+            // Marks at whole units only (the 0.1 steps would draw a dense barcode of marks).
+            style={{ ['--fui-Slider--steps-percent' as string]: `${100 / (m.range[1] - m.range[0])}%` }}
             aria-label="Cutoff slider"
           />
           <NumberInput
@@ -111,6 +114,20 @@ export function MethodSection({ model }: { model: PaneModel }) {
           </Button>
         </div>
       </Field>
+      {cutoffChanged && (
+        <Field
+          label="Why this cutoff? (optional)"
+          hint={`Goes to the log sheet with the run${state.budgetUsed !== null ? `, with the note that it came from a budget of ${state.budgetUsed} claims` : ''}.`}
+        >
+          <Textarea
+            value={state.cutoffReason}
+            onChange={(_, d) => actions.setCutoffReason(d.value)}
+            resize="vertical"
+            rows={2}
+            data-testid="cutoff-reason"
+          />
+        </Field>
+      )}
       <div className={s.row}>
         <Field label="I can review this many claims" className={s.grow}>
           <Input
@@ -144,6 +161,9 @@ export function MethodSection({ model }: { model: PaneModel }) {
               {preview.columns.length > 1 ? ` (${preview.columns.map((c) => `${c.column}: ${c.flagged}`).join(', ')})` : ''}. Nothing is written
               until you press Run.
             </Text>
+            <Text block className={s.small} data-testid="live-caution">
+              {CAUTION_SHORT}
+            </Text>
             <Text block className={s.small} data-testid="meaning">
               {preview.meaning}
             </Text>
@@ -165,6 +185,6 @@ export function MethodSection({ model }: { model: PaneModel }) {
           </>
         )}
       </div>
-    </section>
+    </Fold>
   );
 }

@@ -4,6 +4,10 @@ import type { RunProgress } from '../../workbook/api.js';
 import type { PaneModel } from '../usePaneState.js';
 import { usePaneStyles } from './styles.js';
 import { GroupCountTable } from './GroupCountTable.js';
+import { Fold } from './Section.js';
+
+/** Peer groups listed in the run summary before "show all" (most flagged, and every unreachable one). */
+export const SUMMARY_GROUPS = 8;
 
 const PHASE_WORDS: Record<RunProgress['phase'], string> = {
   reading: 'Reading the claims',
@@ -29,21 +33,29 @@ export function RunSection({ model }: { model: PaneModel }) {
   const running = state.busy === 'running';
   const canRun = !!state.table && !!state.settings && state.settings.valueColumns.length > 0 && state.busy === null;
   const summary = state.summary;
+  const differs = !!state.saved && !!state.settings && JSON.stringify(state.saved) !== JSON.stringify(state.settings);
+  const groups = summary
+    ? [...summary.groups].filter((g) => g.flagged > 0 || g.cutoffUnreachable).sort((a, b) => b.flagged - a.flagged || b.n - a.n)
+    : [];
+  const shown = state.allGroups ? groups : groups.filter((g, i) => i < SUMMARY_GROUPS || g.cutoffUnreachable);
+  const marksOutside = summary ? state.exceptions.length - summary.flagged : 0;
   return (
-    <section className={s.section} aria-labelledby="tm-run-h">
-      <h2 id="tm-run-h" className={s.heading}>
-        4. Run
-      </h2>
+    <Fold model={model} area="run" title="4. Run" summary={summary ? `${summary.flagged} flagged of ${summary.rowsScored.toLocaleString('en')}` : undefined}>
       <div className={s.row}>
         <Button appearance="primary" onClick={actions.run} disabled={!canRun} data-testid="run">
-          {state.table?.hasResults ? 'Run again' : 'Run'}
+          {state.table?.hasResults ? 'Run with these settings' : 'Run'}
         </Button>
-        {state.saved && (
+        {state.saved && differs && (
           <Button onClick={actions.rerunSaved} disabled={!state.table || state.busy !== null} data-testid="rerun-saved">
-            Re-run with saved settings
+            Run with the last saved settings
           </Button>
         )}
       </div>
+      {state.saved && differs && (
+        <Text className={s.small} data-testid="rerun-hint">
+          Your choices above differ from the ones saved with the last run (cutoff {state.saved.cutoff}). The second button ignores the changes.
+        </Text>
+      )}
       {running && (
         <div aria-live="polite">
           {state.showProgress && (
@@ -65,15 +77,31 @@ export function RunSection({ model }: { model: PaneModel }) {
           <Text block className={s.big}>
             <span data-testid="summary-flagged">{summary.flagged}</span> flagged of {summary.rowsScored.toLocaleString('en')} scored
           </Text>
+          <Caution />
+          {marksOutside > 0 && (
+            <Text block className={s.small} data-testid="marks-outside">
+              The follow-up list also holds {marksOutside} claim{marksOutside === 1 ? '' : 's'} you marked earlier that this cutoff no longer flags; their
+              statuses and notes are kept.
+            </Text>
+          )}
           <Text block className={s.small}>
-            Explanations and the cutoff are on the sheet “{summary.notesSheet}”.
+            Explanations, the cutoff and the terms used are on the sheet “{summary.notesSheet}”.
           </Text>
           <GroupCountTable
             caption="Flagged claims per peer group"
-            rows={summary.groups
-              .filter((g) => g.flagged > 0 || g.cutoffUnreachable)
-              .map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.cutoffUnreachable ? ' (cutoff out of reach)' : undefined }))}
+            testId="summary-groups"
+            rows={shown.map((g) => ({ label: g.label, n: g.n, flagged: g.flagged, remark: g.cutoffUnreachable ? ' (cutoff out of reach)' : undefined }))}
           />
+          {groups.length > shown.length && (
+            <Button size="small" appearance="subtle" onClick={() => actions.showAllGroups(true)} data-testid="show-all-groups">
+              Show all {groups.length} groups with flags
+            </Button>
+          )}
+          {state.allGroups && groups.length > SUMMARY_GROUPS && (
+            <Button size="small" appearance="subtle" onClick={() => actions.showAllGroups(false)}>
+              Show only the groups with most flags
+            </Button>
+          )}
           {summary.excluded.some((e) => e.count > 0) && (
             <>
               <Text block className={s.small}>
@@ -100,9 +128,8 @@ export function RunSection({ model }: { model: PaneModel }) {
               .
             </Text>
           )}
-          <Caution />
         </div>
       )}
-    </section>
+    </Fold>
   );
 }

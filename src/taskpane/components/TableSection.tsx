@@ -2,6 +2,7 @@ import { Button, Checkbox, Field, Select, Text } from '@fluentui/react-component
 import type { DetectedColumn } from '../../workbook/api.js';
 import type { PaneModel } from '../usePaneState.js';
 import { groupCandidates, valueCandidates } from '../state.js';
+import { Fold } from './Section.js';
 import { usePaneStyles } from './styles.js';
 
 const GUESS_WORDS: Record<DetectedColumn['guess'], string> = {
@@ -24,15 +25,17 @@ export function TableSection({ model }: { model: PaneModel }) {
   const { state, actions } = model;
   const { table, settings } = state;
   return (
-    <section className={s.section} aria-labelledby="tm-data-h">
-      <div className={s.row}>
-        <h2 id="tm-data-h" className={`${s.heading} ${s.grow}`}>
-          1. Your claims
-        </h2>
+    <Fold
+      model={model}
+      area="table"
+      title="1. Your claims"
+      summary={table ? `${table.tableName ?? table.sheetName} · ${table.rowCount.toLocaleString('en')} claim rows` : undefined}
+      extra={
         <Button size="small" onClick={actions.refresh} disabled={state.busy === 'running'} data-testid="use-selection">
           Use selection
         </Button>
-      </div>
+      }
+    >
       {!table && state.busy === 'detecting' && <Text className={s.muted}>Reading the selection…</Text>}
       {!table && state.busy !== 'detecting' && (
         <Text className={s.muted}>Select a cell inside your claims table, then press “Use selection”.</Text>
@@ -65,7 +68,7 @@ export function TableSection({ model }: { model: PaneModel }) {
           </fieldset>
           <fieldset className={s.fieldset}>
             <legend className={s.legend}>Compare within (peer group)</legend>
-            {groupCandidates(table)
+            {groupCandidates(table, settings.groupColumns)
               .filter((c) => !settings.valueColumns.includes(c.header))
               .map((c) => (
                 <Checkbox
@@ -92,6 +95,6 @@ export function TableSection({ model }: { model: PaneModel }) {
           </Field>
         </>
       )}
-    </section>
+    </Fold>
   );
 }
