@@ -10,6 +10,7 @@ import { mkdir, stat } from 'node:fs/promises';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { RawCell, ScoreResult } from '../scoring/types.js';
 import { planJsonChunks } from '../report/json.js';
+import { METHOD_NAMES } from '../report/plan.js';
 import { CAUTION } from '../report/style.js';
 import { describeDecimal } from '../report/decimal.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
@@ -255,7 +256,7 @@ async function runDemo(argv: readonly string[], io: Io): Promise<number> {
   io.out(
     `Demo claims (invented):  ${inputPath}\n` +
       `Scored workbook:         ${scoredPath}\n` +
-      `${col.flaggedRows} of ${result.rowCount} claims flagged (robust z, cutoff ${result.options.cutoff}, groups Cost centre + Category).\n` +
+      `${col.flaggedRows} of ${result.rowCount} claims flagged (${METHOD_NAMES[result.options.method]}, cutoff ${result.options.cutoff}, groups Cost centre + Category).\n` +
       `${CAUTION}\n`,
   );
   return 0;

@@ -1,5 +1,5 @@
 export * from './types.js';
-export { buildPlan, type PlanContext } from './plan.js';
+export { buildPlan, METHOD_NAMES, type PlanContext } from './plan.js';
 export { HIGHLIGHT_RULES, RULE_MARKER_PREFIX, ruleFormula, isTailmarkFormula, type RuleRefs } from './rules.js';
 export {
   CAUTION,

@@ -99,7 +99,8 @@ const METHOD_WORDS: Record<MethodId, string> = {
     'group how skewed it is and which fences that gave.',
 };
 
-const METHOD_NAMES: Record<MethodId, string> = {
+/** The method's name as the notes sheet and the batch command's summary give it. */
+export const METHOD_NAMES: Record<MethodId, string> = {
   robust: 'robust z (median/MAD)',
   classic: 'classic z (mean/SD)',
   iqr: 'IQR fences',

@@ -60,6 +60,8 @@ describe('bin/tailmark.js (real process)', () => {
       expect(r.status).toBe(0);
       expect(r.stdout).toContain(join('out', 'demo-claims.xlsx'));
       expect(r.stdout).toContain(join('out', 'demo-claims-scored.xlsx'));
+      // The summary names the method the demo was scored with (the default), not a fixed one.
+      expect(r.stdout).toMatch(/claims flagged \(skew-aware fences \(medcouple\), cutoff 3,/);
     }
     const book = readBook(join(cwd, 'out', 'demo-claims-scored.xlsx'));
     expect(book.SheetNames).toEqual(['Claims', 'Tailmark notes', 'Tailmark log']);
