@@ -8,6 +8,7 @@ import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
 import { inferDecimal } from './inferDecimal.js';
+import { FAST_FENCE, scoreFenceRows } from './scoreFenceRows.js';
 import { summarizeFor } from './summarizeFor.js';
 import { constantSummary, EMPTY_SUMMARY, isExtreme, real, type Summary } from './summary.js';
 import {
@@ -232,7 +233,7 @@ function scoreColumn(
   const flat: FlatFits = {
     fast: new Uint8Array(nGroups), cs: new Float64Array(2 * nGroups), kind: new Uint8Array(nGroups), popOf: new Uint8Array(nGroups),
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
-    lowScale: new Float64Array(nGroups), highScale: new Float64Array(nGroups),
+    lowScale: new Float64Array(nGroups), highScale: new Float64Array(nGroups), fence: new Float64Array(4 * nGroups),
   };
   fitGroups(method, opts, yOrdered, pre, start, count, column, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
@@ -343,7 +344,9 @@ function fitGroups(
     flat.lowScale[g] = fit.lowScale;
     flat.highScale[g] = fit.highScale;
     const fast = fit.kind === 'z' && fit.unit === 1 && fit.scale > 0 && Number.isFinite(fit.center) && Number.isFinite(fit.scale);
-    flat.fast[g] = fast ? 1 : 0;
+    const fastFence = fit.kind === 'fence' && fit.unit === 1;
+    flat.fast[g] = fast ? 1 : fastFence ? FAST_FENCE : 0;
+    flat.fence.set(fastFence ? [fit.q3, fit.highScale, fit.q1, fit.lowScale] : [NaN, NaN, NaN, NaN], 4 * g);
     flat.cs[2 * g] = fast ? fit.center : NaN;
     flat.cs[2 * g + 1] = fast ? fit.scale : NaN;
   }
@@ -644,7 +647,7 @@ const MAX = Number.MAX_VALUE;
 
 /** Per-group fits as typed arrays, so the row pass reads numbers, not objects. */
 interface FlatFits {
-  /** 1 where the group takes the fast row path: a z fit with unit 1 and scale > 0. */
+  /** 1 where the group takes the fast row path: a z fit with unit 1 and scale > 0; FAST_FENCE: a fence fit with unit 1 (`scoreFenceRows`). */
   readonly fast: Uint8Array;
   /** Fast path: centre and scale of group g at 2g and 2g + 1 (one array: fewer loads per row); NaN for groups that are not fast. */
   readonly cs: Float64Array;
@@ -657,6 +660,8 @@ interface FlatFits {
   readonly q3: Float64Array;
   readonly lowScale: Float64Array;
   readonly highScale: Float64Array;
+  /** Fence fits on the plain unit (`fast` = FAST_FENCE): Q3, highScale, Q1, lowScale of group g at 4g .. 4g + 3. */
+  readonly fence: Float64Array;
 }
 
 /**
@@ -678,6 +683,9 @@ function scoreRows(
   let count = 0;
   if (anyFast) count += scoreFastRows(fits.cs, fits.popOf, groupOf, cutoff, hi, lo, y, scores, flagged, population, flaggedPerGroup);
   else scores.fill(NaN);
+  if (reach !== undefined && fits.fast.includes(FAST_FENCE)) {
+    count += scoreFenceRows(fits.fence, fits.fast, fits.popOf, groupOf, cutoff, hi, lo, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
+  }
   if (anyOther) count += scoreOtherRows(fits, groupOf, cutoff, hi, lo, exclusion, y, scores, flagged, population, reach, flaggedPerGroup);
   return count;
 }
@@ -730,7 +738,7 @@ function scoreOtherRows(
   for (let r = 0; r < n; r++) {
     const g = groupOf[r];
     const k = kind[g];
-    if (exclusion[r] !== 0 || k === KIND_NONE || fast[g] === 1) continue;
+    if (exclusion[r] !== 0 || k === KIND_NONE || fast[g] !== 0) continue;
     count++;
     population[r] = popOf[g];
     const v = y[r] / unit[g];
