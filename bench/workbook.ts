@@ -75,6 +75,7 @@ export const BENCH_SETTINGS: RunSettings = {
   minGroupSize: 8,
   smallGroups: 'pool',
   decimal: 'auto',
+  ignoreWithin: 0,
   reviewer: null,
   detailColumns: null,
 };

@@ -48,6 +48,7 @@ export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: strin
   smallGroups: { name: 'small-groups', kind: 'value' },
   // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
   decimal: null,
+  ignoreWithin: { name: 'ignore-within', kind: 'value' },
   reviewer: { name: 'reviewer', kind: 'value' },
   // The add-in's follow-up view only.
   detailColumns: null,
@@ -95,7 +96,7 @@ export function settingsFromOptions(opts: ReadonlyMap<string, readonly string[]>
       const def = SETTING_SPECS[k].fallback(defaultSettings());
       if (typeof def === 'number') {
         // A whole-number setting must be written as one ("2.5", "1e1", "0x10" are not).
-        const whole = Number.isInteger(def) && k !== 'cutoff';
+        const whole = Number.isInteger(def) && k !== 'cutoff' && k !== 'ignoreWithin';
         out[k] = text.trim() === '' || (whole && !/^\s*\d+\s*$/.test(text)) ? Number.NaN : Number(text);
       } else if (typeof def === 'string') out[k] = text.toLowerCase();
       else out[k] = text;
@@ -210,6 +211,8 @@ score options:
   --direction <d>         high | low | both (default both)
   --min-group <n>         smallest group scored on its own (default 8)
   --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)
+  --ignore-within <amount>  a claim within this amount of its group's centre is never flagged, whatever its
+                          score; also the unit of a group whose middle half is one amount (default 0: none)
   --log                   score the logarithm of amounts (for skewed amounts; amounts <= 0 are left out)
   --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
   --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)

@@ -47,6 +47,11 @@ export interface Settings {
   /** Decimal separator of text amounts: 'auto' decides per column from its cells (said in the notes), or given. */
   readonly decimal: DecimalMode;
   /**
+   * Money floor: a claim within this amount of its group's centre is never flagged, whatever its
+   * score (see src/scoring/moneyFloor.ts). 0 or more, in the amounts' units; 0 = no floor.
+   */
+  readonly ignoreWithin: number;
+  /**
    * Name or initials recorded in the log sheet with each run and status change; null = not given.
    * Office gives add-ins no user identity without sign-in, so this is what the reviewer typed.
    */
@@ -105,6 +110,11 @@ export const SETTING_SPECS: { readonly [K in SettingKey]: Spec<Settings[K]> } = 
   },
   smallGroups: { label: 'The small-group choice', fallback: () => 'pool', check: oneOf(SMALL_GROUP_POLICIES) },
   decimal: { label: 'The decimal separator', fallback: () => 'auto', check: oneOf(DECIMAL_MODES) },
+  ignoreWithin: {
+    label: 'The ignore-within amount',
+    fallback: () => 0,
+    check: (v) => (typeof v === 'number' && Number.isFinite(v) && v >= 0 ? null : 'must be an amount of 0 or more (0 = no floor)'),
+  },
   reviewer: {
     label: 'The reviewer name',
     fallback: () => null,
@@ -213,5 +223,6 @@ export function engineOptions(s: Settings): Required<ScoreOptions> {
     smallGroups: s.smallGroups,
     decimal: s.decimal,
     decimalComma: s.decimal === 'comma',
+    ignoreWithin: s.ignoreWithin,
   };
 }

@@ -21,6 +21,7 @@ function rawText(v: RawCell): string | null {
 export interface PlanJson {
   readonly method: string;
   readonly cutoff: number;
+  readonly ignoreWithin: number;
   readonly decimal: Record<string, { readonly separator: string; readonly how: string }>;
   readonly rows: Record<string, unknown>[];
   readonly groups: Record<string, unknown>[];
@@ -41,6 +42,7 @@ function rowEntry(col: Column, r: number, ids: readonly RawCell[] | null, multi:
   if (ids) entry.id = rawText(ids[r]);
   if (multi) entry.column = col.column;
   entry.comparedWith = POPULATIONS[col.population[r]];
+  if (col.withinFloor) entry.withinFloor = col.withinFloor[r] === 1;
   return entry;
 }
 
@@ -58,6 +60,8 @@ function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): R
     rule: describeGroupRule(col.method, g.medcouple),
     chanceRate: g.chanceRate,
     unreachable: g.unreachable,
+    fallbacks: g.fallbacks,
+    withinFloor: g.withinFloor,
   };
   if (multi) entry.column = col.column;
   return entry;
@@ -83,7 +87,7 @@ export function planToJson(plan: Plan): PlanJson {
     for (let r = 0; r < result.rowCount; r++) rows.push(rowEntry(col, r, ids, multi));
     for (const g of col.groups) groups.push(groupEntry(col, g, multi));
   }
-  return { method: result.options.method, cutoff: result.options.cutoff, decimal: decimalOf(plan), rows, groups };
+  return { method: result.options.method, cutoff: result.options.cutoff, ignoreWithin: result.options.ignoreWithin, decimal: decimalOf(plan), rows, groups };
 }
 
 const CHUNK_CHARS = 1 << 20;
@@ -96,7 +100,7 @@ export function* planJsonChunks(plan: Plan): Generator<string> {
   const { result } = plan;
   const multi = result.columns.length > 1;
   const ids = idCells(plan);
-  let buf = `{\n  "method": ${JSON.stringify(result.options.method)},\n  "cutoff": ${JSON.stringify(result.options.cutoff)},\n  "decimal": ${JSON.stringify(decimalOf(plan))},\n  "rows": [`;
+  let buf = `{\n  "method": ${JSON.stringify(result.options.method)},\n  "cutoff": ${JSON.stringify(result.options.cutoff)},\n  "ignoreWithin": ${JSON.stringify(result.options.ignoreWithin)},\n  "decimal": ${JSON.stringify(decimalOf(plan))},\n  "rows": [`;
   let first = true;
   for (const col of result.columns) {
     for (let r = 0; r < result.rowCount; r++) {

@@ -121,8 +121,8 @@ function tidy(x: number | null): number | null {
   return Number(x.toPrecision(4));
 }
 
-function round2(x: number): number | null {
-  return Number.isFinite(x) ? Math.round(x * 100) / 100 : null;
+function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
 }
 
 
@@ -164,7 +164,16 @@ function groupRow(g: GroupStats, method: MethodId): PlanCell[] {
     g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
     describeGroupRule(method, g.medcouple),
     g.chanceRate === null ? null : `${g.chanceRateAtMost ? 'fewer than 1 in ' + oneInN(g.chanceRate).replace('about 1 in ', '') : oneInN(g.chanceRate)}`,
+    g.withinFloor,
   ];
+}
+
+/** The money floor in the notes: the amount and how many claims past the cutoff it kept unflagged. */
+function ignoreWithinWords(result: ScoreResult): string {
+  const floor = result.options.ignoreWithin;
+  if (!(floor > 0)) return 'none (0): every claim past the cutoff is flagged';
+  const held = result.columns.reduce((sum, c) => sum + c.groups.reduce((s, g) => s + g.withinFloor, 0), 0);
+  return `${floor}: a claim within this amount of its group's centre is never flagged, whatever its score (${held} claim${held === 1 ? '' : 's'} past the cutoff kept unflagged)`;
 }
 
 const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.label > b.label ? 1 : 0);
@@ -172,6 +181,7 @@ const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.la
 const GROUP_TABLE_HEADER: PlanCell[] = [
   'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
   'Lower bound', 'Upper bound', 'Flagged', 'Fallbacks', 'Compared with', 'Medcouple (skew)', 'Rule applied and why', 'Claims flagged by chance at this size',
+  'Past the cutoff but within the ignore-within amount',
 ];
 
 /** Build the plan of a run. */
@@ -189,7 +199,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     const lazy = ctx.reasonText === 'on-demand';
     const reason: PlanCell[] = lazy ? [] : new Array<PlanCell>(rows);
     for (let r = 0; r < rows; r++) {
-      score[r] = round2(col.scores[r]);
+      // Full precision, shown to 2 decimals by the column's number format: the value in the cell
+      // is the one the flag was compared with (a 3.504 flagged at cutoff 3.5 reads 3.50 but holds
+      // 3.504, and its "why" text says 3.504).
+      score[r] = finiteOrNull(col.scores[r]);
       flag[r] = flagWord(col, r);
       if (!lazy) reason[r] = explainRowShort(result, col, r);
       if (col.flagged[r]) anyFlag[r] = 1;
@@ -259,6 +272,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
       ['Minimum group size', options.minGroupSize],
       ['Smaller groups', options.smallGroups === 'pool' ? 'compared with the whole column' : 'left unscored'],
+      ['Ignore within', ignoreWithinWords(result)],
       ...result.columns.map((c): PlanCell[] => ['Decimal separator', describeDecimal(c.column, c.decimal)]),
       ['Value columns', result.columns.map((c) => c.column).join(', ')],
       ['Group columns', result.groupColumns.length ? result.groupColumns.join(', ') : '(none)'],
@@ -372,6 +386,17 @@ function termsSection(result: ScoreResult): NotesSection {
       [`Why ("${h.reason}")`, 'The amount, the middle and spread of the group it was compared with, its score and the cutoff, in words.'],
       ['MAD', 'Median absolute deviation: the median distance of the amounts from their median. 1.4826 x MAD matches the standard deviation for normally distributed amounts.'],
       ['IQR', 'Interquartile range: Q3 - Q1, the width of the middle half of the amounts.'],
+      [
+        'Ignore within',
+        'An amount of money set by the reviewer: a claim within it of its group\'s centre is never flagged, whatever its score. ' +
+          'When the middle half of a group is one amount (a fixed allowance), the group has no spread of its own and this amount is its unit.',
+      ],
+      [
+        'Scale when MAD = 0',
+        'When more than half a group share one amount, its MAD is 0; the scale is then the group\'s own IQR / 1.349 ' +
+          '(normal-consistent, R stats::IQR documentation), which unusual claims cannot widen while they are fewer than a quarter of the group. ' +
+          'Nothing is borrowed from other groups.',
+      ],
       [STATUS_HEADER, 'Where the follow-up stands (see "Review statuses" below). Kept with its claim when the sheet is scored again.'],
       [NOTE_HEADER, 'The reviewer\'s own note on the claim, kept like the status.'],
     ],

@@ -117,9 +117,19 @@ function describeCutoffLinear(method: MethodId, cutoff: number, direction: Direc
 /**
  * Per row, the largest cutoff at which the row is still flagged in the column's direction
  * (robust / classic: z, -z or |z|; IQR: `fenceMultiple`); NaN for rows that can never be flagged
- * (not scored). Rows of no-spread / SD-zero groups have 0 and so are never flagged at a cutoff >= 0.
+ * (not scored, or within the money floor, `col.withinFloor`). Rows of no-spread / SD-zero groups
+ * have 0 and so are never flagged at a cutoff >= 0.
  */
 function reachOf(col: ColumnScores): Float64Array {
+  const reach = reachOfScores(col);
+  const within = col.withinFloor;
+  if (within === undefined) return reach;
+  const out = Float64Array.from(reach);
+  for (let r = 0; r < out.length; r++) if (within[r] === 1) out[r] = NaN;
+  return out;
+}
+
+function reachOfScores(col: ColumnScores): Float64Array {
   if (getMethod(col.method).kind === 'fence') {
     if (col.fenceMultiple === undefined) throw new Error('Fence scores lack fenceMultiple: re-run scoreTable with this version of Tailmark.');
     return col.fenceMultiple;

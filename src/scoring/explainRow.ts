@@ -1,5 +1,5 @@
 import { getMethod } from './methods/index.js';
-import { formatCutoff, formatNumber, formatScore } from './format.js';
+import { formatCutoff, formatNumber, formatScoreAgainst } from './format.js';
 import { FALLBACK_WORDS } from './fallbacks.js';
 import { EXCLUSION_LABELS, EXCLUSION_REASONS, type ColumnScores, type Direction, type GroupStats, type ScoreResult } from './types.js';
 
@@ -37,7 +37,7 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
       return `${amount} was left unscored: ${groupText} has n = ${g.n} usable values, fewer than the minimum ${min}.`;
     }
     const why = g.fallbacks.includes('iqr-zero')
-      ? 'its IQR is 0 and so is the whole column\'s, so there is no unit to measure by'
+      ? 'its IQR is 0 (the middle half is one amount) and no ignore-within amount is set, so there is no unit to measure by'
       : 'there are no usable values to compare with';
     return `${amount} was left unscored: in ${groupText} ${why}.`;
   }
@@ -49,7 +49,10 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   const log = col.logScale;
   // The pooled note above already says why a small group was compared with the whole column.
   const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled' && f !== 'small-skipped').map((f) => FALLBACK_WORDS[f]);
-  const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
+  const floor = heldByFloor(result, col, row)
+    ? ` It lies within ${formatNumber(result.options.ignoreWithin)} of the centre (the ignore-within amount), so it is not flagged whatever its score.`
+    : '';
+  const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${floor}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
   const fenceMethod = getMethod(col.method).kind === 'fence';
   const cut = `${fenceMethod ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
   const logNote = log ? ' (log scale)' : '';
@@ -61,7 +64,7 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
     const fences = stats.lower !== null && stats.upper !== null
       ? `fences ${formatNumber(stats.lower)} to ${formatNumber(stats.upper)}`
       : stats.upper !== null ? `upper fence ${formatNumber(stats.upper)}` : stats.lower !== null ? `lower fence ${formatNumber(stats.lower)}` : 'no fences';
-    const iqrName = stats.fallbacks.includes('iqr-zero') ? "column's IQR" : 'IQR';
+    const iqrName = stats.fallbacks.includes('spread-zero-used-floor') ? 'unit (ignore-within amount)' : 'IQR';
     const mc = stats.medcouple;
     const figures = adjusted
       ? `${fences}, ${iqrName}${log ? ' of ln amounts' : ''} ${formatNumber(stats.scale ?? 0, 3)} (between Tukey's hinges), medcouple ${mc === null ? 'n/a' : formatNumber(mc, 2)}, n = ${stats.n}`
@@ -70,17 +73,22 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
         : `Q1 ${fmtQ(stats, 'q1')}, Q3 ${fmtQ(stats, 'q3')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
     const unitWord = adjusted ? 'skew-adjusted IQRs' : 'IQRs';
     const where = z > 0
-      ? `is ${formatScore(z)} ${unitWord}${logNote} above the upper fence of ${against}`
+      ? `is ${formatScoreAgainst(z, 0)} ${unitWord}${logNote} above the upper fence of ${against}`
       : z < 0
-        ? `is ${formatScore(-z)} ${unitWord}${logNote} below the lower fence of ${against}`
+        ? `is ${formatScoreAgainst(-z, 0)} ${unitWord}${logNote} below the lower fence of ${against}`
         : `lies between the fences${logNote} of ${against}`;
     return `${amount} ${where} (${figures}); ${cut}. ${tail}`;
   }
   const robust = col.method === 'robust';
+  if (robust && stats.fallbacks.includes('no-spread') && v !== (stats.center ?? v)) {
+    return `${amount} was not scored against ${against} (median ${centreText(stats.center)}, n = ${stats.n}): ${FALLBACK_WORDS['no-spread']} ${pooledNote}Not flagged.`;
+  }
   const side = z > 0 ? 'above' : z < 0 ? 'below' : 'at';
   const centreName = robust ? 'median' : 'mean';
-  const scaleName = robust ? (stats.fallbacks.includes('mad-zero-used-meanad') ? '1.2533 x mean abs. deviation' : 'scaled MAD') : 'SD';
-  const scoreWords = `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'classic z'}${logNote}`;
+  const scaleName = robust
+    ? stats.fallbacks.includes('mad-zero-used-iqr') ? 'IQR / 1.349' : stats.fallbacks.includes('spread-zero-used-floor') ? 'unit = ignore-within amount' : 'scaled MAD'
+    : 'SD';
+  const scoreWords = `${formatScoreAgainst(Math.abs(z), col.cutoff)} ${robust ? 'robust z' : 'classic z'}${logNote}`;
   const lead = side === 'at' ? `is at the ${centreName}${logNote} of ${against}` : `is ${scoreWords} ${side} the ${centreName} of ${against}`;
   return `${amount} ${lead} (${centreName} ${centreText(stats.center)}, ${scaleName} ${scaleText(stats.scale)}, n = ${stats.n}); ${cut}. ${tail}`;
 }
@@ -107,17 +115,28 @@ export function explainRowShort(result: ScoreResult, col: ColumnScores, row: num
       : 'not scored: no spread to measure by';
   }
   const stats: GroupStats = pop === 2 ? col.pooled : g;
-  const vsColumn = pop === 2 ? ' (whole column)' : '';
+  const vsColumn = (pop === 2 ? ' (whole column)' : '') + (heldByFloor(result, col, row) ? `; within ${formatNumber(result.options.ignoreWithin)}: not flagged` : '');
   const z = col.scores[row];
   const log = col.logScale;
   const centre = (c: number | null): string => (c === null ? 'n/a' : formatNumber(log ? Math.exp(c) : c));
-  if (col.method === 'iqr') {
-    if (z > 0) return `${formatScore(z)} IQRs above upper fence ${stats.upper === null ? 'n/a' : formatNumber(stats.upper)}${vsColumn}`;
-    if (z < 0) return `${formatScore(-z)} IQRs below lower fence ${stats.lower === null ? 'n/a' : formatNumber(stats.lower)}${vsColumn}`;
+  if (getMethod(col.method).kind === 'fence') {
+    const unit = col.method === 'iqr' ? 'IQRs' : 'adj. IQRs';
+    if (z > 0) return `${formatScoreAgainst(z, 0)} ${unit} above upper fence ${stats.upper === null ? 'n/a' : formatNumber(stats.upper)}${vsColumn}`;
+    if (z < 0) return `${formatScoreAgainst(-z, 0)} ${unit} below lower fence ${stats.lower === null ? 'n/a' : formatNumber(stats.lower)}${vsColumn}`;
     return `within the fences${vsColumn}`;
   }
   const robust = col.method === 'robust';
   const centreName = robust ? 'median' : 'mean';
+  if (robust && stats.fallbacks.includes('no-spread') && col.values[row] !== (stats.center ?? col.values[row])) return `no spread to score by (middle half one amount)${vsColumn}`;
   if (z === 0) return `at the ${centreName}${vsColumn}`;
-  return `${formatScore(Math.abs(z))} ${robust ? 'robust z' : 'z'} ${z > 0 ? 'above' : 'below'} ${centreName} ${centre(stats.center)}${vsColumn}`;
+  return `${formatScoreAgainst(Math.abs(z), col.cutoff)} ${robust ? 'robust z' : 'z'} ${z > 0 ? 'above' : 'below'} ${centreName} ${centre(stats.center)}${vsColumn}`;
+}
+
+/** True when the row's score passed the cutoff but the money floor kept it from being flagged. */
+function heldByFloor(result: ScoreResult, col: ColumnScores, row: number): boolean {
+  if (col.withinFloor?.[row] !== 1 || col.flagged[row] === 1) return false;
+  const fence = getMethod(col.method).kind === 'fence';
+  const z = col.scores[row];
+  const reach = fence ? (col.fenceMultiple?.[row] ?? NaN) : col.direction === 'high' ? z : col.direction === 'low' ? -z : Math.abs(z);
+  return reach > result.options.cutoff;
 }

@@ -6,11 +6,15 @@
 import type { Fallback } from './types.js';
 
 export const FALLBACK_WORDS: Record<Fallback, string> = {
-  'mad-zero-used-meanad': 'More than half the values share the median (MAD = 0), so the scale is 1.2533 x the mean absolute deviation around the median instead.',
-  'no-spread': 'Every value equals the median (no spread), so nothing can be flagged.',
+  'mad-zero-used-iqr':
+    "More than half the values share the median (MAD = 0), so the scale is the group's own IQR / 1.349 instead (normal-consistent, as R's IQR documentation gives; unusual claims cannot widen it while they are fewer than a quarter of the group).",
+  'spread-zero-used-floor':
+    "The middle half of the group is one amount (no spread of its own), so the unit is the ignore-within amount: a claim's score is its distance from that amount in ignore-within amounts (nothing is borrowed from other groups).",
+  'no-spread':
+    'The middle half of the group is one amount (no spread of its own), so no score can be measured and nothing is flagged; set an ignore-within amount to flag claims that differ from that amount by more.',
   'sd-zero': 'The standard deviation is 0 (all values equal), so nothing can be flagged.',
   'iqr-zero':
-    "The group's IQR is 0, so its fences are Q1 - k x and Q3 + k x the whole column's IQR (scores count the column's IQRs); if the column's IQR is 0 too, the group is not scored.",
+    "The group's IQR is 0 (its middle half is one amount), so it has no spread of its own to draw fences with.",
   'small-pooled': 'The group is smaller than the minimum size, so its claims are compared with the whole column.',
   'small-skipped': 'The group is smaller than the minimum size, so its claims are left unscored.',
   'cutoff-unreachable': 'In a group of this size no score of this method can pass the cutoff, whatever the amounts (classic z: (n - 1)/sqrt(n) <= cutoff, Shiffler 1988; other methods: maxReach.ts).',

@@ -28,6 +28,21 @@ export function formatScore(z: number): string {
   return formatNumber(z, Math.abs(z) < 1 ? 2 : 1);
 }
 
+/**
+ * A score shown beside the cutoff it is compared with: as `formatScore`, with more decimals (up to
+ * 15) when that rounding would put the shown number on the other side of the cutoff or on it, so
+ * that a flagged 3.504 at cutoff 3.5 reads "3.504", never "3.5". The flag is decided on the full
+ * value (the one written to the sheet, formatted to 2 decimals there); this keeps the words honest.
+ */
+export function formatScoreAgainst(z: number, cutoff: number): string {
+  if (!Number.isFinite(z)) return 'n/a';
+  const side = (v: number): number => (v > cutoff ? 1 : v < cutoff ? -1 : 0);
+  let d = Math.abs(z) < 1 ? 2 : 1;
+  let s = formatNumber(z, d);
+  while (d < 15 && side(Number(s.replace(/,/g, ''))) !== side(z)) s = formatNumber(z, ++d);
+  return s;
+}
+
 /** A cutoff as typed: up to 4 decimals, trailing zeros dropped (3.5, 3, 1.5, 2.25). */
 export function formatCutoff(c: number): string {
   if (!Number.isFinite(c)) return 'n/a';

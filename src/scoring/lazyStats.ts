@@ -188,6 +188,7 @@ export interface StatsTail {
   readonly chanceRate: number | null;
   readonly chanceRateAtMost: boolean;
   readonly unreachable: boolean;
+  readonly withinFloor: number;
 }
 
 /**
@@ -222,5 +223,6 @@ export function lazyGroupStats(
     chanceRate: tail.chanceRate,
     chanceRateAtMost: tail.chanceRateAtMost,
     unreachable: tail.unreachable,
+    withinFloor: tail.withinFloor,
   };
 }

@@ -3,9 +3,8 @@ import { median } from './median.js';
 /**
  * Factor that turns the mean absolute deviation into a normal-consistent scale:
  * E|X - mu| = sigma * sqrt(2 / pi) for normal X, so sigma = sqrt(pi / 2) x meanAD = 1.2533 x meanAD.
- * Used as the scale when MAD = 0 (fallback 'mad-zero-used-meanad'), as in the modified z-score
- * convention 1.253314 x MeanAD (IBM SPSS documentation of the modified z-score; also discussed by
- * Iglewicz & Hoaglin 1993).
+ * A descriptive statistic of the notes (GroupStats.meanAbsDev). It is no longer the scale when
+ * MAD = 0 (see methods/robust.ts): the claims it should catch widen it.
  */
 export const MEANAD_NORMAL_CONSTANT = Math.sqrt(Math.PI / 2);
 

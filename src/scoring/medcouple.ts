@@ -1,4 +1,5 @@
 import { quickselect } from './quickselect.js';
+import { sortFloat64 } from './sortFloat64.js';
 
 /**
  * Medcouple: a robust measure of skewness, the median of the kernel
@@ -35,7 +36,7 @@ export function medcouple(xs: ArrayLike<number>): number {
   const n = xs.length;
   const a = new Float64Array(n);
   for (let i = 0; i < n; i++) a[i] = xs[i];
-  a.sort();
+  sortFloat64(a);
   return medcoupleSorted(a, n);
 }
 
@@ -49,9 +50,15 @@ export function medcoupleSorted(sorted: Float64Array, n: number): number {
   const mid = n >> 1;
   const m = n % 2 === 1 ? sorted[mid] : sorted[mid - 1] + (sorted[mid] - sorted[mid - 1]) / 2;
   if (sorted[0] === sorted[n - 1]) return 0;
-  // Scale so that |z| <= 1/2 (the kernel is scale free; this keeps a - b from overflowing).
+  // Scale by a power of two so that |z| <= 1/2: the kernel is scale free, this keeps a - b from
+  // overflowing, and multiplying by a power of two is exact, so every kernel value is the one the
+  // unscaled values give.
   const span = Math.max(sorted[n - 1] - m, m - sorted[0]);
-  const scale = Number.isFinite(span) && span > 0 ? 2 * span : 1;
+  let inv = 1;
+  if (Number.isFinite(span) && span > 0) {
+    inv = 2 ** -(Math.ceil(Math.log2(span)) + 1);
+    if (span * inv > 0.5) inv /= 2;
+  }
   // z+ : values >= m, descending; z- : values <= m, descending.
   let firstHigh = 0; // first index with sorted[i] >= m
   while (sorted[firstHigh] < m) firstHigh++;
@@ -62,8 +69,8 @@ export function medcoupleSorted(sorted: Float64Array, n: number): number {
   const ws = workspace(p, q);
   const zp = ws.zp;
   const zm = ws.zm;
-  for (let i = 0; i < p; i++) zp[i] = (sorted[n - 1 - i] - m) / scale;
-  for (let j = 0; j < q; j++) zm[j] = (sorted[lastLow - j] - m) / scale;
+  for (let i = 0; i < p; i++) zp[i] = (sorted[n - 1 - i] - m) * inv;
+  for (let j = 0; j < q; j++) zm[j] = (sorted[lastLow - j] - m) * inv;
   const total = p * q;
   // Ranks counted from the largest (1-based).
   if (total % 2 === 1) return kthLargest(ws, p, q, (total + 1) / 2);
@@ -75,6 +82,9 @@ export function medcoupleSorted(sorted: Float64Array, n: number): number {
 
 /** Rows whose middle candidates a round's trial value is taken from while rounds go well. */
 const SAMPLE_ROWS = 48;
+
+/** How far past the wanted entry's place (as a share of the candidates) a round's trial is aimed; see `kthLargest`. */
+const AIM = 0.05;
 
 /**
  * Work arrays, kept between calls (one medcouple per group of a column: allocating a dozen typed
@@ -120,7 +130,7 @@ function workspace(p: number, q: number): Workspace {
  * measured fastest (2 (p + q): 4 % slower, 8 (p + q): 2 % slower).
  */
 function gatherLimit(p: number, q: number): number {
-  return Math.max(4 * (p + q), 64);
+  return Math.max(6 * (p + q), 64);
 }
 
 /** Kernel entry H[i][j] (see `medcouple`): z+ descending in rows, z- descending in columns. */
@@ -202,7 +212,17 @@ function kthLargest(ws: Workspace, p: number, q: number, k: number): number {
       }
     }
     pending = KEEP_ALL;
-    const trial = weightedMedian(rowMid, weight, rows);
+    // Which weighted quantile of the middles: the median, as published, unless the wanted entry
+    // sits far from the middle of the candidates (after a few rounds it lies near the edge the
+    // last trial left); then one AIM nearer to it, still on the side of the bulk. A weighted
+    // phi-quantile of the row middles has at least phi/2 of the candidates at or below it and
+    // (1 - phi)/2 at or above it, so a round still discards at least 1/2 min(phi, 1 - phi).
+    let phi = 0.5;
+    if (!exact) {
+      const wanted = 1 - (k - sumLeft - 0.5) / candidates; // its place among the candidates, ascending
+      phi = wanted < 0.5 ? Math.min(0.5, wanted + AIM) : Math.max(0.5, wanted - AIM);
+    }
+    const trial = weightedQuantile(rowMid, weight, rows, phi);
     const before = candidates;
     // above[i] = #{j : H[i][j] > trial}, atOrAbove[i] = #{j : H[i][j] >= trial}.
     const sumAbove = countBoth(ws, p, trial);
@@ -253,8 +273,10 @@ const KEEP_BELOW = 2;
  * either way decides it, since the rounded quotient x / y then lies more than a few units in the
  * last place from the trial on that side (the rounding errors of the product, the difference and
  * the quotient are each at most 2^-53 relative); only nearer than that is the quotient computed
- * and compared (and for magnitudes below 1e-288, where 1e-300 is added to the margin). A division costs several multiplications' time, and the count walks are the
- * medcouple's inner loop.
+ * and compared. The margin used, 2e-12 y, is at least that (|x| <= y since a >= 0 >= b, and
+ * |trial| <= 1: trials are kernel values), plus 1e-300 so that values near the smallest doubles
+ * always take the division. A division costs several multiplications' time, and the count walks
+ * are the medcouple's inner loop.
  */
 function versus(a: number, b: number, trial: number, p: number, i: number, j: number): number {
   const x = a + b;
@@ -267,7 +289,7 @@ function versus(a: number, b: number, trial: number, p: number, i: number, j: nu
   }
   const ty = trial * y;
   const d = x - ty;
-  const margin = 1e-12 * (Math.abs(x) + Math.abs(ty)) + 1e-300;
+  const margin = 2e-12 * y + 1e-300;
   if (d > margin) return 1;
   if (d < -margin) return -1;
   const h = x / y;
@@ -326,21 +348,29 @@ function countBoth(ws: Workspace, p: number, trial: number): number {
  * (quickselect-style three-way partitioning on a middle pivot).
  */
 export function weightedMedian(v: Float64Array, w: Float64Array, m: number): number {
+  return weightedQuantile(v, w, m, 0.5);
+}
+
+/**
+ * Weighted phi-quantile of `v[0..m-1]` with positive weights `w` (both rearranged): the smallest
+ * value whose cumulative weight (values sorted ascending) reaches phi times the total.
+ */
+export function weightedQuantile(v: Float64Array, w: Float64Array, m: number, phi: number): number {
   let total = 0;
   for (let i = 0; i < m; i++) total += w[i];
-  let half = total / 2;
+  let half = total * phi;
   let lo = 0;
   let hi = m - 1;
   // Pivot: median of three pseudo-random picks (a fixed LCG, so results never depend on chance);
   // fixed positions degrade on the monotone runs the rounds produce.
   let seed = 0x2545f491;
-  const pick = (): number => {
-    seed = (Math.imul(seed, 1103515245) + 12345) >>> 0;
-    return lo + (seed % (hi - lo + 1));
-  };
   for (;;) {
     if (lo === hi) return v[lo];
-    const pivot = medianOfThree(v[pick()], v[pick()], v[pick()]);
+    const range = hi - lo + 1;
+    const s1 = (Math.imul(seed, 1103515245) + 12345) >>> 0;
+    const s2 = (Math.imul(s1, 1103515245) + 12345) >>> 0;
+    seed = (Math.imul(s2, 1103515245) + 12345) >>> 0;
+    const pivot = medianOfThree(v[lo + (s1 % range)], v[lo + (s2 % range)], v[lo + (seed % range)]);
     // Three-way partition [lo, hi]: [lo, lt) < pivot, [lt, gt] == pivot, (gt, hi] > pivot.
     let lt = lo;
     let gt = hi;

@@ -3,12 +3,13 @@ import { maxAttainableZ } from './methods/classic.js';
 import { maxReach } from './maxReach.js';
 import { getMethod } from './methods/index.js';
 import type { Fit, ScoringMethod } from './methods/method.js';
-import { NO_FIT } from './methods/method.js';
+import { floorUnit, NO_FIT } from './methods/method.js';
 import { groupRows, type Grouping } from './groups.js';
 import { DescriptiveStore, lazyGroupStats, SCORING_FIELDS, type StatsTail } from './lazyStats.js';
 import { parseCell } from './parseCell.js';
 import { inferDecimal } from './inferDecimal.js';
 import { FAST_FENCE, scoreFenceRows } from './scoreFenceRows.js';
+import { applyMoneyFloor, moneyCentre } from './moneyFloor.js';
 import { summarizeFor } from './summarizeFor.js';
 import { constantSummary, EMPTY_SUMMARY, isExtreme, real, type Summary } from './summary.js';
 import {
@@ -50,7 +51,7 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const method = getMethod(merged.method);
   const cutoff = merged.cutoff ?? method.defaultCutoff;
   const minGroupSize = merged.minGroupSize;
-  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !((merged.ignoreWithin ?? 0) >= 0) || !Number.isFinite(merged.ignoreWithin ?? 0) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
     throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
@@ -62,6 +63,7 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
     smallGroups: merged.smallGroups,
     decimalComma: merged.decimalComma === true,
     decimal: merged.decimalComma === true ? 'comma' : decimalMode(merged.decimal),
+    ignoreWithin: merged.ignoreWithin ?? 0,
   };
 }
 
@@ -222,7 +224,7 @@ function scoreColumn(
     if (colFit !== null) return colFit;
     const all = logScale ? store.gather(Math.log) : store.gather();
     const s = summarizeFor(method.id, all, 0, nAll, all);
-    colFit = { s, fit: method.fit(s, opts.cutoff, opts.direction, () => s) };
+    colFit = { s, fit: method.fit(s, opts.cutoff, opts.direction, () => s, floorUnit(opts.ignoreWithin, s.median, s.unit, logScale)) };
     return colFit;
   };
 
@@ -247,10 +249,17 @@ function scoreColumn(
     flat, groupOf, opts.cutoff, opts.direction,
     exclusion, y, scores, flagged, population, reach, flaggedPerGroup,
   );
+  // 4b. The money floor: claims within it of their population's centre are not flagged.
+  const withinPerGroup = new Int32Array(nGroups);
+  let withinFloor: Uint8Array | undefined;
+  if (opts.ignoreWithin > 0) {
+    const centreOf = Float64Array.from(fits, (f) => (f.kind === 'none' ? NaN : moneyCentre(f.center, f.unit, logScale)));
+    withinFloor = applyMoneyFloor(opts.ignoreWithin, values, population, groupOf, centreOf, flagged, flaggedPerGroup, withinPerGroup);
+  }
 
   // 5. Per-group results (descriptive fields lazy).
   const bits = SCORING_FIELDS[method.id];
-  const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, groupFallbacks, popOf, opts, nAll);
+  const groups = buildGroups(grouping, count, gCounts, store, scoringSummaries, bits, fits, logScale, flaggedPerGroup, withinPerGroup, groupFallbacks, popOf, opts, nAll);
   const flaggedRows = sumOf(flaggedPerGroup, popOf, -1);
   const pooledFlagged = sumOf(flaggedPerGroup, popOf, POP_COLUMN);
 
@@ -263,7 +272,7 @@ function scoreColumn(
     pooled = lazyGroupStats(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
       store, -1, logScale ? null : whole.s, bits,
-      statsTail(whole.fit, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll, opts, nAll),
+      statsTail(whole.fit, logScale, pooledFlagged, sumOf(withinPerGroup, popOf, POP_COLUMN), dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', nAll, opts, nAll),
       logScale,
     );
     return pooled;
@@ -289,6 +298,7 @@ function scoreColumn(
   col.scoredRows = scoredRows;
   col.flaggedRows = flaggedRows;
   if (reach !== undefined) col.fenceMultiple = reach;
+  if (withinFloor !== undefined) col.withinFloor = withinFloor;
   return col as unknown as ColumnScores;
 }
 
@@ -319,7 +329,7 @@ function fitGroups(
         const slice = yOrdered.subarray(start[g], start[g] + n);
         s = summarizeFor(method.id, slice, 0, n, slice);
       } else throw new Error('internal: no values to fit');
-      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
+      fit = method.fit(s, opts.cutoff, opts.direction, columnSummary, floorUnit(opts.ignoreWithin, s.median, s.unit, opts.logScale));
       popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
       fallbacks = dedupe(fit.fallbacks);
     } else if (opts.smallGroups === 'pool' && n > 0) {
@@ -509,7 +519,7 @@ function sumOf(values: Int32Array, popOf: Uint8Array, pop: number): number {
 /** One GroupStats per group, descriptive fields lazy (see lazyStats.ts). */
 function buildGroups(
   grouping: Grouping, count: Int32Array, gCounts: Int32Array, store: DescriptiveStore, scoringSummaries: readonly (Summary | null)[],
-  bits: number, fits: readonly Fit[], logScale: boolean, flaggedPerGroup: Int32Array, groupFallbacks: readonly Fallback[][], popOf: Uint8Array,
+  bits: number, fits: readonly Fit[], logScale: boolean, flaggedPerGroup: Int32Array, withinPerGroup: Int32Array, groupFallbacks: readonly Fallback[][], popOf: Uint8Array,
   opts: Required<ScoreOptions>, nAll: number,
 ): GroupStats[] {
   const nGroups = count.length;
@@ -520,7 +530,7 @@ function buildGroups(
     groups[g] = lazyGroupStats(
       { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
       store, g, scoringSummaries[g], bits,
-      statsTail(fits[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n, opts, popOf[g] === POP_COLUMN ? nAll : n),
+      statsTail(fits[g], logScale, flaggedPerGroup[g], withinPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], n, opts, popOf[g] === POP_COLUMN ? nAll : n),
       logScale,
     );
   }
@@ -575,7 +585,7 @@ function scatter(groupOf: Int32Array, exclusion: Uint8Array, y: Float64Array, yO
 
 /** The fit-derived fields of a GroupStats: centre, scale and bounds in real (bounds: original) units, and the rest. */
 function statsTail(
-  fit: Fit, logScale: boolean, flagged: number, fallbacks: readonly Fallback[], population: Population, n: number,
+  fit: Fit, logScale: boolean, flagged: number, withinFloor: number, fallbacks: readonly Fallback[], population: Population, n: number,
   opts: Required<ScoreOptions>, popN: number,
 ): StatsTail {
   const scored = fit.kind !== 'none';
@@ -594,6 +604,7 @@ function statsTail(
     chanceRate: chance === null ? null : chance.rate,
     chanceRateAtMost: chance !== null && chance.atMost,
     unreachable,
+    withinFloor,
   };
 }
 

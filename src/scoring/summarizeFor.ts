@@ -2,6 +2,7 @@ import { medcoupleSorted } from './medcouple.js';
 import { medianInPlace } from './median.js';
 import { tukeyHingesSorted } from './tukeyHinges.js';
 import { minOfRange, quickselect } from './quickselect.js';
+import { sortFloat64 } from './sortFloat64.js';
 import { constantSummary, EMPTY_SUMMARY, powerOfTwoUnit, type Summary, typeSevenWithin } from './summary.js';
 import type { MethodId } from './types.js';
 
@@ -69,7 +70,8 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
   }
   if (method === 'adjusted' || method === 'skew') {
     // One sort gives the median, Tukey's hinges and the medcouple.
-    const sorted = scratch.subarray(0, n).sort();
+    sortFloat64(scratch, 0, n - 1);
+    const sorted = scratch;
     const { low, high } = tukeyHingesSorted(sorted, n);
     const median = n % 2 === 1 ? sorted[n >> 1] : sorted[(n >> 1) - 1] + (sorted[n >> 1] - sorted[(n >> 1) - 1]) / 2;
     const mc = medcoupleSorted(sorted, n);
@@ -84,8 +86,18 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     const q3 = typeSevenWithin(scratch, n, 0.75, k, n - 1);
     return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1, q3, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
   }
-  // robust: deviations from the median (read from the scratch, which holds the same values,
-  // permuted and scaled), then their median.
+  // robust: when more than half the values could equal the median (MAD = 0 then), the quartiles
+  // for the fallback scale (methods/robust.ts), before the values give way to their deviations.
+  let q1 = NaN;
+  let q3 = NaN;
+  let ties = 0;
+  for (let i = 0; i < n; i++) ties += +(scratch[i] === median);
+  if (2 * ties >= n) {
+    q1 = typeSevenWithin(scratch, n, 0.25, 0, k);
+    q3 = typeSevenWithin(scratch, n, 0.75, k, n - 1);
+  }
+  // Deviations from the median (read from the scratch, which holds the same values, permuted and
+  // scaled), then their median.
   let sad = 0;
   for (let i = 0; i < n; i++) {
     const d = Math.abs(scratch[i] - median);
@@ -93,5 +105,5 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     sad += d;
   }
   const mad = medianInPlace(scratch, n);
-  return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
+  return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1, q3, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
 }

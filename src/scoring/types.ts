@@ -90,6 +90,12 @@ export interface ScoreOptions {
   readonly decimalComma?: boolean;
   /** Decimal separator of text cells, per value column; default 'auto' (decided from each column's cells). */
   readonly decimal?: DecimalMode;
+  /**
+   * Money floor, in the amounts' own units (not ln units on log scale): a claim within this amount
+   * of the centre of the population it is scored against is never flagged, whatever its score.
+   * 0 (the default) = no floor. See `moneyFloor.ts`.
+   */
+  readonly ignoreWithin?: number;
 }
 
 export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId } = {
@@ -100,6 +106,7 @@ export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId 
   smallGroups: 'pool',
   decimalComma: false,
   decimal: 'auto',
+  ignoreWithin: 0,
 };
 
 /** Which population a row was compared with. Numeric code = index. */
@@ -108,9 +115,11 @@ export type Population = (typeof POPULATIONS)[number];
 
 /** A fallback the engine had to take for a group, reported per group. */
 export type Fallback =
-  /** MAD was 0; the scale is 1.2533 x mean absolute deviation around the median. */
-  | 'mad-zero-used-meanad'
-  /** MAD and mean absolute deviation were both 0: every value equals the centre, nothing flagged. */
+  /** MAD was 0; the scale is the group's own IQR / 1.349 (see `methods/robust.ts`). */
+  | 'mad-zero-used-iqr'
+  /** The group's middle half is one amount (MAD and IQR 0): the unit is the ignore-within amount (`moneyFloor.ts`). */
+  | 'spread-zero-used-floor'
+  /** The group's middle half is one amount and no ignore-within amount is set: nothing can be flagged. */
   | 'no-spread'
   /** SD was 0 (classic): nothing flagged. */
   | 'sd-zero'
@@ -173,6 +182,8 @@ export interface GroupStats {
   readonly chanceRateAtMost: boolean;
   /** No claim of this group can reach the cutoff, whatever the amounts (`maxReach.ts`); also listed as 'cutoff-unreachable'. */
   readonly unreachable: boolean;
+  /** Claims whose score passed the cutoff but that lie within the money floor (`ignoreWithin`) of the centre, so not flagged. */
+  readonly withinFloor: number;
 }
 
 /**
@@ -216,6 +227,11 @@ export interface ColumnScores {
   readonly fenceMultiple?: Float64Array;
   /** The decimal separator the column's text cells were read with, and why. */
   readonly decimal: DecimalReading;
+  /**
+   * With a money floor (`ignoreWithin` > 0): 1 for every scored row within the floor of its
+   * population's centre (never flagged, at any cutoff), else 0. Absent without a floor.
+   */
+  readonly withinFloor?: Uint8Array;
 }
 
 /** Input to the engine: a table of raw cells, by column. */

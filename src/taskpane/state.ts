@@ -237,6 +237,7 @@ export function initialSettings(table: DetectedTable, saved: RunSettings | null)
     minGroupSize: DEFAULT_OPTIONS.minGroupSize,
     smallGroups: DEFAULT_OPTIONS.smallGroups,
     decimal: 'auto',
+    ignoreWithin: 0,
     reviewer: null,
     detailColumns: null,
   };

@@ -1,11 +1,11 @@
 /**
- * Issue 7: the IQR = 0 fallback was described three ways (notes: "fences sit at Q1 and Q3"; row
- * explanation: the column's IQR is the unit; bounds: computed with the column's IQR). Now one
- * description, and the bounds printed beside it match it.
+ * Issue 7 and issue 9 (item 5): the IQR = 0 fallback is described once (notes, row explanation,
+ * bounds agree), and it no longer borrows the whole column's IQR: a group whose middle half is one
+ * amount is measured in the ignore-within amount, or not scored without one.
  *
  * Expected bounds are computed here from the definition: type-7 quartiles (Hyndman & Fan 1996,
- * what QUARTILE.INC computes), fences Q1 - 1.5 x IQR_column and Q3 + 1.5 x IQR_column (Tukey 1977
- * with the project's documented IQR = 0 choice, src/scoring/methods/iqr.ts).
+ * what QUARTILE.INC computes), fences Q1 - 1.5 x floor and Q3 + 1.5 x floor (Tukey 1977 with the
+ * project's documented IQR = 0 choice, src/scoring/methods/iqr.ts).
  */
 import { describe, expect, it } from 'vitest';
 import { runPipeline } from '../../src/pipeline/index.js';
@@ -19,38 +19,57 @@ function q7(values: readonly number[], p: number): number {
   return x[lo] + (h - lo) * ((x[Math.min(lo + 1, x.length - 1)] ?? x[lo]) - x[lo]);
 }
 
-describe('IQR = 0 fallback: one description for notes, bounds and row explanation', () => {
-  const a = [5, 5, 5, 5, 5, 5, 5, 5, 5, 50];
-  const b = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10];
+const a = [5, 5, 5, 5, 5, 5, 5, 5, 5, 50];
+const b = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10];
+
+function run(groups: readonly (readonly number[])[], ignoreWithin: number) {
+  const labels = ['A', 'B', 'C'];
   const table = {
     source: 'test',
     sheetName: 'S',
     headers: ['Team', 'Amount'],
-    columns: [[...a.map(() => 'A'), ...b.map(() => 'B')], [...a, ...b]],
-    rowCount: 20,
+    columns: [groups.flatMap((g, i) => g.map(() => labels[i])), groups.flat()],
+    rowCount: groups.flat().length,
     headerRow: 1,
     firstColumn: 0,
   };
-  const run = runPipeline(table, { valueColumns: ['Amount'], groupColumns: ['Team'], method: 'iqr', minGroupSize: 5 }, { when: new Date(0) });
-  const colIqr = q7([...a, ...b], 0.75) - q7([...a, ...b], 0.25);
-  const groupTable = run.plan.notes.sections.find((s) => s.title === 'Groups: Amount')!.rows;
+  return runPipeline(table, { valueColumns: ['Amount'], groupColumns: ['Team'], method: 'iqr', minGroupSize: 5, ignoreWithin }, { when: new Date(0) });
+}
+
+describe('IQR = 0 fallback: the group\'s own quartiles, the ignore-within amount as the unit', () => {
+  const withFloor = run([a, b], 1);
+  const groupTable = withFloor.plan.notes.sections.find((s) => s.title === 'Groups: Amount')!.rows;
   const header = groupTable[0];
   const rowA = groupTable.find((r) => r[0] === 'A')!;
   const cell = (name: string) => rowA[header.indexOf(name)];
 
-  it('the bounds are the group quartiles -/+ 1.5 x the column IQR', () => {
+  it('the bounds are the group quartiles -/+ 1.5 x the ignore-within amount, and the far claim is flagged', () => {
     expect(q7(a, 0.75) - q7(a, 0.25)).toBe(0);
-    expect(cell('Lower bound')).toBeCloseTo(5 - 1.5 * colIqr, 2);
-    expect(cell('Upper bound')).toBeCloseTo(5 + 1.5 * colIqr, 2);
+    expect(cell('Lower bound')).toBe(q7(a, 0.25) - 1.5 * 1);
+    expect(cell('Upper bound')).toBe(q7(a, 0.75) + 1.5 * 1);
+    expect(withFloor.result.columns[0].flagged[9]).toBe(1);
   });
 
   it('the notes and the row explanation say the same about it, and what the bounds say', () => {
     const notesWords = String(cell('Fallbacks'));
-    expect(notesWords).toMatch(/whole column's IQR/);
-    expect(notesWords).not.toMatch(/fences sit at Q1 and Q3/);
-    // The row's full explanation (the pane shows it; the cell holds the short form of explainRowShort).
-    const reason = explainRow(run.result, run.result.columns[0], 9);
+    expect(notesWords).toMatch(/ignore-within amount/);
+    expect(notesWords).not.toMatch(/whole column/);
+    const reason = explainRow(withFloor.result, withFloor.result.columns[0], 9);
     expect(reason).toContain(notesWords);
-    expect(String(run.plan.columns.find((c) => c.kind === 'reason')!.values[9])).toMatch(/IQRs above upper fence/);
+    expect(String(withFloor.plan.columns.find((c) => c.kind === 'reason')!.values[9])).toMatch(/IQRs above upper fence/);
+  });
+
+  it('the fences do not move when unrelated groups are added or removed (nothing borrowed)', () => {
+    const alone = run([a], 1).result.columns[0].groups[0];
+    const crowd = run([a, b, b.map((v) => v * 1000)], 1).result.columns[0].groups.find((g) => g.label === 'A')!;
+    expect([crowd.lower, crowd.upper]).toEqual([alone.lower, alone.upper]);
+  });
+
+  it('without an ignore-within amount the group is not scored, and says so', () => {
+    const none = run([a, b], 0);
+    const g = none.result.columns[0].groups.find((x) => x.label === 'A')!;
+    expect(g.fallbacks).toEqual(['iqr-zero', 'no-spread']);
+    expect(none.result.columns[0].flagged[9]).toBe(0);
+    expect(explainRow(none.result, none.result.columns[0], 9)).toMatch(/no ignore-within amount is set/);
   });
 });

@@ -39,11 +39,12 @@ describe('explainRow', () => {
       `(median ${formatNumber(g.median!)}, scaled MAD ${formatNumber(g.scaledMad!)}, n = 11); cutoff 3.5, both directions. Flagged.`,
     );
   });
-  it('mentions the MAD = 0 fallback', () => {
+  it('a group whose middle half is one amount (MAD and IQR 0, no ignore-within amount): says it has no spread to score by', () => {
+    // CC-520 / Meals: 30 x 8, 31, 45: Q1 = Q3 = 30 (type 7), so no scale of the group's own.
     const text = explainRow(res, col, 20);
-    expect(text).toMatch(/^Amount 45\.00 is [\d.,]+ robust z above the median of its group "CC-520 \/ Meals"/);
-    expect(text).toContain('1.2533');
-    expect(text).toContain('MAD = 0');
+    expect(text).toMatch(/^Amount 45\.00 was not scored against its group "CC-520 \/ Meals" \(median 30\.00, n = 10\)/);
+    expect(text).toContain('set an ignore-within amount');
+    expect(explainRowShort(res, col, 20)).toBe('no spread to score by (middle half one amount)');
   });
   it('pooled row: compared with the whole column because the group had n < min', () => {
     const text = explainRow(res, col, 21);

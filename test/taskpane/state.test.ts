@@ -253,6 +253,7 @@ describe('in-memory preview', () => {
     minGroupSize: 8,
     smallGroups: 'pool',
     decimal: 'auto',
+    ignoreWithin: 0,
     reviewer: null,
     detailColumns: null,
   };

@@ -73,6 +73,7 @@ export const SETTINGS: RunSettings = {
   minGroupSize: 8,
   smallGroups: 'pool',
   decimal: 'auto',
+  ignoreWithin: 0,
   reviewer: null,
   detailColumns: null,
 };

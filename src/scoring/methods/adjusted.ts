@@ -1,6 +1,6 @@
 import type { Summary } from '../summary.js';
 import type { Direction, Fallback } from '../types.js';
-import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method.js';
+import { type Fit, NO_FIT, type ScoringMethod } from './method.js';
 
 /**
  * Adjusted boxplot for skewed data (Hubert & Vandervieren 2008): with the medcouple MC of the
@@ -19,7 +19,8 @@ import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method
  * this method is k.
  *
  * Cost: O(n log n) per group (one sort: hinges and the medcouple by the Brys-Hubert-Struyf
- * algorithm). Degenerate input: IQR = 0 -> as the IQR method ('iqr-zero'). Empty: not scored.
+ * algorithm). Degenerate input: IQR = 0 -> as the IQR method ('iqr-zero': the ignore-within
+ * amount as the unit on both sides, or not scored without one). Empty: not scored.
  *
  * Source: M. Hubert & E. Vandervieren, "An adjusted boxplot for skewed distributions",
  * Computational Statistics & Data Analysis 52(12):5186-5201, 2008; medcouple: G. Brys, M. Hubert &
@@ -32,8 +33,8 @@ export const adjustedMethod: ScoringMethod = {
   defaultCutoff: 1.5,
   scoreName: 'adjusted IQRs beyond the fence',
   source: 'Hubert & Vandervieren (2008) adjusted boxplot; medcouple of Brys, Hubert & Struyf (2004)',
-  fit(s, k, direction, columnSummary) {
-    return skewFences(s, k, direction, columnSummary, false);
+  fit(s, k, direction, _column, floor = 0) {
+    return skewFences(s, k, direction, floor, false);
   },
 };
 
@@ -59,13 +60,13 @@ export const skewMethod: ScoringMethod = {
   defaultCutoff: 3,
   scoreName: 'adjusted IQRs beyond the fence',
   source: 'Long side: Hubert & Vandervieren (2008) adjusted boxplot; short side and k = 3: Tukey (1977)',
-  fit(s, k, direction, columnSummary) {
-    return skewFences(s, k, direction, columnSummary, true);
+  fit(s, k, direction, _column, floor = 0) {
+    return skewFences(s, k, direction, floor, true);
   },
 };
 
 /** Fences of the adjusted boxplot; with `tukeyShortSide`, the short side keeps Tukey's unit (factor 1). */
-function skewFences(s: Summary, k: number, direction: Direction, columnSummary: () => Summary, tukeyShortSide: boolean): Fit {
+function skewFences(s: Summary, k: number, direction: Direction, floor: number, tukeyShortSide: boolean): Fit {
   {
     if (s.n === 0) return NO_FIT;
     const fallbacks: Fallback[] = [];
@@ -73,12 +74,16 @@ function skewFences(s: Summary, k: number, direction: Direction, columnSummary: 
     const q3 = s.hingeHigh;
     const mc = s.medcouple;
     let iqr = q3 - q1;
+    let factors = fenceFactors(mc, tukeyShortSide);
     if (!(iqr > 0)) {
-      fallbacks.push('iqr-zero');
-      iqr = spreadForZeroIqr(s, columnSummary);
+      // No spread of its own: the ignore-within amount is the unit on both sides (no skew factor:
+      // the medcouple of a group whose middle half is one amount says little), or not scored.
+      fallbacks.push('iqr-zero', floor > 0 ? 'spread-zero-used-floor' : 'no-spread');
+      iqr = floor;
       if (!(iqr > 0)) return { ...NO_FIT, unit: s.unit, center: s.median, q1, q3, fallbacks };
+      factors = { low: 1, high: 1 };
     }
-    const { low: lowFactor, high: highFactor } = fenceFactors(mc, tukeyShortSide);
+    const { low: lowFactor, high: highFactor } = factors;
     const fit: Fit = {
       kind: 'fence', unit: s.unit, center: s.median, scale: iqr, q1, q3,
       lowScale: lowFactor * iqr, highScale: highFactor * iqr,

@@ -1,5 +1,5 @@
 import type { Fallback } from '../types.js';
-import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method.js';
+import { type Fit, NO_FIT, type ScoringMethod } from './method.js';
 
 /**
  * IQR fences (Tukey): lower fence Q1 - k x IQR, upper fence Q3 + k x IQR, IQR = Q3 - Q1, with
@@ -11,10 +11,13 @@ import { type Fit, NO_FIT, type ScoringMethod, spreadForZeroIqr } from './method
  * Source: J. W. Tukey, "Exploratory Data Analysis", Addison-Wesley 1977 (fences at 1.5 steps);
  * quartiles per Hyndman & Fan (1996) type 7.
  *
- * Degenerate populations (documented choice): IQR = 0 (more than a quarter of the values tied at
- * the quartiles) -> the fences are Q1 - k x IQR_column and Q3 + k x IQR_column, i.e. the group's
- * quartiles with the whole column's IQR as the unit ('iqr-zero'); if the column's IQR is 0 as
- * well, the population is not scored. Empty population: not scored.
+ * Degenerate populations (documented choice): IQR = 0 (the middle half of the group is one
+ * amount) -> the group has no spread of its own, and nothing is borrowed from other groups (the
+ * whole column's IQR, used before, moved a group's fences when unrelated groups changed and kept a
+ * group of small amounts beside large ones from ever being flagged). With an ignore-within amount
+ * the unit is that amount: fences Q1 - k x floor and Q3 + k x floor ('iqr-zero',
+ * 'spread-zero-used-floor'); without one the population is not scored ('iqr-zero', 'no-spread').
+ * Empty population: not scored.
  */
 export const iqrMethod: ScoringMethod = {
   id: 'iqr',
@@ -22,13 +25,13 @@ export const iqrMethod: ScoringMethod = {
   defaultCutoff: 1.5,
   scoreName: 'IQRs beyond the fence',
   source: 'Tukey (1977) fences with Hyndman & Fan (1996) type-7 quartiles',
-  fit(s, k, direction, columnSummary) {
+  fit(s, k, direction, _column, floor = 0) {
     if (s.n === 0) return NO_FIT;
     const fallbacks: Fallback[] = [];
     let iqr = s.q3 - s.q1;
     if (!(iqr > 0)) {
-      fallbacks.push('iqr-zero');
-      iqr = spreadForZeroIqr(s, columnSummary);
+      fallbacks.push('iqr-zero', floor > 0 ? 'spread-zero-used-floor' : 'no-spread');
+      iqr = floor;
       if (!(iqr > 0)) return { ...NO_FIT, unit: s.unit, center: s.median, q1: s.q1, q3: s.q3, fallbacks };
     }
     const fit: Fit = {

@@ -42,10 +42,12 @@ export interface ScoringMethod {
    * Decides centre, scale and bounds of one population.
    * @param s       the population's summary on the scoring scale
    * @param cutoff  cutoff on the method's score (k for IQR)
-   * @param column  summary of the whole column (scoring scale), for methods that borrow a scale;
-   *                a function so that it is only computed when a method needs it
+   * @param column  summary of the whole column (scoring scale); a function so that it is only
+   *                computed when a method needs it (no method borrows from it since the money floor)
+   * @param floor   the ignore-within amount as a unit on the summary's scale (see `floorUnit`), 0 = none:
+   *                the unit of a population without a spread of its own
    */
-  fit(s: Summary, cutoff: number, direction: Direction, column: () => Summary): Fit;
+  fit(s: Summary, cutoff: number, direction: Direction, column: () => Summary, floor?: number): Fit;
 }
 
 export const NO_FIT: Fit = { kind: 'none', unit: 1, center: NaN, scale: NaN, q1: NaN, q3: NaN, lowScale: NaN, highScale: NaN, lower: NaN, upper: NaN, fallbacks: [] };
@@ -62,14 +64,13 @@ export function zFit(s: Summary, center: number, scale: number, cutoff: number, 
 }
 
 /**
- * The unit of the fences when a group's IQR is 0 (fallback 'iqr-zero'): the whole column's IQR
- * (the same quartile definition as the group's), in the group's scaled units; NaN when that is 0 too.
+ * The ignore-within amount (money) as a unit on a fit's scale: `floor / unit`; on log scale the
+ * ln distance from the centre to one floor above it, ln(1 + floor / e^centre), over `unit`. 0 when
+ * there is no floor.
  */
-export function spreadForZeroIqr(s: Summary, columnSummary: () => Summary): number {
-  const column = columnSummary();
-  const adjusted = !Number.isNaN(s.hingeLow);
-  const colIqr = adjusted ? column.hingeHigh - column.hingeLow : column.q3 - column.q1;
-  if (!(colIqr > 0)) return NaN;
-  const iqr = colIqr * (column.unit / s.unit);
-  return Number.isFinite(iqr) ? iqr : NaN;
+export function floorUnit(floor: number, center: number, unit: number, logScale: boolean): number {
+  if (!(floor > 0)) return 0;
+  const f = logScale ? Math.log1p(floor / Math.exp(center * unit)) : floor;
+  const u = f / unit;
+  return Number.isFinite(u) && u > 0 ? u : 0;
 }

@@ -86,6 +86,20 @@ export function MethodSection({ model }: { model: PaneModel }) {
           </Select>
         </Field>
       </div>
+      <Field
+        label="Ignore differences up to (amount)"
+        hint="A claim within this amount of its group's centre is never flagged, whatever its score (0 = off). A group whose middle half is one amount is measured in it."
+      >
+        <NumberInput
+          min={0}
+          step={0.01}
+          value={settings.ignoreWithin}
+          valid={(n) => Number.isFinite(n) && n >= 0}
+          onValue={(n) => actions.setSettings({ ignoreWithin: n })}
+          aria-label="Ignore-within amount"
+          data-testid="ignore-within"
+        />
+      </Field>
       <Field label={`Cutoff (${m.unit}; default ${def})`}>
         <div className={s.row}>
           <Slider
