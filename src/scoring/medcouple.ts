@@ -81,7 +81,7 @@ export function medcoupleSorted(sorted: Float64Array, n: number): number {
 }
 
 /** Rows whose middle candidates a round's trial value is taken from while rounds go well. */
-const SAMPLE_ROWS = 48;
+const SAMPLE_ROWS = 16;
 
 /** How far past the wanted entry's place (as a share of the candidates) a round's trial is aimed; see `kthLargest`. */
 const AIM = 0.05;
