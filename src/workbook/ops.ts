@@ -10,6 +10,7 @@ import { toRawCell } from './cells.js';
 import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns } from './exceptions.js';
+import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
@@ -305,13 +306,15 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
   return out;
 }
 
-export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
+export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings, supports: (name: string, version: string) => boolean = () => false): Promise<PreviewData> {
   const res = await resolveTable(sync, table);
   const want = [
     ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'value') })),
     ...settings.groupColumns.map((name) => ({ name, kind: 'group' as const, column: columnOf(res, name, 'group') })),
   ];
   const cells: RawCell[][] = want.map(() => new Array<RawCell>(res.rows));
+  const keys = want.flatMap((w, i) => (w.kind === 'group' ? [{ index: i, column: w.column }] : []));
+  const merged = new MergedKeys(res.sheet, res.headerRow + 1, res.rows, keys, supports(MERGED_AREAS_SET.name, MERGED_AREAS_SET.version));
   await readRows(
     sync,
     res.sheet,
@@ -322,8 +325,10 @@ export async function previewColumns(sync: Syncer, table: DetectedTable, setting
       const into = cells[si];
       for (let r = 0; r < d.values.length; r++) into[offset + r] = toRawCell(d.values[r][0], d.valueTypes![r][0], d.numberFormat![r][0]);
     },
-    res.bytesPerCell ? { bytesPerRowHint: res.bytesPerCell * want.length * 1.2 } : {},
+    { ...(res.bytesPerCell ? { bytesPerRowHint: res.bytesPerCell * want.length * 1.2 } : {}), withEachSync: merged.queue },
   );
+  // Merged cells in the key columns, as a run reads them (its notes line is the run's to write).
+  merged.fill(want.map((w) => w.name), cells);
   return {
     valueColumns: want.flatMap((w, i) => (w.kind === 'value' ? [{ name: w.name, cells: cells[i] }] : [])),
     groupColumns: want.flatMap((w, i) => (w.kind === 'group' ? [{ name: w.name, cells: cells[i] }] : [])),
