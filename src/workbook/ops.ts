@@ -7,6 +7,7 @@ import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, type PlanCell } from '../report/index.js';
 import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
 import { toRawCell } from './cells.js';
+import { MAX_CELL_TEXT } from './a1.js';
 import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns } from './exceptions.js';
@@ -14,7 +15,7 @@ import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
-import type { Syncer } from './sync.js';
+import { utf8Bytes, type Syncer } from './sync.js';
 
 function noResults(): TailmarkError {
   return new TailmarkError('no-results', 'This workbook has no Tailmark results yet. Select your claims table and run a review first.');
@@ -196,6 +197,12 @@ function statusText(status: string): string {
  */
 export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null, now: Date = new Date()): Promise<void> {
   const label = status === null ? null : statusText(status);
+  if (note !== null && note.length > MAX_CELL_TEXT) {
+    throw new TailmarkError(
+      'too-large',
+      `The note is ${note.length.toLocaleString('en')} characters long; an Excel cell holds at most ${MAX_CELL_TEXT.toLocaleString('en')}. Shorten it, then save again. Nothing was changed.`,
+    );
+  }
   const loc = await locate(sync);
   if (!loc) throw noResults();
   if (loc.protected) throw protectedError(loc.state.sheet);
@@ -250,7 +257,7 @@ export async function markRows(sync: Syncer, rows: readonly number[], status: st
   await appendLog(sync, lines);
   for (const run of runs) {
     const n = run.n;
-    const bytes = n * ((label?.length ?? 0) + (note?.length ?? 0) + 16);
+    const bytes = n * (utf8Bytes(label ?? '') + utf8Bytes(note ?? '') + 16);
     if (bytes > target) throw new TailmarkError('too-large', 'Too many rows or too long a note to mark at once; mark fewer rows.');
     await sync.reserve(bytes);
     if (label !== null) {

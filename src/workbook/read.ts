@@ -10,7 +10,7 @@
  */
 import { TailmarkError } from './api.js';
 import type { Syncer } from './sync.js';
-import { isPayloadError } from './sync.js';
+import { isPayloadError, jsonBytes } from './sync.js';
 
 /** Rows per range object inside one sync. */
 export const SUB_ROWS = 8_192;
@@ -63,10 +63,6 @@ export function guessBytesPerRow(spans: readonly ReadSpan[]): number {
   return Math.max(b, 16);
 }
 
-/** Length of the JSON text of a loaded array: what it costs in the response. */
-export function jsonBytes(x: unknown): number {
-  return JSON.stringify(x).length;
-}
 
 /**
  * Read rows [firstRow, firstRow + rowCount) of the given spans; `consume(span, rowOffset, data)`

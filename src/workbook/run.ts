@@ -35,7 +35,7 @@ import {
   type PlanCell,
 } from '../report/index.js';
 import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
-import { columnLetters, rectAddress } from './a1.js';
+import { MAX_CELL_TEXT, columnLetters, rectAddress } from './a1.js';
 import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
@@ -156,6 +156,13 @@ function textOf(v: unknown): string {
 
 export async function runScoring(sync: Syncer, table: DetectedTable, chosen: RunSettings, deps: RunDeps): Promise<RunOutcome> {
   const settings = validateSettings(chosen);
+  const reason = deps.record?.cutoffReason ?? '';
+  if (reason.length > MAX_CELL_TEXT) {
+    throw new TailmarkError(
+      'too-large',
+      `The reason for the cutoff is ${reason.length.toLocaleString('en')} characters long; an Excel cell holds at most ${MAX_CELL_TEXT.toLocaleString('en')}. Shorten it, then run again. Nothing was changed.`,
+    );
+  }
   const { signal } = deps;
   if (signal?.aborted) throw cancelled();
   const ctx = sync.context;
@@ -184,7 +191,9 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const pipeline = deps.pipeline ?? runPipelineYielding;
   const { result, plan: built, columns } = await pipeline(
     {
-      source: res.tableName ? `${address} (table ${res.tableName})` : address,
+      // Said in words, as the batch command says it ("sheet Claims, A1:E81"): an address such as
+      // 'Expense claims'!A1:C41 written into a cell would begin with Excel's text-prefix apostrophe.
+      source: `sheet ${res.sheetName}, ${address.slice(address.lastIndexOf('!') + 1)}${res.tableName ? ` (table ${res.tableName})` : ''}`,
       sheetName: res.sheetName,
       headers,
       columns: data.columns,
