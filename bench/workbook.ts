@@ -10,7 +10,7 @@
  * (--cell: detect from one selected cell, B3, through getSurroundingRegion, instead of the whole block).
  */
 import { SandboxWorkbook } from '../src/sandbox/index.js';
-import { officeClientFor } from '../src/cli/office-client.js';
+import { clientSettled, officeClientFor } from '../src/cli/office-client.js';
 import { nodePipeline } from '../src/cli/threads.js';
 import { createWorkbookLayer } from '../src/workbook/index.js';
 import type { RunSettings } from '../src/workbook/api.js';
@@ -93,15 +93,16 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
   /** Largest request/response: the real JSON through the client, else the sandbox's estimate. */
   const maxReq = () => (host ? host.wire.requestBytes.max : sb.stats.requestBytes.max);
   const maxResp = () => (host ? host.wire.responseBytes.max : sb.stats.responseBytes.max);
-  const reset = () => {
+  const reset = async () => {
+    if (host) await clientSettled();
     sb.stats.reset();
     host?.wire.reset();
   };
   t0 = performance.now();
-  reset();
+  await reset();
   const table = await layer.detect();
   const detect = { syncs: sb.stats.syncs, ms: performance.now() - t0 };
-  reset();
+  await reset();
   let last = performance.now();
   let longest = 0;
   const ticker = setInterval(() => {
@@ -122,7 +123,7 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
     flagged: summary.flagged,
     longestBlockMs: longest,
   };
-  reset();
+  await reset();
   t0 = performance.now();
   await layer.readForPreview(table, BENCH_SETTINGS);
   const preview = { syncs: sb.stats.syncs, ms: performance.now() - t0, maxResponseBytes: maxResp() };

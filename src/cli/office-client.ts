@@ -119,6 +119,14 @@ function loadClient(): Client {
 const roundTrip = () => new Promise<void>((r) => setImmediate(r));
 
 /**
+ * Let the client's clean-up requests of finished Excel.runs arrive (it releases kept references
+ * in a request it does not wait for), so the next measurement or injected fault does not meet them.
+ */
+export async function clientSettled(): Promise<void> {
+  for (let i = 0; i < 5; i++) await new Promise<void>((r) => setTimeout(r, 0));
+}
+
+/**
  * The client's request, answered as a network round trip would be: the answer comes in a task of
  * its own, after the client's work of sending, and the bridge's work (Excel's part) is a task of
  * its own too. Without this, every sync of an Excel.run chained as microtasks and the whole run

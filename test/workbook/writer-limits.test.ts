@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { sandboxFromRows } from '../../src/sandbox/index.js';
 import { NOTES_SHEET_NAME } from '../../src/report/index.js';
 import { TailmarkError } from '../../src/workbook/api.js';
-import { CLIENT, claimRows, claimsSandbox, layerFor, officeHost, SETTINGS } from './helpers.js';
+import { CLIENT, claimRows, claimsSandbox, layerFor, officeHost, settled, SETTINGS } from './helpers.js';
 
 describe('the writer keeps within Excel\'s limits', () => {
   it('refuses a note over 32,767 characters before writing anything, and saves one of exactly 32,767', async () => {
@@ -54,6 +54,7 @@ describe('the writer keeps within Excel\'s limits', () => {
     const host = CLIENT === 'office-js' ? officeHost(sb) : null;
     const layer = layerFor(sb, { payloadLimit: limit });
     const table = await layer.detect();
+    await settled();
     host?.wire.reset();
     sb.stats.reset();
     const summary = await layer.run(table, SETTINGS);
