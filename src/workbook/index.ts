@@ -63,9 +63,18 @@ export interface WorkbookLayerOptions {
   readonly isSetSupported?: (name: string, version: string) => boolean;
 }
 
-/** Office's requirement check when Office.js is loaded; false elsewhere (Node, the preview page). */
+/**
+ * Without Office.js the layer runs on the sandbox (tests, the preview page, `tailmark sandbox`),
+ * which models the feature-detected members up to ExcelApi 1.13 (merged areas), not undo groups (1.20).
+ */
+const SANDBOX_EXCEL_API = [1, 13];
+
+/** Office's requirement check when Office.js is loaded; the sandbox's (SANDBOX_EXCEL_API) elsewhere. */
 function officeSupports(name: string, version: string): boolean {
-  if (typeof Office === 'undefined') return false;
+  if (typeof Office === 'undefined') {
+    const [major, minor] = version.split('.').map(Number);
+    return name === 'ExcelApi' && (major < SANDBOX_EXCEL_API[0] || (major === SANDBOX_EXCEL_API[0] && (minor ?? 0) <= SANDBOX_EXCEL_API[1]));
+  }
   const requirements = Office.context?.requirements;
   return requirements ? requirements.isSetSupported(name, version) : false;
 }
@@ -137,7 +146,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('detect', (s) => detectTable(s));
     },
     readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
-      return act('preview', (s) => previewColumns(s, table, settings));
+      return act('preview', (s) => previewColumns(s, table, settings, supports));
     },
     async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary> {
       if (signal?.aborted) throw new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
@@ -148,6 +157,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
           ...(signal ? { signal } : {}),
           ...(record ? { record } : {}),
           ...(options.pipeline ? { pipeline: options.pipeline } : {}),
+          supports,
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
