@@ -8,7 +8,7 @@
  */
 import { type Rect, rect, parseAddress, formatRect, formatAddress, columnLetters, columnIndex, MAX_COLS, MAX_ROWS } from './address.js';
 import { SandboxError } from './errors.js';
-import { CellError, WorkbookModel, type SheetModel, type StoredValue, ATTRS, type Attr, dateToSerial, normaliseColour } from './model.js';
+import { CellError, WorkbookModel, type SheetModel, type StoredValue, ATTRS, type Attr, dateToSerial, normaliseColour, DEFAULT_COLUMN_WIDTH } from './model.js';
 import { SandboxContext, type SandboxOptions } from './context.js';
 import { evaluateFormula } from './formula.js';
 
@@ -527,7 +527,9 @@ export class SandboxWorkbook {
         }
       }
       const columnWidths: Record<string, number> = {};
-      for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) columnWidths[columnLetters(c)] = w;
+      // A column set to the standard width looks, prints and reads (RangeFormat.columnWidth) the same
+      // as one never set, and Excel has no call to un-set a width: such columns are left out.
+      for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) if (w !== DEFAULT_COLUMN_WIDTH) columnWidths[columnLetters(c)] = w;
       return {
         name: s.name, position, visibility: s.visibility, protected: s.protected, cells, columnWidths,
         tables: s.tables.map((t) => ({ name: t.name, address: formatRect(t.rect), showHeaders: t.showHeaders })),
