@@ -4,6 +4,11 @@
  */
 import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef } from 'react';
 import type { Exception, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
+import { toCsv } from '../report/marksExport.js';
+import { downloadBlob } from './download.js';
+
+/** File name of the marks saved before a removal. */
+const MARKS_CSV_NAME = 'tailmark-marks.csv';
 import {
   budgetCutoff,
   chartFor,
@@ -61,6 +66,8 @@ export interface PaneActions {
   readonly setCutoffReason: (text: string) => void;
   readonly askRemove: (open: boolean) => void;
   readonly remove: (includeNotes: boolean, keepMarks: boolean) => void;
+  /** Keep the marks before a removal: a CSV download or a new sheet; resolves to what happened, in words. */
+  readonly exportMarks: (to: 'csv' | 'sheet') => Promise<string>;
   readonly fold: (area: Area, folded: boolean) => void;
   readonly showAllGroups: (on: boolean) => void;
   readonly dismiss: () => void;
@@ -468,6 +475,18 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
             dispatch({ type: 'removed', includeNotes, keptMarks: keepMarks ? marks : 0, lostMarks: keepMarks ? 0 : marks }),
           )
           .catch((error: unknown) => dispatch({ type: 'failed', error, area: 'manage' }));
+      },
+      exportMarks: async (to) => {
+        try {
+          const out = await layer.exportMarks(to === 'sheet');
+          const n = out.rows.length - 1;
+          const what = `${n} ${n === 1 ? 'claim' : 'claims'} with a status or note`;
+          if (to === 'sheet') return `Copied ${what} to the new sheet "${out.sheet}". That sheet is yours: Tailmark never changes or removes it.`;
+          downloadBlob(new Blob([toCsv(out.rows)], { type: 'text/csv;charset=utf-8' }), MARKS_CSV_NAME);
+          return `Saved ${what} as ${MARKS_CSV_NAME} (your browser's downloads).`;
+        } catch (e) {
+          return `Could not keep the marks: ${e instanceof Error ? e.message : String(e)}`;
+        }
       },
       fold: (area, folded) => dispatch({ type: 'fold', area, folded }),
       showAllGroups: (on) => dispatch({ type: 'all-groups', on }),

@@ -3,6 +3,7 @@
  * columns wide enough to read in the grid and in the downloaded .xlsx; files opened in other
  * encodings. Built for production and served as in preview.test.ts, in headless Chromium.
  */
+import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import ExcelJS from 'exceljs';
 import type { Page } from 'playwright-core';
@@ -62,6 +63,139 @@ describe('readable result columns', () => {
       const need = (8 * text.length + 5) / 7;
       expect(ws.getColumn(c).width ?? 0, `${text}: width ${ws.getColumn(c).width}`).toBeGreaterThanOrEqual(need);
     }
+    expect(errors).toEqual([]);
+    await page.close();
+  }, 120_000);
+});
+
+/**
+ * One invented claims table, written out in the encodings real exports use. Windows-1252 bytes
+ * are made by hand from its code chart (0x80 is the euro sign; Latin-1 letters keep their code
+ * points) — independent of the reader under test.
+ */
+const PLAIN = [
+  'Claim ID,Employee,Cost centre,Category,Amount,Note',
+  ...Array.from({ length: 24 }, (_, i) =>
+    [`CL-${100 + i}`, ['Zoë Brünn', 'Åsa Øberg', 'José Núñez', 'Françoise Lœw'][i % 4], ['Küche', 'Büro'][i % 2], 'Reise', (80 + ((i * 7) % 13) + (i === 17 ? 900 : 0)).toFixed(2), i % 5 === 0 ? 'Taxi – 12 €' : ''].join(','),
+  ),
+].join('\r\n');
+
+function cp1252(text: string): Buffer {
+  const high: Record<string, number> = { '€': 0x80, '–': 0x96, 'œ': 0x9c };
+  return Buffer.from([...text].map((ch) => high[ch] ?? (ch.charCodeAt(0) < 256 ? ch.charCodeAt(0) : 0x3f)));
+}
+const utf16be = (text: string) => {
+  const le = Buffer.from(text, 'utf16le');
+  for (let i = 0; i < le.length; i += 2) [le[i], le[i + 1]] = [le[i + 1], le[i]];
+  return le;
+};
+const ENCODED: [string, Buffer][] = [
+  ['utf8.csv', Buffer.from(PLAIN, 'utf8')],
+  ['utf8-bom.csv', Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(PLAIN, 'utf8')])],
+  ['utf16le-bom.csv', Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(PLAIN, 'utf16le')])],
+  ['utf16be-bom.csv', Buffer.concat([Buffer.from([0xfe, 0xff]), utf16be(PLAIN)])],
+  ['windows-1252.csv', cp1252(PLAIN)],
+  ['titled-semicolon.csv', Buffer.from(`Expense report;;\r\nExported 2025-04-01;;\r\n\r\n${PLAIN.replace(/,/g, ';')}`, 'utf8')],
+];
+
+/** The opened sheet's cells as text rows (from the page's test hook). */
+async function sheetRows(page: Page): Promise<string[][]> {
+  return page.evaluate(() => {
+    const p = window.tailmarkPreview!;
+    const sheet = p.sheetNames()[0];
+    const rows: string[][] = [];
+    for (let r = 0; r < 40; r++) {
+      const row: string[] = [];
+      for (let c = 0; c < 8; c++) row.push(p.text(sheet, r, c));
+      if (row.every((x) => x === '')) break;
+      rows.push(row);
+    }
+    return rows;
+  });
+}
+
+async function openFile(page: Page, name: string, buffer: Buffer): Promise<void> {
+  await page.getByTestId('file-input').setInputFiles({ name, mimeType: 'text/csv', buffer });
+  await expect.poll(() => page.getByTestId('preview-message').textContent(), { timeout: 20_000 }).toContain(`Opened ${name}`);
+}
+
+describe('opening delimited files in other encodings', () => {
+  it('reads UTF-8 (with and without a mark), UTF-16 LE/BE and Windows-1252 to the same cells, and shows what it found', async () => {
+    const { page, errors } = await openPage(session, 'preview.html');
+    await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+    // The plain text, split by hand: what every file must read to.
+    const expected = PLAIN.split('\r\n').map((l) => [...l.split(','), '', ''].slice(0, 8));
+    const found: Record<string, string> = {};
+    for (const [name, buffer] of ENCODED) {
+      await openFile(page, name, buffer);
+      expect(await sheetRows(page), name).toEqual(expected);
+      found[name] = (await page.getByTestId('file-encoding').locator('xpath=../..').textContent()) ?? '';
+    }
+    expect(found['utf16le-bom.csv']).toContain('Read as UTF-16 LE (byte-order mark)');
+    expect(found['utf16be-bom.csv']).toContain('Read as UTF-16 BE (byte-order mark)');
+    expect(found['windows-1252.csv']).toContain('Read as Windows-1252 (not valid UTF-8)');
+    expect(found['utf8.csv']).toContain('Read as UTF-8 (valid UTF-8)');
+    // The titled file: header found on row 4, the controls say so.
+    await expect(page.getByTestId('file-header-row').locator('xpath=../..').textContent()).resolves.toContain('row 4; the rows above look like titles');
+    expect(errors).toEqual([]);
+    await page.close();
+  }, 180_000);
+
+  it('the encoding and header-row controls read the file again as chosen', async () => {
+    const { page } = await openPage(session, 'preview.html');
+    await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+    await openFile(page, 'utf8.csv', Buffer.from(PLAIN, 'utf8'));
+    // Told the UTF-8 file is Windows-1252, each two-byte letter shows as two (ë = C3 AB -> "Ã«").
+    await page.getByTestId('file-encoding').selectOption('windows-1252');
+    await expect.poll(async () => (await sheetRows(page))[1]?.[1], { timeout: 20_000 }).toBe('ZoÃ« BrÃ¼nn');
+    await expect(page.getByTestId('file-encoding').locator('xpath=../..').textContent()).resolves.toContain('(as chosen)');
+    await page.getByTestId('file-encoding').selectOption('auto');
+    await expect.poll(async () => (await sheetRows(page))[1]?.[1], { timeout: 20_000 }).toBe('Zoë Brünn');
+    // Header row 2 chosen: the first claim's row becomes the column names.
+    await page.getByTestId('file-header-row').selectOption('2');
+    await expect.poll(async () => (await sheetRows(page))[0]?.[0], { timeout: 20_000 }).toBe('CL-100');
+    await page.close();
+  }, 120_000);
+});
+
+
+describe('keeping the marks before Remove', () => {
+  it('saves them as CSV and copies them to a sheet of their own, which Remove leaves in place', async () => {
+    const { page, errors } = await openPage(session, 'preview.html');
+    await runDemo(page);
+    await page.getByTestId('claim-card').waitFor({ timeout: 30_000 });
+    const claim = (await page.getByTestId('claim-card').textContent()) ?? '';
+    await page.getByTestId('status').selectOption('Asked claimant');
+    await page.getByTestId('note').fill('emailed, then "called"');
+    await page.getByTestId('save-mark').click();
+    await expect.poll(() => page.getByTestId('notice').textContent()).toMatch(/Saved the mark on 1 claim/);
+    await page.getByTestId('remove').click();
+    await page.getByTestId('keep-copy').waitFor();
+
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-marks-csv').click()]);
+    expect(download.suggestedFilename()).toBe('tailmark-marks.csv');
+    const file = path.join(ROOT, 'test-output', 'readable-marks.csv');
+    await download.saveAs(file);
+    const csv = readFileSync(file, 'utf8');
+    const lines = csv.replace(/^\uFEFF/, '').trimEnd().split('\r\n');
+    expect(lines[0]).toBe('Claim,Sheet row,Status,Note,Last saved by,Last saved (UTC)');
+    expect(lines).toHaveLength(2);
+    // The claim shown in the follow-up card, its status, the note quoted as RFC 4180 says.
+    const id = lines[1].split(',')[0];
+    expect(claim).toContain(id);
+    expect(lines[1]).toContain(',Asked claimant,"emailed, then ""called""",');
+    await expect.poll(() => page.getByTestId('export-marks-result').textContent()).toMatch(/Saved 1 claim with a status or note as tailmark-marks\.csv/);
+
+    await page.getByTestId('export-marks-sheet').click();
+    await expect.poll(() => page.getByTestId('export-marks-result').textContent()).toMatch(/Copied 1 claim .* to the new sheet "Tailmark marks \d{4}-\d\d-\d\d"/);
+    const sheet = (await page.evaluate(() => window.tailmarkPreview!.sheetNames())).find((n) => n.startsWith('Tailmark marks'))!;
+    expect(sheet).toBeDefined();
+
+    await page.getByTestId('remove-keep').click();
+    await page.getByTestId('confirm-remove').click();
+    await expect.poll(() => page.getByTestId('notice').textContent()).toMatch(/deleted/);
+    const kept = await page.evaluate((s) => [0, 1, 2, 3].map((c) => window.tailmarkPreview!.text(s, 1, c)), sheet);
+    expect(kept).toEqual([id, lines[1].split(',')[1], 'Asked claimant', 'emailed, then "called"']);
     expect(errors).toEqual([]);
     await page.close();
   }, 120_000);
