@@ -217,10 +217,9 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
         setCsv({ file, found: read.found, choices });
       } else {
         setCsv(null);
-        // One import of the bridge (which holds ExcelJS) for opening and downloading: the bundle then has
-        // one ExcelJS chunk, not two.
-        const { readXlsx, sandboxFromExcelJs } = await import('../sandbox/exceljs-bridge.js');
-        sb = sandboxFromExcelJs(await readXlsx(await file.arrayBuffer()));
+        // Read in a worker (ExcelJS and the sandbox built there), handed over in parts.
+        const { openXlsx } = await import('./openXlsx.js');
+        sb = await openXlsx(file, (fraction) => setWork({ what: `Opening ${file.name}`, fraction }));
       }
       const first = sb.sheetNames()[0];
       sb.setSelection(first, 'A1');
