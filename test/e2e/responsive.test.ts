@@ -14,12 +14,19 @@ import { buildWeb, openPage, startSession, type Session } from './harness.js';
 const ROWS = 300_000;
 /**
  * The target is 250 ms (issue 10). On the project's 2-core machine, shared with other builds and
- * test runs, the longest task measured 461-1,180 ms (mostly one sandbox sync answering on the
+ * test runs, the longest task measured 461-1,180 ms (377 ms in a later run at load average 14, in a
+ * sandbox sync of the write phase, not in scoring) (mostly one sandbox sync answering on the
  * page's thread while other processes held the cores), so the check asserts a looser bound that
  * still fails the old behaviour (one 7,000 ms block at 300,000 rows) and stays under the ~5 s after
  * which Office restarts an unresponsive add-in; the measured figure is printed on every run.
  */
 const LONGEST_TASK_BOUND_MS = 1500;
+/**
+ * Outside a run (the live counts while sliding the cutoff, opening a 50,000-row .xlsx) the work is in
+ * workers; measured on the same loaded machine: 0 ms (no task over 50 ms) while sliding at 300,000
+ * rows, 275 ms opening the .xlsx (applying its parts). The bound leaves room for the machine's load.
+ */
+const OUTSIDE_RUN_BOUND_MS = 600;
 
 /** An invented claims CSV: 5 cost centres x 4 categories, one claim in 997 twenty-five times the usual. */
 function claimsCsv(rows: number): Buffer {
@@ -139,22 +146,24 @@ describe('the preview stays responsive on 300,000 claims', () => {
 });
 
 describe('the pane and the preview stay responsive outside a run', () => {
-  it('changing the cutoff on 300,000 claims: the live counts follow without a long task (figure printed)', async () => {
+  it('sliding the cutoff on 300,000 claims: the live counts follow without a long task (figure printed)', async () => {
     const { page, errors } = await openPage(session, 'preview.html');
     await openLarge(page);
     const before = await page.getByTestId('preview-flagged').textContent();
     await startProbes(page);
-    // Two settings changes in a row, as a reviewer trying cutoffs does; the counts are worked out in the pane's worker.
-    await page.getByTestId('method').selectOption('classic');
-    await page.getByTestId('method').selectOption('robust');
+    // Cutoffs tried in a row, as a reviewer sliding the cutoff does (the slider by keyboard: each
+    // step a new cutoff); the counts are worked out in the pane's worker.
+    const slider = page.getByLabel('Cutoff slider');
+    await slider.focus();
     const t0 = Date.now();
-    await page.getByTestId('method').selectOption('iqr');
+    for (let i = 0; i < 5; i++) await slider.press('ArrowLeft');
+    await slider.press('Home');
     await expect.poll(() => page.getByTestId('preview-flagged').textContent(), { timeout: 120_000, interval: 100 }).not.toBe(before);
     const ms = Date.now() - t0;
     await page.waitForTimeout(500);
     const { longest, frameGap } = await readProbes(page);
-    console.log(`300,000 rows, method changed: counts updated in ${ms} ms; longest main-thread task ${longest.toFixed(0)} ms, largest frame gap ${frameGap.toFixed(0)} ms`);
-    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(LONGEST_TASK_BOUND_MS);
+    console.log(`300,000 rows, cutoff slid down: counts updated in ${ms} ms; longest main-thread task ${longest.toFixed(0)} ms, largest frame gap ${frameGap.toFixed(0)} ms`);
+    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(OUTSIDE_RUN_BOUND_MS);
     expect(errors).toEqual([]);
     await page.close();
   }, 600_000);
@@ -175,7 +184,7 @@ describe('the pane and the preview stay responsive outside a run', () => {
     const ms = Date.now() - t0;
     const { longest, frameGap } = await readProbes(page);
     console.log(`50,000-row .xlsx opened in ${ms} ms; longest main-thread task ${longest.toFixed(0)} ms, largest frame gap ${frameGap.toFixed(0)} ms`);
-    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(LONGEST_TASK_BOUND_MS);
+    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(OUTSIDE_RUN_BOUND_MS);
     expect(errors).toEqual([]);
     await page.close();
   }, 600_000);
