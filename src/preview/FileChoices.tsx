@@ -38,7 +38,7 @@ export function FileChoices({ name, found, choices, onChoose }: { name: string; 
           onChange={(_, d) => onChoose({ ...choices, headerRow: d.value === 'auto' ? undefined : Number(d.value) })}
           data-testid="file-header-row"
         >
-          <option value="auto">Find it (first row of names above rows of data)</option>
+          <option value="auto">Find it (row of names above the data)</option>
           {Array.from({ length: HEADER_ROWS }, (_, i) => (
             <option key={i} value={String(i + 1)}>
               Row {i + 1}

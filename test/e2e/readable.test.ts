@@ -3,13 +3,13 @@
  * columns wide enough to read in the grid and in the downloaded .xlsx; files opened in other
  * encodings. Built for production and served as in preview.test.ts, in headless Chromium.
  */
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import ExcelJS from 'exceljs';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../../src/report/style.js';
-import { buildWeb, openPage, ROOT, startSession, type Session } from './harness.js';
+import { buildWeb, openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 let session: Session;
 
@@ -200,3 +200,39 @@ describe('keeping the marks before Remove', () => {
     await page.close();
   }, 120_000);
 });
+
+describe('screenshots of the reading choices and of keeping the marks', () => {
+  it('at 320 px (pane alone) and desktop width, light and dark', async () => {
+    mkdirSync(SCREENSHOT_DIR, { recursive: true });
+    const utf16 = ENCODED.find(([n]) => n === 'utf16le-bom.csv')![1];
+    for (const theme of ['light', 'dark'] as const) {
+      for (const [width, query, name] of [
+        [1280, '', 'desktop'],
+        [320, 'view=pane', '320'],
+      ] as const) {
+        const { page } = await openPage(session, 'preview.html', { theme, width, height: 900, query });
+        await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+        await page.getByTestId('file-input').setInputFiles({ name: 'claims-utf16.csv', mimeType: 'text/csv', buffer: utf16 });
+        await page.getByTestId('file-encoding').waitFor({ timeout: 20_000 });
+        await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+        if (width === 320) expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBeLessThanOrEqual(0);
+        await page.getByTestId('file-header-row').scrollIntoViewIfNeeded();
+        await page.screenshot({ path: path.join(SCREENSHOT_DIR, `file-choices-${name}-${theme}.png`) });
+        await page.close();
+      }
+      const { page } = await openPage(session, 'preview.html', { theme, width: 1280, height: 900 });
+      await runDemo(page);
+      await page.getByTestId('claim-card').waitFor({ timeout: 30_000 });
+      await page.getByTestId('status').selectOption('Asked claimant');
+      await page.getByTestId('note').fill('asked for the hotel invoice');
+      await page.getByTestId('save-mark').click();
+      await expect.poll(() => page.getByTestId('notice').textContent()).toMatch(/Saved the mark on 1 claim/);
+      await page.getByTestId('remove').click();
+      await page.getByTestId('export-marks-sheet').click();
+      await expect.poll(() => page.getByTestId('export-marks-result').textContent()).toMatch(/Copied/);
+      await page.screenshot({ path: path.join(SCREENSHOT_DIR, `keep-marks-desktop-${theme}.png`) });
+      await page.close();
+    }
+  }, 300_000);
+});
+
