@@ -162,6 +162,8 @@ export function createPaneEngine(): PaneEngine {
     (message) => {
       for (const w of waiting.values()) w.reject(new Error(message));
       waiting.clear();
+      kindOf.clear();
+      lanes.clear();
     },
   );
   return {
