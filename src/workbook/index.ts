@@ -8,9 +8,10 @@
  * that grows with the number of cells only.
  */
 import type { AsyncPipeline } from '../pipeline/index.js';
-import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, SelectionFollow, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, MarksExport, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, SelectionFollow, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
+import { exportMarkRows } from './export-marks.js';
 import {
   listExceptionRows,
   loadReviewPrefs,
@@ -165,6 +166,12 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
     },
     remove(includeNotes: boolean, keepMarks = false): Promise<void> {
       return act('remove', (s) => removeResults(s, includeNotes, keepMarks));
+    },
+    exportMarks(toSheet: boolean): Promise<MarksExport> {
+      return act('exportMarks', async (s) => {
+        const out = await exportMarkRows(s, toSheet, now());
+        return { rows: out.grid, sheet: out.sheet };
+      });
     },
     readClaim(row: number): Promise<ClaimRecord> {
       return act('readClaim', (s) => readClaimRow(s, row));

@@ -40,7 +40,7 @@ interface Located {
  * Load our state and find our columns as they are now: by table column name for tables, by the
  * header cells at the remembered place otherwise. 2 syncs.
  */
-async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Promise<Located | null> {
+export async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Promise<Located | null> {
   const wb = sync.context.workbook;
   const st = wb.settings.getItemOrNullObject(STATE_KEY);
   st.load('value');

@@ -230,6 +230,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
+  // Widths of the empty columns we will write into, kept so removal (or a failed write) puts them back.
+  const emptyWidths = placement.pristine.map((i) => res.sheet.getRangeByIndexes(0, placement.columns[i], 1, 1));
   await readRows(
     sync,
     res.sheet,
@@ -256,6 +258,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
         logUsed?.load(['rowIndex', 'rowCount']);
         for (const cf of customRules) cf.custom.rule.load('formula');
         tableRange?.load(['rowCount', 'columnCount']);
+        for (const r of emptyWidths) r.load('format/columnWidth');
       },
     },
   );
@@ -278,6 +281,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       `A sheet named "${LOG_SHEET_NAME}" already exists and was not made by Tailmark. Rename that sheet, then run again. Nothing was changed.`,
     );
   }
+  placement.pristine.forEach((i, j) => (placement.block[i] = { ...placement.block[i], width: emptyWidths[j].format.columnWidth }));
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
 
