@@ -9,7 +9,9 @@
  */
 import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
-import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
+import { NOTE_HEADER, NOTES_SHEET_NAME, STATUS_HEADER } from '../report/style.js';
+import { notesFormatOf } from '../report/notesSheet.js';
+import { readMarkRecords, type MarkRecord } from '../report/marks.js';
 import { DELIMITER_WORDS } from '../table/csv.js';
 import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 import { describeEncoding } from '../table/encoding.js';
@@ -19,7 +21,8 @@ import { forEachCsvRecordDetected } from './csv-stream.js';
 import {
   checkInputFile, cleanHeaders, describe, isEmpty, mergedSpans, sheetNameFromFile, type ReadOptions, type ReadTable,
 } from './read.js';
-import { XlsxStream } from './xlsx-stream.js';
+import { XlsxStream, type StreamRow } from './xlsx-stream.js';
+import { WorkbookSpool, type SpoolOptions } from './xlsx-spool.js';
 
 export interface StreamReadOptions extends ReadOptions {
   /**
@@ -28,6 +31,14 @@ export interface StreamReadOptions extends ReadOptions {
    * header that is not there); the read stops and the error is passed on.
    */
   readonly keep?: (headers: readonly string[]) => Iterable<number>;
+  /**
+   * .xlsx: keep every sheet's rows for the large-file writer (table.streamed.workbook), so the
+   * file is parsed once; the caller disposes of it. Ignored for delimited text (read again to write).
+   */
+  readonly spool?: SpoolOptions & {
+    /** Asked when the table's sheet has been read, with its data rows: false drops the spool (the writer will not need it). */
+    readonly keepIf?: (rows: number) => boolean;
+  };
 }
 
 /** Growing column of cells, with repeated strings stored once (group keys repeat a lot). */
@@ -245,13 +256,60 @@ function targetSheet(names: readonly string[], wanted: string | undefined, file:
   return t;
 }
 
+/** Sheet names of our notes chain present in the workbook: "Tailmark notes", then "(2)", "(3)"... while they exist. */
+function notesChain(names: readonly string[]): Set<string> {
+  const chain = new Set<string>();
+  for (let k = 1; ; k++) {
+    const n = k === 1 ? NOTES_SHEET_NAME : `${NOTES_SHEET_NAME} (${k})`;
+    if (!names.includes(n)) return chain;
+    chain.add(n);
+  }
+}
+
+/** The first three columns of a notes sheet as a dense grid of values, for readMarkRecords. */
+class NotesGrid {
+  private readonly rows: RawCell[][] = [];
+  add(row: StreamRow): void {
+    const out: RawCell[] = [null, null, null];
+    for (const c of row.cells) if (c.col <= 3) out[c.col - 1] = c.raw;
+    this.rows[row.r - 1] = out;
+  }
+  marks(): MarkRecord[] {
+    for (let r = 0; r < this.rows.length; r++) this.rows[r] ??= [];
+    return readMarkRecords(this.rows);
+  }
+}
+
 async function readXlsxStreaming(path: string, options: StreamReadOptions): Promise<ReadTable> {
+  const spool = options.spool ? new WorkbookSpool(options.spool) : null;
+  try {
+    return await readXlsxSheets(path, options, spool);
+  } catch (e) {
+    spool?.dispose();
+    throw e;
+  }
+}
+
+/** Data rows the table has so far (before a totals row is left out). */
+function rowsSoFar(b: TableBuilder): number {
+  return b.hasHeader ? b.lastData - b.headerRow : 0;
+}
+
+/**
+ * One pass over the workbook: the target sheet's rows build the table, our earlier notes sheet gives
+ * the previous run's marks, and with a spool every sheet's rows are kept for the writer (without
+ * one, the other sheets are skipped unparsed).
+ */
+async function readXlsxSheets(path: string, options: StreamReadOptions, spooling: WorkbookSpool | null): Promise<ReadTable> {
+  let spool = spooling;
   const x = new XlsxStream(path);
   const name = basename(path);
   let target: string | null = null;
   let names: string[] = [];
+  let chain = new Set<string>();
   let found = false;
   let merges: readonly string[] = [];
+  let previous = null as NotesGrid | null;
   // An error from the caller's `keep` is passed on as it is; any other failure means the file is not
   // a workbook we can read.
   let callerError: unknown = null;
@@ -266,42 +324,81 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
       }
     : undefined;
   const b = new TableBuilder(keep, false, options.headerRow);
+  const addTableRow = (row: StreamRow) => {
+    const m = new Map<number, RawCell>();
+    let total = false;
+    const unsaved: number[] = [];
+    for (const c of row.cells) {
+      m.set(c.col - 1, c.raw);
+      const v = c.value;
+      if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
+        if (isTotalFormula(v.formula)) total = true;
+        if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
+      }
+    }
+    b.row(row.r, m, total, unsaved);
+  };
   try {
     for await (const sheet of x.sheets()) {
       if (target === null) {
         names = x.sheetNames.length ? x.sheetNames : [sheet.name];
         target = targetSheet(names, options.sheet, name);
+        chain = notesChain(names);
       }
-      if (sheet.name !== target) {
+      const isTarget = sheet.name === target && !found;
+      // Our notes sheet from an earlier run (the first of the chain whose A1 says so) holds the
+      // previous run's list of review marks; the writer replaces it.
+      const notesCandidate = !isTarget && previous === null && chain.has(sheet.name);
+      if (!isTarget && !notesCandidate && !spool) {
         await x.skipSheet(sheet);
         continue;
       }
-      found = true;
+      if (isTarget) found = true;
+      spool?.beginSheet(sheet.name, sheet.state);
+      let first = true;
+      let grid = null as NotesGrid | null;
       const tail = await x.readSheet(sheet, {
+        onHead(h) {
+          spool?.head(h);
+        },
         onRow(row) {
-          const m = new Map<number, RawCell>();
-          let total = false;
-          const unsaved: number[] = [];
-          for (const c of row.cells) {
-            m.set(c.col - 1, c.raw);
-            const v = c.value;
-            if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
-              if (isTotalFormula(v.formula)) total = true;
-              if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
+          if (first) {
+            first = false;
+            const a1 = row.r === 1 ? (row.cells.find((c) => c.col === 1)?.raw ?? null) : null;
+            spool?.setA1(a1);
+            if (notesCandidate && notesFormatOf(a1) !== null) {
+              grid = new NotesGrid();
+              spool?.markReplaced();
             }
           }
-          b.row(row.r, m, total, unsaved);
+          if (grid) {
+            grid.add(row);
+            return;
+          }
+          spool?.row(row);
+          if (isTarget) addTableRow(row);
         },
       });
-      merges = tail.merges;
-      break;
+      spool?.endSheet(tail);
+      if (isTarget) merges = tail.merges;
+      if (isTarget && spool && options.spool?.keepIf && !options.spool.keepIf(rowsSoFar(b))) {
+        spool.dispose();
+        spool = null;
+      }
+      if (grid) previous = grid;
+      // Without a spool, read on only while our notes sheet may still come.
+      if (!spool && found && (previous !== null || chain.size === 0)) break;
     }
   } catch (e) {
-    if (isTailmarkError(e, 'input-file') || (callerError !== null && e === callerError)) throw e;
+    if (isTailmarkError(e, 'input-file', 'output-file') || (callerError !== null && e === callerError)) throw e;
     if (e instanceof ReferenceError || e instanceof SyntaxError) throw e; // a bug of ours, not the file
     throw new TailmarkError('input-file', `cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   } finally {
     x.close();
+  }
+  if (spool) {
+    spool.style = (id) => x.style(id);
+    spool.definedNames = x.definedNameCount;
   }
   if (!found) {
     if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
@@ -329,7 +426,8 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
     rowCount,
     headerRow: b.headerRow,
     firstColumn: b.first,
-    streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names },
+    streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names, ...(spool ? { workbook: spool } : {}) },
+    previousMarks: previous?.marks() ?? [],
     readNotes: b.notes,
     merges: mergedSpans(merges, b.first, b.headers.length, b.headerRow, rowCount),
     unsavedFormulas: b.unsaved,
