@@ -41,18 +41,27 @@ export interface StreamReadOptions extends ReadOptions {
   };
 }
 
-/** Growing column of cells, with repeated strings stored once (group keys repeat a lot). */
+/**
+ * Growing column of cells, with repeated strings stored once (group keys repeat a lot). A column
+ * whose first strings are mostly distinct (amounts, claim IDs) stops interning: looking each one up
+ * cost more than it saved.
+ */
 class ColumnCollector {
   readonly cells: RawCell[] = [];
-  private readonly pool = new Map<string, string>();
-  constructor(private readonly intern: boolean) {}
+  private pool: Map<string, string> | null;
+  private strings = 0;
+  constructor(intern: boolean) {
+    this.pool = intern ? new Map<string, string>() : null;
+  }
   set(index: number, v: RawCell): void {
     const cells = this.cells;
     while (cells.length < index) cells.push(null);
-    if (this.intern && typeof v === 'string') {
-      const seen = this.pool.get(v);
+    const pool = this.pool;
+    if (pool !== null && typeof v === 'string') {
+      const seen = pool.get(v);
       if (seen !== undefined) v = seen;
-      else if (this.pool.size < 200_000) this.pool.set(v, v);
+      else if (pool.size < 200_000) pool.set(v, v);
+      if (++this.strings === INTERN_PROBE && pool.size > INTERN_PROBE / 2) this.pool = null;
     }
     cells[index] = v;
   }
@@ -60,10 +69,13 @@ class ColumnCollector {
     const cells = this.cells;
     while (cells.length < length) cells.push(null);
     cells.length = length;
-    this.pool.clear();
+    this.pool = null;
     return cells;
   }
 }
+
+/** Strings a column reads before deciding whether interning pays (a tuning choice, tried on the file benchmark). */
+const INTERN_PROBE = 4096;
 
 /** "A" -> 0, "AA" -> 26. */
 function letterIndex(letters: string): number {
