@@ -152,6 +152,20 @@ async function scoreAndWrite(
     if (io.progress && large) io.err('\n');
   }
 
+  await reportRun(args, io, { result, plan, marks }, inputNotes, outPath, notCarried);
+  return { outPath, result };
+}
+
+/** What the command prints: the JSON (streamed to stdout), or the run's summary. */
+async function reportRun(
+  args: ScoreArgs,
+  io: Io,
+  run: Pick<PipelineRun, 'result' | 'plan' | 'marks'>,
+  inputNotes: readonly string[],
+  outPath: string | null,
+  notCarried: readonly string[] | null,
+): Promise<void> {
+  const { result, plan, marks } = run;
   const modeLine =
     notCarried === null
       ? ''
@@ -179,7 +193,6 @@ async function scoreAndWrite(
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
-  return { outPath, result };
 }
 
 /** Rows in one worksheet (the spreadsheet's limit, header included). */

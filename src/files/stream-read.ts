@@ -143,6 +143,22 @@ class TableBuilder {
     if (this.givenHeader !== undefined ? rowNo >= this.givenHeader : this.pending.length >= HEADER_SEARCH_ROWS) this.decide();
   }
 
+  /** A parsed .xlsx row: its RawCells, whether it holds SUBTOTAL formulas, and formulas without a saved result. */
+  xlsxRow(row: StreamRow): void {
+    const m = new Map<number, RawCell>();
+    let total = false;
+    const unsaved: number[] = [];
+    for (const c of row.cells) {
+      m.set(c.col - 1, c.raw);
+      const v = c.value;
+      if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
+        if (isTotalFormula(v.formula)) total = true;
+        if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
+      }
+    }
+    this.row(row.r, m, total, unsaved);
+  }
+
   /** A delimited record as a row (fields by 0-based column; empty fields are blank). */
   record(rowNo: number, rec: readonly string[]): void {
     if (!this.decided) {
@@ -312,16 +328,93 @@ function rowsSoFar(b: TableBuilder): number {
  * the previous run's marks, and with a spool every sheet's rows are kept for the writer (without
  * one, the other sheets are skipped unparsed).
  */
-async function readXlsxSheets(path: string, options: StreamReadOptions, spooling: WorkbookSpool | null): Promise<ReadTable> {
-  let spool = spooling;
+/** What one pass over a workbook's sheets learns. */
+interface XlsxPass {
+  readonly name: string;
+  readonly options: StreamReadOptions;
+  readonly b: TableBuilder;
+  spool: WorkbookSpool | null;
+  target: string | null;
+  names: string[];
+  chain: Set<string>;
+  found: boolean;
+  merges: readonly string[];
+  previous: NotesGrid | null;
+}
+
+/**
+ * One sheet of the pass: the target's rows go to the table, our earlier notes sheet's to the
+ * marks grid, every kept row to the spool. Returns false when the pass can stop.
+ */
+async function readOneSheet(x: XlsxStream, sheet: Parameters<XlsxStream['readSheet']>[0], p: XlsxPass): Promise<boolean> {
+  const isTarget = sheet.name === p.target && !p.found;
+  // Our notes sheet from an earlier run (the first of the chain whose A1 says so) holds the
+  // previous run's list of review marks; the writer replaces it.
+  const notesCandidate = !isTarget && p.previous === null && p.chain.has(sheet.name);
+  const spool = p.spool;
+  if (!isTarget && !notesCandidate && !spool) {
+    await x.skipSheet(sheet);
+    return true;
+  }
+  if (isTarget) p.found = true;
+  spool?.beginSheet(sheet.name, sheet.state);
+  let first = true;
+  let grid = null as NotesGrid | null;
+  const tail = await x.readSheet(sheet, {
+    onHead(h) {
+      spool?.head(h);
+    },
+    onRow(row) {
+      if (first) {
+        first = false;
+        const a1 = row.r === 1 ? (row.cells.find((c) => c.col === 1)?.raw ?? null) : null;
+        spool?.setA1(a1);
+        if (notesCandidate && notesFormatOf(a1) !== null) {
+          grid = new NotesGrid();
+          spool?.markReplaced();
+        }
+      }
+      if (grid) {
+        grid.add(row);
+        return;
+      }
+      spool?.row(row);
+      if (isTarget) p.b.xlsxRow(row);
+    },
+  });
+  spool?.endSheet(tail);
+  if (isTarget) {
+    p.merges = tail.merges;
+    if (spool && p.options.spool?.keepIf && !p.options.spool.keepIf(rowsSoFar(p.b))) {
+      spool.dispose();
+      p.spool = null;
+    }
+  }
+  if (grid) p.previous = grid;
+  // Without a spool, read on only while our notes sheet may still come.
+  return !(!p.spool && p.found && (p.previous !== null || p.chain.size === 0));
+}
+
+/** 0-based columns right of the table that are not free: holding a value, or in a merged range over the data rows. */
+function busyWithMerges(b: TableBuilder, busyColumns: readonly number[], merges: readonly string[], rowCount: number): number[] {
+  // A merged range right of the table is not free either (its cells other than the first hold no value).
+  const busy = new Set(busyColumns);
+  for (const m of merges) {
+    const r = /^\$?([A-Z]+)\$?(\d+)(?::\$?([A-Z]+)\$?(\d+))?$/.exec(m);
+    if (!r) continue;
+    const c1 = letterIndex(r[1]);
+    const c2 = letterIndex(r[3] ?? r[1]);
+    const r1 = Number(r[2]);
+    const r2 = Number(r[4] ?? r[2]);
+    if (r2 < b.headerRow || r1 > b.headerRow + rowCount) continue;
+    for (let c = Math.max(c1, b.last + 1); c <= c2; c++) busy.add(c);
+  }
+  return [...busy].sort((p, q) => p - q);
+}
+
+async function readXlsxSheets(path: string, options: StreamReadOptions, spool: WorkbookSpool | null): Promise<ReadTable> {
   const x = new XlsxStream(path);
   const name = basename(path);
-  let target: string | null = null;
-  let names: string[] = [];
-  let chain = new Set<string>();
-  let found = false;
-  let merges: readonly string[] = [];
-  let previous = null as NotesGrid | null;
   // An error from the caller's `keep` is passed on as it is; any other failure means the file is not
   // a workbook we can read.
   let callerError: unknown = null;
@@ -336,70 +429,15 @@ async function readXlsxSheets(path: string, options: StreamReadOptions, spooling
       }
     : undefined;
   const b = new TableBuilder(keep, false, options.headerRow);
-  const addTableRow = (row: StreamRow) => {
-    const m = new Map<number, RawCell>();
-    let total = false;
-    const unsaved: number[] = [];
-    for (const c of row.cells) {
-      m.set(c.col - 1, c.raw);
-      const v = c.value;
-      if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
-        if (isTotalFormula(v.formula)) total = true;
-        if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
-      }
-    }
-    b.row(row.r, m, total, unsaved);
-  };
+  const p: XlsxPass = { name, options, b, spool, target: null, names: [], chain: new Set(), found: false, merges: [], previous: null };
   try {
     for await (const sheet of x.sheets()) {
-      if (target === null) {
-        names = x.sheetNames.length ? x.sheetNames : [sheet.name];
-        target = targetSheet(names, options.sheet, name);
-        chain = notesChain(names);
+      if (p.target === null) {
+        p.names = x.sheetNames.length ? x.sheetNames : [sheet.name];
+        p.target = targetSheet(p.names, options.sheet, name);
+        p.chain = notesChain(p.names);
       }
-      const isTarget = sheet.name === target && !found;
-      // Our notes sheet from an earlier run (the first of the chain whose A1 says so) holds the
-      // previous run's list of review marks; the writer replaces it.
-      const notesCandidate = !isTarget && previous === null && chain.has(sheet.name);
-      if (!isTarget && !notesCandidate && !spool) {
-        await x.skipSheet(sheet);
-        continue;
-      }
-      if (isTarget) found = true;
-      spool?.beginSheet(sheet.name, sheet.state);
-      let first = true;
-      let grid = null as NotesGrid | null;
-      const tail = await x.readSheet(sheet, {
-        onHead(h) {
-          spool?.head(h);
-        },
-        onRow(row) {
-          if (first) {
-            first = false;
-            const a1 = row.r === 1 ? (row.cells.find((c) => c.col === 1)?.raw ?? null) : null;
-            spool?.setA1(a1);
-            if (notesCandidate && notesFormatOf(a1) !== null) {
-              grid = new NotesGrid();
-              spool?.markReplaced();
-            }
-          }
-          if (grid) {
-            grid.add(row);
-            return;
-          }
-          spool?.row(row);
-          if (isTarget) addTableRow(row);
-        },
-      });
-      spool?.endSheet(tail);
-      if (isTarget) merges = tail.merges;
-      if (isTarget && spool && options.spool?.keepIf && !options.spool.keepIf(rowsSoFar(b))) {
-        spool.dispose();
-        spool = null;
-      }
-      if (grid) previous = grid;
-      // Without a spool, read on only while our notes sheet may still come.
-      if (!spool && found && (previous !== null || chain.size === 0)) break;
+      if (!(await readOneSheet(x, sheet, p))) break;
     }
   } catch (e) {
     if (isTailmarkError(e, 'input-file', 'output-file') || (callerError !== null && e === callerError)) throw e;
@@ -408,40 +446,31 @@ async function readXlsxSheets(path: string, options: StreamReadOptions, spooling
   } finally {
     x.close();
   }
-  if (spool) {
-    spool.style = (id) => x.style(id);
-    spool.definedNames = x.definedNameCount;
+  if (p.spool) {
+    p.spool.style = (id) => x.style(id);
+    p.spool.definedNames = x.definedNameCount;
   }
-  if (!found) {
-    if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
-    throw new TailmarkError('input-file', `sheet "${target}" not found in ${name}`);
+  if (!p.found) {
+    if (p.names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
+    throw new TailmarkError('input-file', `sheet "${p.target}" not found in ${name}`);
   }
   const { columns, rowCount, busyColumns } = b.finish();
-  if (!b.hasHeader) throw new TailmarkError('input-file', `sheet "${target}" in ${name} is empty`);
-  // A merged range right of the table is not free either (its cells other than the first hold no value).
-  const busy = new Set(busyColumns);
-  for (const m of merges) {
-    const r = /^\$?([A-Z]+)\$?(\d+)(?::\$?([A-Z]+)\$?(\d+))?$/.exec(m);
-    if (!r) continue;
-    const c1 = letterIndex(r[1]);
-    const c2 = letterIndex(r[3] ?? r[1]);
-    const r1 = Number(r[2]);
-    const r2 = Number(r[4] ?? r[2]);
-    if (r2 < b.headerRow || r1 > b.headerRow + rowCount) continue;
-    for (let c = Math.max(c1, b.last + 1); c <= c2; c++) busy.add(c);
-  }
+  if (!b.hasHeader) throw new TailmarkError('input-file', `sheet "${p.target}" in ${name} is empty`);
   return {
-    source: describe(path, target, b.first, b.headerRow, b.headers.length, rowCount),
-    sheetName: target!,
+    source: describe(path, p.target, b.first, b.headerRow, b.headers.length, rowCount),
+    sheetName: p.target!,
     headers: b.headers,
     columns,
     rowCount,
     headerRow: b.headerRow,
     firstColumn: b.first,
-    streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names, ...(spool ? { workbook: spool } : {}) },
-    previousMarks: previous?.marks() ?? [],
+    streamed: {
+      kind: 'xlsx', kept: b.kept, busyColumns: busyWithMerges(b, busyColumns, p.merges, rowCount), sheetNames: p.names,
+      ...(p.spool ? { workbook: p.spool } : {}),
+    },
+    previousMarks: p.previous?.marks() ?? [],
     readNotes: b.notes,
-    merges: mergedSpans(merges, b.first, b.headers.length, b.headerRow, rowCount),
+    merges: mergedSpans(p.merges, b.first, b.headers.length, b.headerRow, rowCount),
     unsavedFormulas: b.unsaved,
   };
 }
