@@ -11,10 +11,10 @@ import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { RawCell, ScoreResult } from '../scoring/types.js';
 import { planJsonChunks } from '../report/json.js';
 import { METHOD_NAMES } from '../report/plan.js';
-import { CAUTION } from '../report/style.js';
+import { CAUTION, NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
 import { describeDecimal } from '../report/decimal.js';
 import { demoClaims, DEMO_SHEET } from '../demo/claims.js';
-import { fileKind, readTable, unsavedFormulaMessage, type ReadTable } from '../files/read.js';
+import { fileKind, readTable, unsavedFormulaMessage, type ReadOptions, type ReadTable } from '../files/read.js';
 import { readTableStreaming } from '../files/stream-read.js';
 import { writeScoredWorkbookStreaming } from '../files/stream-write.js';
 import { writeScoredWorkbook } from '../files/write.js';
@@ -70,10 +70,12 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   }
   const threshold = streamThreshold();
   const wantWorkbook = !args.json || args.out !== undefined;
+  const outPath = wantWorkbook ? (args.out ?? outDefault ?? defaultOut(args.input)) : null;
   // A bad --out is reported before a long read, not after it.
-  if (wantWorkbook && found && fileKind(args.input) !== null) await checkOutPath(args.input, args.out ?? outDefault ?? defaultOut(args.input), args.force);
+  if (outPath !== null && found && fileKind(args.input) !== null) await checkOutPath(args.input, outPath, args.force);
   if (big) progress(`reading ${basename(args.input)}…`);
-  // First pass, row by row: only the columns this run needs are kept, so any size fits in memory.
+  // Row by row: only the columns this run needs are kept, so any size fits in memory; an .xlsx that
+  // a workbook is written from keeps its rows in a spool for the writer, so it is parsed once.
   const where = args.sheet !== undefined ? `${basename(args.input)}, sheet ${args.sheet}` : basename(args.input);
   const readOptions = {
     ...(args.sheet !== undefined ? { sheet: args.sheet } : {}),
@@ -84,38 +86,64 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     ...readOptions,
     keep: (headers) => {
       const cols = resolveColumns(headers, args.settings, where);
-      // The id column's cells are only printed with --json; a workbook run needs just its name.
-      return [...cols.value, ...cols.group, ...(cols.id !== null && args.json ? [cols.id] : [])];
+      return [...cols.value, ...cols.group, ...(cols.id !== null && needIds(args, headers) ? [cols.id] : [])];
     },
+    ...(outPath !== null ? { spool: { dir: dirname(resolve(outPath)), keepIf: (rows: number) => args.stream || rows > threshold } } : {}),
   });
+  const spool = streamedTable.streamed?.workbook;
+  try {
+    return await scoreAndWrite(args, io, streamedTable, outPath, threshold, readOptions);
+  } finally {
+    spool?.dispose();
+  }
+}
+
+/**
+ * Claim IDs are kept row by row when they are printed (--json) or when review marks may be in play:
+ * an .xlsx (its notes sheet may list marks) or a table that holds our status or note column.
+ */
+function needIds(args: ScoreArgs, headers: readonly string[]): boolean {
+  return args.json || fileKind(args.input) !== 'csv' || headers.includes(STATUS_HEADER) || headers.includes(NOTE_HEADER);
+}
+
+async function scoreAndWrite(
+  args: ScoreArgs,
+  io: Io,
+  streamedTable: ReadTable,
+  outPath: string | null,
+  threshold: number,
+  readOptions: ReadOptions,
+): Promise<{ outPath: string | null; result: ScoreResult }> {
+  const progress = (msg: string) => {
+    if (io.progress) io.err(`\r${msg}\x1b[K`);
+  };
   const streaming = args.stream || fileKind(args.input) === 'csv' || streamedTable.rowCount > threshold;
   // Below the threshold an .xlsx is written from the whole workbook in memory, which keeps everything
   // in it (hyperlinks, comments, pictures...); the table is read that way too, as before.
-  const table: ReadTable = !streaming && wantWorkbook ? await readTable(args.input, { ...readOptions, sheet: streamedTable.sheetName }) : streamedTable;
+  const table: ReadTable = !streaming && outPath !== null ? await readTable(args.input, { ...readOptions, sheet: streamedTable.sheetName }) : streamedTable;
+  if (table !== streamedTable) streamedTable.streamed?.workbook?.dispose();
   const cols = resolveColumns(table.headers, args.settings, table.source);
   checkFormulas(table, [...cols.value, ...cols.group], basename(args.input));
-  if (wantWorkbook) checkSheetLimit(table, basename(args.input));
+  if (outPath !== null) checkSheetLimit(table, basename(args.input));
   const inputNotes = [...(table.readNotes ?? []), ...fillMergedKeys(table.headers, table.columns as RawCell[][], table.merges ?? [], cols.group)];
   const large = table.rowCount >= LARGE_ROWS;
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
   const { result, plan, marks } = runPipeline(table, args.settings, {
     when: new Date(),
-    // The previous run's list of marks (in-memory .xlsx only; row by row the notes sheet is not read).
+    // The previous run's list of marks, from our notes sheet (read in memory or row by row).
     previousMarks: previousMarks(table),
     // Row by row, each explanation is worded as its row is written, not all held at once.
     ...(streaming ? { reasonText: 'on-demand' as const } : {}),
     inputNotes,
   });
 
-  let outPath: string | null = null;
   let notCarried: readonly string[] | null = null;
-  if (wantWorkbook) {
-    outPath = args.out ?? outDefault ?? defaultOut(args.input);
+  if (outPath !== null) {
     if (large) progress('writing…');
     const onProgress = large ? (phase: string, f: number) => progress(`${phase} ${Math.round(f * 100)}%`) : undefined;
     if (streaming) {
-      const summary = await writeScoredWorkbookStreaming(args.input, table, plan, outPath, { force: args.force, onProgress });
+      const summary = await writeScoredWorkbookStreaming(args.input, table, plan, outPath, { force: args.force, onProgress, reviewer: args.settings.reviewer });
       notCarried = summary.notCarried;
     } else {
       await writeScoredWorkbook(args.input, table, plan, outPath, { force: args.force, workbook: table.workbook, onProgress, reviewer: args.settings.reviewer });
@@ -124,6 +152,20 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
     if (io.progress && large) io.err('\n');
   }
 
+  await reportRun(args, io, { result, plan, marks }, inputNotes, outPath, notCarried);
+  return { outPath, result };
+}
+
+/** What the command prints: the JSON (streamed to stdout), or the run's summary. */
+async function reportRun(
+  args: ScoreArgs,
+  io: Io,
+  run: Pick<PipelineRun, 'result' | 'plan' | 'marks'>,
+  inputNotes: readonly string[],
+  outPath: string | null,
+  notCarried: readonly string[] | null,
+): Promise<void> {
+  const { result, plan, marks } = run;
   const modeLine =
     notCarried === null
       ? ''
@@ -151,7 +193,6 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
         `Wrote ${outPath}\n${modeLine}${CAUTION}\n`,
     );
   }
-  return { outPath, result };
 }
 
 /** Rows in one worksheet (the spreadsheet's limit, header included). */

@@ -49,6 +49,13 @@ export async function exists(p: string): Promise<boolean> {
   }
 }
 
+/** A CSV field as a sheet value: plain decimal numbers become numbers, everything else stays text. */
+export function csvFieldValue(f: string): ExcelJS.CellValue {
+  if (f === '') return null;
+  if (/^-?(0|[1-9]\d{0,14})(\.\d{1,10})?$/.test(f)) return Number(f);
+  return f;
+}
+
 /** Refuse a bad --out before any work: wrong type, the input itself, an existing file without force, no folder. */
 export async function checkOutPath(inputPath: string, outPath: string, force: boolean | undefined): Promise<void> {
   if (fileKind(outPath) !== 'xlsx') throw new TailmarkError('output-file', `--out must end in .xlsx; got ${outPath}`);

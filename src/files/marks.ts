@@ -1,6 +1,8 @@
 /**
- * The previous run's list of review marks, read from the notes sheet of an .xlsx read in memory
- * (src/report/marks.ts says what the list is for). A notes sheet that is not ours gives nothing.
+ * The previous run's list of review marks (src/report/marks.ts says what the list is for): read by
+ * the row-by-row reader while it passes our notes sheet (`table.previousMarks`), or from the notes
+ * sheet of an .xlsx read in memory. Either way from the sheet a writer replaces: the first of
+ * "Tailmark notes", "Tailmark notes (2)"... whose A1 says it is ours. A notes sheet of the user's gives nothing.
  */
 import type ExcelJS from 'exceljs';
 import { NOTES_SHEET_NAME } from '../report/style.js';
@@ -14,10 +16,20 @@ function plain(v: ExcelJS.CellValue): unknown {
   return v;
 }
 
-export function previousMarks(table: ReadTable): MarkRecord[] {
+/** Our notes sheet in an ExcelJS workbook (the one a writer replaces), or undefined. */
+function ourNotesSheet(wb: ExcelJS.Workbook): ExcelJS.Worksheet | undefined {
+  for (let k = 1; ; k++) {
+    const ws = wb.getWorksheet(k === 1 ? NOTES_SHEET_NAME : `${NOTES_SHEET_NAME} (${k})`);
+    if (!ws) return undefined;
+    if (notesFormatOf(plain(ws.getCell('A1').value)) !== null) return ws;
+  }
+}
+
+export function previousMarks(table: ReadTable): readonly MarkRecord[] {
   const wb = table.workbook as ExcelJS.Workbook | undefined;
-  const notes = wb?.getWorksheet(NOTES_SHEET_NAME);
-  if (!notes || notesFormatOf(plain(notes.getCell('A1').value)) === null) return [];
+  if (!wb) return table.previousMarks ?? [];
+  const notes = ourNotesSheet(wb);
+  if (!notes) return [];
   const grid: unknown[][] = [];
   notes.eachRow({ includeEmpty: true }, (row, r) => {
     grid[r - 1] = [1, 2, 3].map((c) => plain(row.getCell(c).value));

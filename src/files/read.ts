@@ -18,6 +18,8 @@ import { sniffKind, unreadableMessage } from '../table/kind.js';
 import { uniqueHeaders } from '../table/names.js';
 import { columnLetters } from '../report/columns.js';
 import { TailmarkError } from '../pipeline/errors.js';
+import type { MarkRecord } from '../report/marks.js';
+import type { WorkbookSpool } from './xlsx-spool.js';
 import { isTotalFormula, rowSaysTotal } from '../table/totals.js';
 
 
@@ -52,6 +54,8 @@ export type ReadTable = SourceTable & {
   readonly merges?: readonly MergedSpan[];
   /** Per table column: formula cells whose result was never saved (read as blank); xlsx only. */
   readonly unsavedFormulas?: readonly number[];
+  /** The previous run's list of review marks, from our notes sheet (xlsx read row by row; [] when none). */
+  readonly previousMarks?: readonly MarkRecord[];
 };
 
 /** What a streaming read learnt that the streaming writer needs (it cannot look at the sheet again). */
@@ -63,6 +67,8 @@ export interface StreamedInfo {
   readonly busyColumns: readonly number[];
   /** The workbook's sheet names in workbook order (xlsx; empty for csv). */
   readonly sheetNames: readonly string[];
+  /** Every sheet's rows as read (xlsx read with a spool), so the writer does not parse the file again. */
+  readonly workbook?: WorkbookSpool;
   /** How a delimited file was decoded and split (csv), so the writer reads it the same way. */
   readonly text?: { readonly encoding: TextEncodingName; readonly delimiter: import('../table/csv.js').CsvDelimiter };
 }

@@ -9,7 +9,9 @@
  */
 import { basename } from 'node:path';
 import type { RawCell } from '../scoring/types.js';
-import { NOTE_HEADER, STATUS_HEADER } from '../report/style.js';
+import { NOTE_HEADER, NOTES_SHEET_NAME, STATUS_HEADER } from '../report/style.js';
+import { notesFormatOf } from '../report/notesSheet.js';
+import { readMarkRecords, type MarkRecord } from '../report/marks.js';
 import { DELIMITER_WORDS } from '../table/csv.js';
 import { TailmarkError, isTailmarkError } from '../pipeline/errors.js';
 import { describeEncoding } from '../table/encoding.js';
@@ -19,7 +21,8 @@ import { forEachCsvRecordDetected } from './csv-stream.js';
 import {
   checkInputFile, cleanHeaders, describe, isEmpty, mergedSpans, sheetNameFromFile, type ReadOptions, type ReadTable,
 } from './read.js';
-import { XlsxStream } from './xlsx-stream.js';
+import { XlsxStream, type StreamRow } from './xlsx-stream.js';
+import { WorkbookSpool, type SpoolOptions } from './xlsx-spool.js';
 
 export interface StreamReadOptions extends ReadOptions {
   /**
@@ -28,20 +31,37 @@ export interface StreamReadOptions extends ReadOptions {
    * header that is not there); the read stops and the error is passed on.
    */
   readonly keep?: (headers: readonly string[]) => Iterable<number>;
+  /**
+   * .xlsx: keep every sheet's rows for the large-file writer (table.streamed.workbook), so the
+   * file is parsed once; the caller disposes of it. Ignored for delimited text (read again to write).
+   */
+  readonly spool?: SpoolOptions & {
+    /** Asked when the table's sheet has been read, with its data rows: false drops the spool (the writer will not need it). */
+    readonly keepIf?: (rows: number) => boolean;
+  };
 }
 
-/** Growing column of cells, with repeated strings stored once (group keys repeat a lot). */
+/**
+ * Growing column of cells, with repeated strings stored once (group keys repeat a lot). A column
+ * whose first strings are mostly distinct (amounts, claim IDs) stops interning: looking each one up
+ * cost more than it saved.
+ */
 class ColumnCollector {
   readonly cells: RawCell[] = [];
-  private readonly pool = new Map<string, string>();
-  constructor(private readonly intern: boolean) {}
+  private pool: Map<string, string> | null;
+  private strings = 0;
+  constructor(intern: boolean) {
+    this.pool = intern ? new Map<string, string>() : null;
+  }
   set(index: number, v: RawCell): void {
     const cells = this.cells;
     while (cells.length < index) cells.push(null);
-    if (this.intern && typeof v === 'string') {
-      const seen = this.pool.get(v);
+    const pool = this.pool;
+    if (pool !== null && typeof v === 'string') {
+      const seen = pool.get(v);
       if (seen !== undefined) v = seen;
-      else if (this.pool.size < 200_000) this.pool.set(v, v);
+      else if (pool.size < 200_000) pool.set(v, v);
+      if (++this.strings === INTERN_PROBE && pool.size > INTERN_PROBE / 2) this.pool = null;
     }
     cells[index] = v;
   }
@@ -49,10 +69,13 @@ class ColumnCollector {
     const cells = this.cells;
     while (cells.length < length) cells.push(null);
     cells.length = length;
-    this.pool.clear();
+    this.pool = null;
     return cells;
   }
 }
+
+/** Strings a column reads before deciding whether interning pays (a tuning choice, tried on the file benchmark). */
+const INTERN_PROBE = 4096;
 
 /** "A" -> 0, "AA" -> 26. */
 function letterIndex(letters: string): number {
@@ -118,6 +141,22 @@ class TableBuilder {
     }
     this.pending.push({ rowNo, cells, total, unsaved });
     if (this.givenHeader !== undefined ? rowNo >= this.givenHeader : this.pending.length >= HEADER_SEARCH_ROWS) this.decide();
+  }
+
+  /** A parsed .xlsx row: its RawCells, whether it holds SUBTOTAL formulas, and formulas without a saved result. */
+  xlsxRow(row: StreamRow): void {
+    const m = new Map<number, RawCell>();
+    let total = false;
+    const unsaved: number[] = [];
+    for (const c of row.cells) {
+      m.set(c.col - 1, c.raw);
+      const v = c.value;
+      if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
+        if (isTotalFormula(v.formula)) total = true;
+        if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
+      }
+    }
+    this.row(row.r, m, total, unsaved);
   }
 
   /** A delimited record as a row (fields by 0-based column; empty fields are blank). */
@@ -245,13 +284,137 @@ function targetSheet(names: readonly string[], wanted: string | undefined, file:
   return t;
 }
 
+/** Sheet names of our notes chain present in the workbook: "Tailmark notes", then "(2)", "(3)"... while they exist. */
+function notesChain(names: readonly string[]): Set<string> {
+  const chain = new Set<string>();
+  for (let k = 1; ; k++) {
+    const n = k === 1 ? NOTES_SHEET_NAME : `${NOTES_SHEET_NAME} (${k})`;
+    if (!names.includes(n)) return chain;
+    chain.add(n);
+  }
+}
+
+/** The first three columns of a notes sheet as a dense grid of values, for readMarkRecords. */
+class NotesGrid {
+  private readonly rows: RawCell[][] = [];
+  add(row: StreamRow): void {
+    const out: RawCell[] = [null, null, null];
+    for (const c of row.cells) if (c.col <= 3) out[c.col - 1] = c.raw;
+    this.rows[row.r - 1] = out;
+  }
+  marks(): MarkRecord[] {
+    for (let r = 0; r < this.rows.length; r++) this.rows[r] ??= [];
+    return readMarkRecords(this.rows);
+  }
+}
+
 async function readXlsxStreaming(path: string, options: StreamReadOptions): Promise<ReadTable> {
+  const spool = options.spool ? new WorkbookSpool(options.spool) : null;
+  try {
+    return await readXlsxSheets(path, options, spool);
+  } catch (e) {
+    spool?.dispose();
+    throw e;
+  }
+}
+
+/** Data rows the table has so far (before a totals row is left out). */
+function rowsSoFar(b: TableBuilder): number {
+  return b.hasHeader ? b.lastData - b.headerRow : 0;
+}
+
+/**
+ * One pass over the workbook: the target sheet's rows build the table, our earlier notes sheet gives
+ * the previous run's marks, and with a spool every sheet's rows are kept for the writer (without
+ * one, the other sheets are skipped unparsed).
+ */
+/** What one pass over a workbook's sheets learns. */
+interface XlsxPass {
+  readonly name: string;
+  readonly options: StreamReadOptions;
+  readonly b: TableBuilder;
+  spool: WorkbookSpool | null;
+  target: string | null;
+  names: string[];
+  chain: Set<string>;
+  found: boolean;
+  merges: readonly string[];
+  previous: NotesGrid | null;
+}
+
+/**
+ * One sheet of the pass: the target's rows go to the table, our earlier notes sheet's to the
+ * marks grid, every kept row to the spool. Returns false when the pass can stop.
+ */
+async function readOneSheet(x: XlsxStream, sheet: Parameters<XlsxStream['readSheet']>[0], p: XlsxPass): Promise<boolean> {
+  const isTarget = sheet.name === p.target && !p.found;
+  // Our notes sheet from an earlier run (the first of the chain whose A1 says so) holds the
+  // previous run's list of review marks; the writer replaces it.
+  const notesCandidate = !isTarget && p.previous === null && p.chain.has(sheet.name);
+  const spool = p.spool;
+  if (!isTarget && !notesCandidate && !spool) {
+    await x.skipSheet(sheet);
+    return true;
+  }
+  if (isTarget) p.found = true;
+  spool?.beginSheet(sheet.name, sheet.state);
+  let first = true;
+  let grid = null as NotesGrid | null;
+  const tail = await x.readSheet(sheet, {
+    onHead(h) {
+      spool?.head(h);
+    },
+    onRow(row) {
+      if (first) {
+        first = false;
+        const a1 = row.r === 1 ? (row.cells.find((c) => c.col === 1)?.raw ?? null) : null;
+        spool?.setA1(a1);
+        if (notesCandidate && notesFormatOf(a1) !== null) {
+          grid = new NotesGrid();
+          spool?.markReplaced();
+        }
+      }
+      if (grid) {
+        grid.add(row);
+        return;
+      }
+      spool?.row(row);
+      if (isTarget) p.b.xlsxRow(row);
+    },
+  });
+  spool?.endSheet(tail);
+  if (isTarget) {
+    p.merges = tail.merges;
+    if (spool && p.options.spool?.keepIf && !p.options.spool.keepIf(rowsSoFar(p.b))) {
+      spool.dispose();
+      p.spool = null;
+    }
+  }
+  if (grid) p.previous = grid;
+  // Without a spool, read on only while our notes sheet may still come.
+  return !(!p.spool && p.found && (p.previous !== null || p.chain.size === 0));
+}
+
+/** 0-based columns right of the table that are not free: holding a value, or in a merged range over the data rows. */
+function busyWithMerges(b: TableBuilder, busyColumns: readonly number[], merges: readonly string[], rowCount: number): number[] {
+  // A merged range right of the table is not free either (its cells other than the first hold no value).
+  const busy = new Set(busyColumns);
+  for (const m of merges) {
+    const r = /^\$?([A-Z]+)\$?(\d+)(?::\$?([A-Z]+)\$?(\d+))?$/.exec(m);
+    if (!r) continue;
+    const c1 = letterIndex(r[1]);
+    const c2 = letterIndex(r[3] ?? r[1]);
+    const r1 = Number(r[2]);
+    const r2 = Number(r[4] ?? r[2]);
+    if (r2 < b.headerRow || r1 > b.headerRow + rowCount) continue;
+    for (let c = Math.max(c1, b.last + 1); c <= c2; c++) busy.add(c);
+  }
+  return [...busy].sort((p, q) => p - q);
+}
+
+async function readXlsxSheets(path: string, options: StreamReadOptions, spool: WorkbookSpool | null): Promise<ReadTable> {
   const x = new XlsxStream(path);
   const name = basename(path);
-  let target: string | null = null;
-  let names: string[] = [];
-  let found = false;
-  let merges: readonly string[] = [];
   // An error from the caller's `keep` is passed on as it is; any other failure means the file is not
   // a workbook we can read.
   let callerError: unknown = null;
@@ -266,72 +429,48 @@ async function readXlsxStreaming(path: string, options: StreamReadOptions): Prom
       }
     : undefined;
   const b = new TableBuilder(keep, false, options.headerRow);
+  const p: XlsxPass = { name, options, b, spool, target: null, names: [], chain: new Set(), found: false, merges: [], previous: null };
   try {
     for await (const sheet of x.sheets()) {
-      if (target === null) {
-        names = x.sheetNames.length ? x.sheetNames : [sheet.name];
-        target = targetSheet(names, options.sheet, name);
+      if (p.target === null) {
+        p.names = x.sheetNames.length ? x.sheetNames : [sheet.name];
+        p.target = targetSheet(p.names, options.sheet, name);
+        p.chain = notesChain(p.names);
       }
-      if (sheet.name !== target) {
-        await x.skipSheet(sheet);
-        continue;
-      }
-      found = true;
-      const tail = await x.readSheet(sheet, {
-        onRow(row) {
-          const m = new Map<number, RawCell>();
-          let total = false;
-          const unsaved: number[] = [];
-          for (const c of row.cells) {
-            m.set(c.col - 1, c.raw);
-            const v = c.value;
-            if (v !== null && typeof v === 'object' && 'formula' in v && typeof v.formula === 'string') {
-              if (isTotalFormula(v.formula)) total = true;
-              if (c.raw === null && (v as { result?: unknown }).result === undefined) unsaved.push(c.col - 1);
-            }
-          }
-          b.row(row.r, m, total, unsaved);
-        },
-      });
-      merges = tail.merges;
-      break;
+      if (!(await readOneSheet(x, sheet, p))) break;
     }
   } catch (e) {
-    if (isTailmarkError(e, 'input-file') || (callerError !== null && e === callerError)) throw e;
+    if (isTailmarkError(e, 'input-file', 'output-file') || (callerError !== null && e === callerError)) throw e;
     if (e instanceof ReferenceError || e instanceof SyntaxError) throw e; // a bug of ours, not the file
     throw new TailmarkError('input-file', `cannot read ${name} as an .xlsx workbook (${e instanceof Error ? e.message : String(e)})`);
   } finally {
     x.close();
   }
-  if (!found) {
-    if (names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
-    throw new TailmarkError('input-file', `sheet "${target}" not found in ${name}`);
+  if (p.spool) {
+    p.spool.style = (id) => x.style(id);
+    p.spool.definedNames = x.definedNameCount;
+  }
+  if (!p.found) {
+    if (p.names.length === 0) throw new TailmarkError('input-file', `${name} has no worksheets`);
+    throw new TailmarkError('input-file', `sheet "${p.target}" not found in ${name}`);
   }
   const { columns, rowCount, busyColumns } = b.finish();
-  if (!b.hasHeader) throw new TailmarkError('input-file', `sheet "${target}" in ${name} is empty`);
-  // A merged range right of the table is not free either (its cells other than the first hold no value).
-  const busy = new Set(busyColumns);
-  for (const m of merges) {
-    const r = /^\$?([A-Z]+)\$?(\d+)(?::\$?([A-Z]+)\$?(\d+))?$/.exec(m);
-    if (!r) continue;
-    const c1 = letterIndex(r[1]);
-    const c2 = letterIndex(r[3] ?? r[1]);
-    const r1 = Number(r[2]);
-    const r2 = Number(r[4] ?? r[2]);
-    if (r2 < b.headerRow || r1 > b.headerRow + rowCount) continue;
-    for (let c = Math.max(c1, b.last + 1); c <= c2; c++) busy.add(c);
-  }
+  if (!b.hasHeader) throw new TailmarkError('input-file', `sheet "${p.target}" in ${name} is empty`);
   return {
-    source: describe(path, target, b.first, b.headerRow, b.headers.length, rowCount),
-    sheetName: target!,
+    source: describe(path, p.target, b.first, b.headerRow, b.headers.length, rowCount),
+    sheetName: p.target!,
     headers: b.headers,
     columns,
     rowCount,
     headerRow: b.headerRow,
     firstColumn: b.first,
-    streamed: { kind: 'xlsx', kept: b.kept, busyColumns: [...busy].sort((p, q) => p - q), sheetNames: names },
+    streamed: {
+      kind: 'xlsx', kept: b.kept, busyColumns: busyWithMerges(b, busyColumns, p.merges, rowCount), sheetNames: p.names,
+      ...(p.spool ? { workbook: p.spool } : {}),
+    },
+    previousMarks: p.previous?.marks() ?? [],
     readNotes: b.notes,
-    merges: mergedSpans(merges, b.first, b.headers.length, b.headerRow, rowCount),
+    merges: mergedSpans(p.merges, b.first, b.headers.length, b.headerRow, rowCount),
     unsavedFormulas: b.unsaved,
   };
 }

@@ -12,11 +12,10 @@ import ExcelJS from 'exceljs';
 import type { SourceTable } from '../scoring/types.js';
 import type { Plan, PlanCell } from '../report/types.js';
 import { isTailmarkFormula } from '../report/rules.js';
-import { LOG_HEADER, LOG_SHEET_NAME, isLogMarker, lastRunCutoff, runLogLines } from '../report/log.js';
-import { LOG_TITLE } from '../report/notesSheet.js';
+import { firstNewLogRow, LOG_HEADER, LOG_HEADER_FONT, LOG_HEADER_ROW, LOG_TITLE, LOG_TITLE_STYLE, LOG_WIDTHS, logCell, logSheetChoice, newLogLines } from './log-sheet.js';
 import { fileKind, readTable, type ReadTable } from './read.js';
 import { compactValidations } from './validation-ranges.js';
-import { checkOutPath, inStatusColumn, isOurNotesSheet, notesLayout, ourRules, placeColumns, RESULT_HEADER_STYLE, statusDropdown } from './layout.js';
+import { checkOutPath, csvFieldValue, inStatusColumn, isOurNotesSheet, notesLayout, ourRules, placeColumns, RESULT_HEADER_STYLE, statusDropdown } from './layout.js';
 import { TailmarkError } from '../pipeline/errors.js';
 
 
@@ -48,13 +47,6 @@ interface SheetValidations {
 /** Zip settings for output: deflate level 1 is several times faster than the default 6, for files ~10-15% larger. */
 export const ZIP_FAST = { compression: 'DEFLATE', compressionOptions: { level: 1 } } as const;
 
-/** A CSV field as a sheet value: plain decimal numbers become numbers, everything else stays text. */
-function csvFieldValue(f: string): ExcelJS.CellValue {
-  if (f === '') return null;
-  if (/^-?(0|[1-9]\d{0,14})(\.\d{1,10})?$/.test(f)) return Number(f);
-  return f;
-}
-
 function isEmptyValue(v: ExcelJS.CellValue): boolean {
   return v === null || v === undefined || v === '';
 }
@@ -64,47 +56,35 @@ function planValue(v: PlanCell): ExcelJS.CellValue {
   return v === null ? null : v;
 }
 
-/** A cell of the log sheet as a plan cell (exceljs values: numbers and text are all the log holds). */
-function logCell(v: ExcelJS.CellValue): PlanCell {
-  return typeof v === 'number' || typeof v === 'string' || typeof v === 'boolean' ? v : null;
-}
-
 /**
- * The log sheet, as the add-in keeps it (src/report/log.ts): this run's lines are added below the
- * last one and nothing above is rewritten. A sheet of that name that is not ours is left alone and
- * ours gets a suffix, as for the notes sheet.
+ * The log sheet, as the add-in keeps it (src/report/log.ts, src/files/log-sheet.ts): this run's lines
+ * are added below the last one and nothing above is rewritten. A sheet of that name that is not ours
+ * is left alone and ours gets a suffix, as for the notes sheet.
  */
 function appendLogSheet(wb: ExcelJS.Workbook, plan: Plan, reviewer: string | null): void {
-  let name = LOG_SHEET_NAME;
-  let log: ExcelJS.Worksheet | undefined;
-  for (let k = 2; ; k++) {
-    const found = wb.getWorksheet(name);
-    if (!found || isLogMarker(found.getCell('A1').value)) {
-      log = found;
-      break;
-    }
-    name = `${LOG_SHEET_NAME} (${k})`;
-  }
+  const choice = logSheetChoice(
+    (name) => wb.getWorksheet(name) !== undefined,
+    (name) => wb.getWorksheet(name)?.getCell('A1').value,
+  );
+  let log = choice.exists ? wb.getWorksheet(choice.name) : undefined;
   if (!log) {
-    log = wb.addWorksheet(name);
+    log = wb.addWorksheet(choice.name);
     log.getCell('A1').value = LOG_TITLE;
-    log.getCell('A1').font = { bold: true };
-    log.getColumn(1).width = 26;
-    log.getColumn(2).width = 30;
+    log.getCell('A1').font = LOG_TITLE_STYLE.font!;
+    LOG_WIDTHS.forEach((w, i) => (log!.getColumn(i + 1).width = w));
   }
-  const header = log.getRow(2);
+  const header = log.getRow(LOG_HEADER_ROW);
   LOG_HEADER.forEach((h, i) => {
     header.getCell(i + 1).value = h;
-    header.getCell(i + 1).font = { bold: true };
+    header.getCell(i + 1).font = LOG_HEADER_FONT;
   });
   const earlier: PlanCell[][] = [];
-  for (let r = 3; r <= log.rowCount; r++) {
+  for (let r = LOG_HEADER_ROW + 1; r <= log.rowCount; r++) {
     const row = log.getRow(r);
     earlier.push(LOG_HEADER.map((_, i) => logCell(row.getCell(i + 1).value)));
   }
-  const lines = runLogLines(plan.log, reviewer, lastRunCutoff(earlier, plan.log.method));
-  let next = Math.max(3, log.rowCount + 1);
-  for (const l of lines) {
+  let next = firstNewLogRow(log.rowCount);
+  for (const l of newLogLines(plan, reviewer, earlier)) {
     const row = log.getRow(next++);
     l.forEach((v, i) => {
       if (v !== null) row.getCell(i + 1).value = v;

@@ -92,7 +92,8 @@ export function mergeMarks(plan: Plan, prior: PriorMarks | null, ids: readonly s
   const records: MarkRecord[] = [];
   for (let r = 0; r < rows; r++) {
     const claim = claimOf(r);
-    if (claim !== '') present.add(claim);
+    // Which claims are present matters only for the previous list's gone claims.
+    if (claim !== '' && before.size > 0) present.add(claim);
     let s = '';
     let n = '';
     if (prior && isMark(prior.status[r], prior.note[r])) {

@@ -245,7 +245,7 @@ describe('tailmark score on CSV', () => {
     expect(r.err).toBe('');
     expect(r.code).toBe(0);
     const book = readBook(out);
-    expect(book.SheetNames).toEqual(['claims', 'Tailmark notes']);
+    expect(book.SheetNames).toEqual(['claims', 'Tailmark notes', 'Tailmark log']);
     const sheet = cellsOf(book.Sheets.claims);
     expect(sheet.C2.v).toBe('1,020.00');
     expect(sheet.C3.v).toBe(990);

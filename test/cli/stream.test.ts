@@ -94,7 +94,8 @@ describe('large-file mode (row by row) on the demo data gives what the in-memory
   });
 
   it('the same notes sheet, plus a section saying what large-file mode carried over', () => {
-    expect(readBook(streamed).SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    expect(readBook(streamed).SheetNames).toEqual(['Claims', 'Tailmark notes', 'Tailmark log']);
+    expect(readBook(streamed).SheetNames).toEqual(readBook(inMemory).SheetNames);
     expect(notesText(streamed)).toEqual(notesText(inMemory));
     const all = XLSX.utils.sheet_to_json<unknown[]>(readBook(streamed).Sheets['Tailmark notes'], { header: 1 }).flat().join('\n');
     expect(all).toMatch(/Large-file mode/);
@@ -148,7 +149,7 @@ describe('large-file mode keeps the user own formulas, formats, rules and sheets
     }
     expect(b.D11.f).toBe('C11*2'); // the shared formula, written out for its own cell
     const book = readBook(out);
-    expect(book.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)']);
+    expect(book.SheetNames).toEqual(['Q1 claims', 'Tailmark notes', 'Tailmark notes (2)', 'Tailmark log']);
     expect(cellsOf(book.Sheets['Tailmark notes']).A1.v).toBe('my own sheet that happens to share the name');
     const notes = XLSX.utils.sheet_to_json<unknown[]>(book.Sheets['Tailmark notes (2)'], { header: 1 }).flat().join('\n');
     expect(notes).toMatch(/Not carried over \(found in the input\): sheet "Q1 claims": 1 hyperlink target\(s\)/);
@@ -191,7 +192,8 @@ describe('large-file mode keeps the user own formulas, formats, rules and sheets
     const xml = sheetXml(again, 'Claims');
     expect(xml.match(/ISTEXT\("tailmark:open"\)/g)).toHaveLength(1);
     expect(xml.match(/<dataValidation /g)).toHaveLength(1);
-    expect(readBook(again).SheetNames).toEqual(['Claims', 'Tailmark notes']);
+    // Our log stays where it was (one more line); the notes sheet is replaced, at the end.
+    expect(readBook(again).SheetNames).toEqual(['Claims', 'Tailmark log', 'Tailmark notes']);
   });
 
   it('a bad TAILMARK_STREAM_ROWS is a usage error', async () => {
