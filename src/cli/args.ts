@@ -46,6 +46,7 @@ export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: strin
   logScale: { name: 'log', kind: 'flag' },
   minGroupSize: { name: 'min-group', kind: 'value' },
   smallGroups: { name: 'small-groups', kind: 'value' },
+  widen: { name: 'widen', kind: 'value' },
   // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
   decimal: null,
   reviewer: { name: 'reviewer', kind: 'value' },
@@ -209,7 +210,11 @@ score options:
                           robust 3.5, classic 3)
   --direction <d>         high | low | both (default both)
   --min-group <n>         smallest group scored on its own (default 8)
-  --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)
+  --small-groups <p>      pool (compare with a wider peer group, then the whole column; default) | skip (leave unscored)
+  --widen <w>             with several --group columns, the wider peer group a small group is compared with
+                          first: drop-first (let go of the first --group column: the same category across
+                          every cost centre; default) | drop-last (the same cost centre across every
+                          category) | column (straight to the whole column)
   --log                   score the logarithm of amounts (for skewed amounts; amounts <= 0 are left out)
   --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
   --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)

@@ -11,7 +11,7 @@ import { expectNear, rng, rStats } from './helpers.js';
 const DESCRIPTIVE = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
 const ALL_FIELDS = [
   'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'medcouple', 'fenceFrom',
-  'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'maxAttainableZ', 'chanceRate', 'chanceRateAtMost', 'unreachable',
+  'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'comparedWith', 'maxAttainableZ', 'chanceRate', 'chanceRateAtMost', 'unreachable',
 ];
 const METHODS: MethodId[] = ['robust', 'classic', 'iqr', 'adjusted'];
 

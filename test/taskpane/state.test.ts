@@ -252,6 +252,7 @@ describe('in-memory preview', () => {
     logScale: false,
     minGroupSize: 8,
     smallGroups: 'pool',
+    widen: 'drop-first',
     decimal: 'auto',
     reviewer: null,
     detailColumns: null,
