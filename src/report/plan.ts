@@ -32,6 +32,8 @@ import {
 } from './style.js';
 
 export interface PlanContext {
+  /** What a review budget did (src/pipeline/budget.ts), for the notes' settings table. */
+  readonly budgetNote?: string;
   /** Where the data came from, e.g. "claims.xlsx, sheet Claims, A1:G601" or "Claims!A1:G601". */
   readonly source: string;
   readonly when: Date;
@@ -260,6 +262,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Parameter', 'Value'],
       ['Method', methodName],
       ['Cutoff', options.cutoff],
+      ...(ctx.budgetNote ? [['Review budget', ctx.budgetNote] as PlanCell[]] : []),
       ['Direction', directionWords(options.direction)],
       ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
       ['Minimum group size', options.minGroupSize],

@@ -6,6 +6,7 @@ import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef }
 import type { Exception, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
 import {
   budgetCutoff,
+  describeBudget,
   chartFor,
   claimContext,
   followColumn,
@@ -376,7 +377,9 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
           dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
           return;
         }
+        // The engine's exact cutoff: the box may show it rounded, the run uses this number.
         dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
+        if (answer.flagged < n) dispatch({ type: 'notice', area: 'method', text: describeBudget(answer) });
       },
       setCutoffReason: (text) => dispatch({ type: 'cutoff-reason', text }),
       run: () => {
