@@ -42,8 +42,10 @@
  *   with `run(object, batch)`.
  * - `snapshot()` is O(cells) and meant for test-sized sheets (about 5 microseconds per stored cell).
  */
-export { SandboxWorkbook, sandboxFromRows, diffSnapshots } from './workbook.js';
-export type { SandboxStats, ByteStats, SandboxCellInput, CellSnapshot, SheetSnapshot, SandboxSnapshot, SelectionHandler, SandboxRun } from './workbook.js';
+export { SandboxWorkbook, sandboxFromRows } from './workbook.js';
+export type { SandboxStats, ByteStats, SandboxCellInput, SelectionHandler, SandboxRun } from './workbook.js';
+export { diffSnapshots } from './snapshot.js';
+export type { CellSnapshot, SheetSnapshot, SandboxSnapshot } from './snapshot.js';
 export type { SandboxOptions } from './context.js';
 export { SandboxContext, SandboxClientResult } from './context.js';
 export { SandboxError, isSandboxError } from './errors.js';
