@@ -29,6 +29,7 @@ import {
   STATUS_HEADER,
   resultHeaders,
   statusLabel,
+  widthToShow,
 } from './style.js';
 
 export interface PlanContext {
@@ -202,10 +203,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       if (col.flagged[r]) anyFlag[r] = 1;
       if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
     }
-    columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
-    columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
+    columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: widthToShow(h.score, 12) });
+    columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: widthToShow(h.flag, 15) });
     const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRowShort(result, col, r)) : reason;
-    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 42 });
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: widthToShow(h.reason, 42) });
   });
   const open = statusLabel('open');
   const status: PlanCell[] = new Array<PlanCell>(rows);
@@ -218,8 +219,8 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     flaggedRows += anyFlag[r];
     scoredRows += anyScore[r];
   }
-  columns.push({ header: STATUS_HEADER, kind: 'status', valueColumn: null, values: status, width: 16 });
-  columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: 32 });
+  columns.push({ header: STATUS_HEADER, kind: 'status', valueColumn: null, values: status, width: widthToShow(STATUS_HEADER, 16) });
+  columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: widthToShow(NOTE_HEADER, 32) });
 
   const when = ctx.when.toISOString();
   const methodName = METHOD_NAMES[options.method];

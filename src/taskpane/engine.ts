@@ -9,7 +9,6 @@ import type { PreviewData, RunSettings } from '../workbook/api.js';
 import { defaultCutoff, describeCutoff, describeRows, explainRow, oneInN, populationOfRow } from '../scoring/index.js';
 import { scoreColumns } from '../pipeline/run.js';
 import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
-export { describeBudget } from '../pipeline/budget.js';
 
 export function methodDefaultCutoff(method: MethodId): number {
   return defaultCutoff(method);

@@ -35,7 +35,7 @@ import {
   type PlanCell,
 } from '../report/index.js';
 import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
-import { columnLetters, rectAddress } from './a1.js';
+import { MAX_CELL_TEXT, columnLetters, rectAddress } from './a1.js';
 import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
@@ -47,6 +47,7 @@ import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
 import { place } from './place.js';
+import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { writeAll, writeNotes } from './write-results.js';
 import { compensate } from './undo.js';
 import type { Syncer } from './sync.js';
@@ -59,6 +60,8 @@ export interface RunDeps {
   readonly record?: RunRecord;
   /** How the pipeline runs (the pane passes a worker-backed one; default: same thread, yielding between steps). */
   readonly pipeline?: AsyncPipeline;
+  /** Requirement-set check (feature-detected members such as getMergedAreasOrNullObject); default: none. */
+  readonly supports?: (name: string, version: string) => boolean;
 }
 
 export interface RunOutcome {
@@ -80,7 +83,12 @@ export interface SpanData {
   readonly bytesPerRow: number;
 }
 
-export async function readSpan(sync: Syncer, res: Resolved, deps: Pick<RunDeps, 'onProgress' | 'signal'>): Promise<SpanData> {
+export async function readSpan(
+  sync: Syncer,
+  res: Resolved,
+  deps: Pick<RunDeps, 'onProgress' | 'signal'>,
+  withEachSync?: (rowOffset: number, rows: number) => () => void,
+): Promise<SpanData> {
   const columns: RawCell[][] = Array.from({ length: res.spanCols }, () => new Array<RawCell>(res.rows));
   const fp = new Fingerprint();
   const hint = res.bytesPerCell !== null && res.bytesPerCell > 0 ? res.bytesPerCell * res.spanCols * 1.1 : undefined;
@@ -105,6 +113,7 @@ export async function readSpan(sync: Syncer, res: Resolved, deps: Pick<RunDeps, 
       ...(hint !== undefined ? { bytesPerRowHint: hint } : {}),
       onProgress: (done, total) => deps.onProgress?.({ phase: 'reading', fraction: total ? done / total : 1 }),
       ...(deps.signal ? { signal: deps.signal } : {}),
+      ...(withEachSync ? { withEachSync } : {}),
     },
   );
   return { columns, fingerprint: fp.value, bytesPerRow: out.bytesPerRow };
@@ -147,6 +156,13 @@ function textOf(v: unknown): string {
 
 export async function runScoring(sync: Syncer, table: DetectedTable, chosen: RunSettings, deps: RunDeps): Promise<RunOutcome> {
   const settings = validateSettings(chosen);
+  const reason = deps.record?.cutoffReason ?? '';
+  if (reason.length > MAX_CELL_TEXT) {
+    throw new TailmarkError(
+      'too-large',
+      `The reason for the cutoff is ${reason.length.toLocaleString('en')} characters long; an Excel cell holds at most ${MAX_CELL_TEXT.toLocaleString('en')}. Shorten it, then run again. Nothing was changed.`,
+    );
+  }
   const { signal } = deps;
   if (signal?.aborted) throw cancelled();
   const ctx = sync.context;
@@ -161,8 +177,13 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
 
   // ---- read ----
   if (signal?.aborted) throw cancelled();
-  const data = await readSpan(sync, res, deps);
+  // Merged cells in the key columns take the area's value (asked with the read, where Excel can tell).
+  const keys = settings.groupColumns.map((n) => columnOf(res, n, 'group')).map((column) => ({ index: column - res.spanStart, column }));
+  const mergedKeys = new MergedKeys(res.sheet, res.headerRow + 1, res.rows, keys, deps.supports?.(MERGED_AREAS_SET.name, MERGED_AREAS_SET.version) ?? false);
+  const data = await readSpan(sync, res, deps, mergedKeys.queue);
   if (signal?.aborted) throw cancelled();
+  const headers = spanHeaders(res);
+  const inputNotes = mergedKeys.fill(headers, data.columns);
 
   // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
@@ -170,9 +191,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const pipeline = deps.pipeline ?? runPipelineYielding;
   const { result, plan: built, columns } = await pipeline(
     {
-      source: res.tableName ? `${address} (table ${res.tableName})` : address,
+      // Said in words, as the batch command says it ("sheet Claims, A1:E81"): an address such as
+      // 'Expense claims'!A1:C41 written into a cell would begin with Excel's text-prefix apostrophe.
+      source: `sheet ${res.sheetName}, ${address.slice(address.lastIndexOf('!') + 1)}${res.tableName ? ` (table ${res.tableName})` : ''}`,
       sheetName: res.sheetName,
-      headers: spanHeaders(res),
+      headers,
       columns: data.columns,
       rowCount: res.rows,
       headerRow: res.headerRow + 1,
@@ -183,6 +206,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     {
       when: deps.now(),
       marks: 'host',
+      ...(inputNotes.length > 0 ? { inputNotes } : {}),
       onProgress: (phase, fraction) => deps.onProgress?.({ phase: 'scoring', fraction: phase === 'sending' ? fraction * 0.2 : phase === 'scoring' ? 0.2 + fraction * 0.5 : 0.7 + fraction * 0.3 }),
       ...(signal ? { signal } : {}),
     },
@@ -206,6 +230,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
+  // Widths of the empty columns we will write into, kept so removal (or a failed write) puts them back.
+  const emptyWidths = placement.pristine.map((i) => res.sheet.getRangeByIndexes(0, placement.columns[i], 1, 1));
   await readRows(
     sync,
     res.sheet,
@@ -232,6 +258,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
         logUsed?.load(['rowIndex', 'rowCount']);
         for (const cf of customRules) cf.custom.rule.load('formula');
         tableRange?.load(['rowCount', 'columnCount']);
+        for (const r of emptyWidths) r.load('format/columnWidth');
       },
     },
   );
@@ -254,6 +281,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       `A sheet named "${LOG_SHEET_NAME}" already exists and was not made by Tailmark. Rename that sheet, then run again. Nothing was changed.`,
     );
   }
+  placement.pristine.forEach((i, j) => (placement.block[i] = { ...placement.block[i], width: emptyWidths[j].format.columnWidth }));
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
 

@@ -40,6 +40,7 @@ export async function compensate(
             const r = res.sheet.getRangeByIndexes(res.headerRow, c, res.rows + 1, 1);
             r.dataValidation.clear();
             r.clear('All');
+            if (b.width !== null) r.format.columnWidth = b.width;
           }
         }
       }

@@ -11,7 +11,7 @@ import { runLogLines } from '../report/index.js';
 import type { RunRecord, RunSettings } from './api.js';
 import type { Placement } from './place.js';
 import type { Resolved } from './resolve.js';
-import type { Syncer } from './sync.js';
+import { jsonBytes, type Syncer } from './sync.js';
 
 /** Points per character of column width (Excel: 8.43 characters = 48 points). */
 const POINTS_PER_CHAR = 5.7;
@@ -33,7 +33,7 @@ function chunkArrays(values: readonly (readonly PlanCell[])[], formats: readonly
     v[r] = [toCellValue(col[r0 + r] ?? null)];
     f[r] = [fmt];
   }
-  return { v, f, bytes: JSON.stringify(v).length + JSON.stringify(f).length };
+  return { v, f, bytes: jsonBytes(v) + jsonBytes(f) };
 }
 
 export async function writeAll(
@@ -83,9 +83,10 @@ export async function writeAll(
   }
   for (let i = 0; i < k; i++) {
     const w = plan.columns[i].width;
-    // Widths only on columns we inserted (deleting them restores the sheet exactly); an empty
-    // column we wrote into keeps its width, because an explicit width cannot be un-set.
-    if (placement.fresh[i] && placement.block[i].inserted && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
+    // Widths on columns new this run: ones we inserted (deleting them restores the sheet), and
+    // empty ones we write into, whose earlier width the state keeps for removal and undo.
+    const b = placement.block[i];
+    if (placement.fresh[i] && (b.inserted || b.width !== null) && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
   }
   // Rows the table or block no longer has (the data shrank): clear our cells below.
   if (!res.table && (res.state?.rowCount ?? 0) > rows) {
@@ -158,7 +159,7 @@ async function writeGrid(sync: Syncer, sheet: Excel.Worksheet, row0: number, gri
       const row = grid[r + v.length];
       const vr = row.map(toCellValue);
       const fr = row.map((x) => formatFor(x));
-      const b = JSON.stringify(vr).length + JSON.stringify(fr).length + 2;
+      const b = jsonBytes(vr) + jsonBytes(fr) + 2;
       if (v.length > 0 && bytes + b > target * 0.9) break;
       v.push(vr);
       f.push(fr);
