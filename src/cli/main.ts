@@ -21,7 +21,7 @@ import { writeScoredWorkbook } from '../files/write.js';
 import { checkOutPath } from '../files/layout.js';
 import { writeDemoWorkbook } from '../files/demo.js';
 import { HELP, parseDemoArgs, parseScoreArgs, type ScoreArgs } from './args.js';
-import { TailmarkError, describeBudget, fillMergedKeys, resolveColumns, runPipeline, validateSettings, type PipelineRun } from '../pipeline/index.js';
+import { TailmarkError, fillMergedKeys, resolveColumns, runPipeline, validateSettings, type PipelineRun } from '../pipeline/index.js';
 import { previousMarks } from '../files/marks.js';
 
 const LARGE_ROWS = 50_000;
@@ -99,7 +99,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   const large = table.rowCount >= LARGE_ROWS;
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
-  const { result, plan, marks, budget } = runPipeline(table, args.settings, {
+  const { result, plan, marks } = runPipeline(table, args.settings, {
     when: new Date(),
     // The previous run's list of marks (in-memory .xlsx only; row by row the notes sheet is not read).
     previousMarks: previousMarks(table),
@@ -137,7 +137,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       io.out(chunk);
       await io.drain?.();
     }
-    if (budget) io.err(`${describeBudget(budget)}\n`);
+    if (plan.budgetNote) io.err(`${plan.budgetNote}\n`);
     if (outPath) io.err(`wrote ${outPath}\n${modeLine}`);
   } else {
     const flagged = new Set<number>();
@@ -147,7 +147,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
       `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
-        (budget ? `${describeBudget(budget)}\n` : '') +
+        (plan.budgetNote ? `${plan.budgetNote}\n` : '') +
         decimalLines(result) +
         inputNotes.filter((l) => !/-separated$/.test(l) || /not valid|given|byte-order|zero bytes/.test(l)).map((l) => `${l}\n`).join('') +
         marksLine(marks) +

@@ -355,6 +355,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     caution: CAUTION,
     result,
     descriptions,
+    budgetNote: ctx.budgetNote ?? null,
     table: ctx.table,
     idColumn: ctx.idColumn ?? null,
   };
