@@ -60,6 +60,7 @@ function groupEntry(col: Column, g: Column['groups'][number], d: Description, mu
     rule: describeGroupRule(col.method, g.medcouple ?? d.medcouple),
     chanceRate: g.chanceRate,
     unreachable: g.unreachable,
+    comparedWith: g.comparedWith,
     fallbacks: g.fallbacks,
     withinFloor: g.withinFloor,
   };

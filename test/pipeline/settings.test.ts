@@ -36,7 +36,7 @@ describe('validateSettings', () => {
     expect(validateSettings({ ...cols, method: 'iqr' }).cutoff).toBe(1.5);
     expect(validateSettings(cols)).toEqual({
       valueColumns: ['Amount'], groupColumns: ['Team'], idColumn: null, method: 'skew', cutoff: 3,
-      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', decimal: 'auto', ignoreWithin: 0, reviewer: null, detailColumns: null,
+      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', widen: 'drop-first', decimal: 'auto', ignoreWithin: 0, reviewer: null, detailColumns: null,
     });
     expect(Object.keys(defaultSettings()).sort()).toEqual([...SETTING_KEYS].sort());
   });
@@ -70,7 +70,7 @@ describe('validateSettings', () => {
 
   it('maps to the engine options one to one', () => {
     const s = validateSettings({ ...cols, method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', decimal: 'comma' });
-    expect(engineOptions(s)).toEqual({ method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', decimal: 'comma', decimalComma: true, ignoreWithin: 0 });
+    expect(engineOptions(s)).toEqual({ method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', widen: 'drop-first', decimal: 'comma', decimalComma: true, ignoreWithin: 0 });
     expect(engineOptions(validateSettings({ ...cols, ignoreWithin: 0.5 })).ignoreWithin).toBe(0.5);
     expect(codeOf(() => validateSettings({ ...cols, ignoreWithin: -1 }))).toBe('bad-settings: The ignore-within amount must be an amount of 0 or more (0 = no floor); got -1');
     // A workbook saved with the older tick box keeps its meaning.
