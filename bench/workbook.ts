@@ -76,6 +76,7 @@ export const BENCH_SETTINGS: RunSettings = {
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
+  widen: 'drop-first',
   decimal: 'auto',
   reviewer: null,
   detailColumns: null,

@@ -23,6 +23,8 @@ export interface ScoreArgs {
   readonly json: boolean;
   /** Force large-file mode (read and write row by row) whatever the size. */
   readonly stream: boolean;
+  /** "I can review N claims": the cutoff becomes the one that flags at most N rows (src/pipeline/budget.ts). */
+  readonly review?: number;
 }
 
 export interface DemoArgs {
@@ -46,6 +48,7 @@ export const SETTING_FLAGS: { readonly [K in SettingKey]: { readonly name: strin
   logScale: { name: 'log', kind: 'flag' },
   minGroupSize: { name: 'min-group', kind: 'value' },
   smallGroups: { name: 'small-groups', kind: 'value' },
+  widen: { name: 'widen', kind: 'value' },
   // Two options, --decimal-comma and --decimal-point (see settingsFromOptions).
   decimal: null,
   reviewer: { name: 'reviewer', kind: 'value' },
@@ -147,7 +150,7 @@ export function parseFlags(argv: readonly string[], spec: Spec, command: string)
 export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
   const { positional, opts } = parseFlags(
     argv,
-    { ...settingOptionSpec(), sheet: 'value', encoding: 'value', 'header-row': 'value', out: 'value', force: 'flag', json: 'flag', stream: 'flag' },
+    { ...settingOptionSpec(), sheet: 'value', encoding: 'value', 'header-row': 'value', out: 'value', force: 'flag', json: 'flag', stream: 'flag', review: 'value' },
     'score',
   );
   if (positional.length === 0) throw new TailmarkError('usage', 'score needs an input file: tailmark score <input.xlsx|input.csv> --value <header>');
@@ -158,6 +161,8 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
   const settings = validateSettings(settingsFromOptions(opts), settingWords(opts));
   const encoding = encodingOption(one('encoding'));
   const headerRow = headerRowOption(one('header-row'));
+  const review = reviewOption(one('review'));
+  if (review !== undefined && opts.has('cutoff')) throw new TailmarkError('usage', '--review sets the cutoff: give --review or --cutoff, not both');
   return {
     input: positional[0],
     settings,
@@ -168,7 +173,14 @@ export function parseScoreArgs(argv: readonly string[]): ScoreArgs {
     force: opts.has('force'),
     json: opts.has('json'),
     stream: opts.has('stream'),
+    ...(review !== undefined ? { review } : {}),
   };
+}
+
+function reviewOption(raw: string | undefined): number | undefined {
+  if (raw === undefined) return undefined;
+  if (!/^\d+$/.test(raw.trim()) || Number(raw) < 1) throw new TailmarkError('usage', `--review must be a whole number of claims of at least 1; got "${raw}"`);
+  return Number(raw);
 }
 
 function encodingOption(raw: string | undefined): TextEncodingName | undefined {
@@ -208,8 +220,14 @@ score options:
   --cutoff <n>            score beyond which a claim is flagged (default skew k 3, adjusted/iqr k 1.5,
                           robust 3.5, classic 3)
   --direction <d>         high | low | both (default both)
+  --review <n>            "I can review n claims": use the cutoff that flags at most n claims (rows flagged
+                          in any --value column), as close to n as ties allow; says so when ties stop it short
   --min-group <n>         smallest group scored on its own (default 8)
-  --small-groups <p>      pool (compare with the whole column, default) | skip (leave unscored)
+  --small-groups <p>      pool (compare with a wider peer group, then the whole column; default) | skip (leave unscored)
+  --widen <w>             with several --group columns, the wider peer group a small group is compared with
+                          first: drop-first (let go of the first --group column: the same category across
+                          every cost centre; default) | drop-last (the same cost centre across every
+                          category) | column (straight to the whole column)
   --log                   score the logarithm of amounts (for skewed amounts; amounts <= 0 are left out)
   --decimal-comma         read text amounts with a decimal comma ("1.234,50" is 1234.5)
   --decimal-point         read text amounts with a decimal point ("1,234.50" is 1234.5)

@@ -136,6 +136,7 @@ async function scoreAndWrite(
     // Row by row, each explanation is worded as its row is written, not all held at once.
     ...(streaming ? { reasonText: 'on-demand' as const } : {}),
     inputNotes,
+    ...(args.review !== undefined ? { reviewBudget: args.review } : {}),
   });
 
   let notCarried: readonly string[] | null = null;
@@ -178,6 +179,7 @@ async function reportRun(
       io.out(chunk);
       await io.drain?.();
     }
+    if (plan.budgetNote) io.err(`${plan.budgetNote}\n`);
     if (outPath) io.err(`wrote ${outPath}\n${modeLine}`);
   } else {
     const flagged = new Set<number>();
@@ -187,6 +189,7 @@ async function reportRun(
       `Scored ${result.columns.map((c) => `${c.scoredRows} of ${result.rowCount} rows of "${c.column}"`).join(', ')} ` +
         `in ${groups} group${groups === 1 ? '' : 's'} (${result.options.method}, cutoff ${result.options.cutoff}); ` +
         `${flagged.size} claim${flagged.size === 1 ? '' : 's'} flagged.\n` +
+        (plan.budgetNote ? `${plan.budgetNote}\n` : '') +
         decimalLines(result) +
         inputNotes.filter((l) => !/-separated$/.test(l) || /not valid|given|byte-order|zero bytes/.test(l)).map((l) => `${l}\n`).join('') +
         marksLine(marks) +

@@ -14,7 +14,7 @@ export {
 } from './settings.js';
 export { columnsToRead, findColumn, resolveColumns, type ResolvedColumns } from './columns.js';
 export { claimIds, runPipeline, scoreColumns, type NamedCells, type PipelineContext, type PipelineRun, type PipelineTable } from './run.js';
-export { cutoffForReviewBudget, type BudgetAnswer } from './budget.js';
+export { cutoffForReviewBudget, describeBudget, type BudgetAnswer } from './budget.js';
 export {
   createWorkerPipeline,
   runPipelineYielding,

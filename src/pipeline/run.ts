@@ -10,6 +10,7 @@ import type { Plan } from '../report/types.js';
 import { mergeMarks, priorMarksOf, type MarkRecord } from '../report/marks.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { TailmarkError } from './errors.js';
+import { cutoffForReviewBudget, describeBudget, type BudgetAnswer } from './budget.js';
 import { engineOptions, validateSettings, type SettingWords, type Settings, type SettingsInput } from './settings.js';
 
 export interface PipelineContext {
@@ -31,6 +32,11 @@ export interface PipelineContext {
    */
   readonly marks?: 'from-table' | 'host';
   readonly previousMarks?: readonly MarkRecord[];
+  /**
+   * "I can review N claims": score, take the cutoff that flags at most N distinct rows
+   * (`cutoffForReviewBudget`), and run with it instead of the settings' cutoff; the notes say so.
+   */
+  readonly reviewBudget?: number;
 }
 
 export interface PipelineRun {
@@ -40,6 +46,8 @@ export interface PipelineRun {
   readonly plan: Plan;
   /** Rows whose mark was kept from their own cells / restored from the previous list; marks of claims gone. */
   readonly marks: { readonly kept: number; readonly restored: number; readonly gone: readonly MarkRecord[] } | null;
+  /** What the review budget did, when one was given (`PipelineContext.reviewBudget`). */
+  readonly budget?: BudgetAnswer;
 }
 
 /** A named column of raw cells, as the engine takes it. */
@@ -74,12 +82,26 @@ export type PipelineTable = Omit<SourceTable, 'headers'> & { readonly headers: r
 
 /** The run: validate, resolve, score, plan. */
 export function runPipeline(table: PipelineTable, input: SettingsInput, ctx: PipelineContext): PipelineRun {
-  const settings = validateSettings(input, ctx.words);
+  let settings = validateSettings(input, ctx.words);
   if (table.rowCount < 1) throw new TailmarkError('no-numbers', `${table.source} has a header row but no data rows`);
   const columns = resolveColumns(table.headers, settings, table.source);
   const named = (i: number): NamedCells => ({ name: table.headers[i] ?? '', cells: table.columns[i] });
-  const result = scoreTable({ valueColumns: columns.value.map(named), groupColumns: columns.group.map(named) }, engineOptions(settings));
+  const scoreInput = { valueColumns: columns.value.map(named), groupColumns: columns.group.map(named) };
+  let result = scoreTable(scoreInput, engineOptions(settings));
   checkNumbers(result, table.source);
+  let budget: BudgetAnswer | undefined;
+  if (ctx.reviewBudget !== undefined) {
+    if (!Number.isInteger(ctx.reviewBudget) || ctx.reviewBudget < 1) {
+      throw new TailmarkError('bad-settings', `the review budget must be a whole number of claims of at least 1; got ${ctx.reviewBudget}`);
+    }
+    // Scores (and fence reaches) do not depend on the cutoff, so one scoring finds it; the second
+    // flags with it.
+    budget = cutoffForReviewBudget(result, ctx.reviewBudget);
+    if (budget.kind === 'cutoff') {
+      settings = { ...settings, cutoff: budget.cutoff };
+      result = scoreTable(scoreInput, engineOptions(settings));
+    }
+  }
   ctx.onScored?.();
   const built = buildPlan(result, {
     source: table.source,
@@ -88,12 +110,13 @@ export function runPipeline(table: PipelineTable, input: SettingsInput, ctx: Pip
     idColumn: columns.id !== null ? table.headers[columns.id] : null,
     ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}),
     ...(ctx.inputNotes ? { inputNotes: ctx.inputNotes } : {}),
+    ...(budget ? { budgetNote: describeBudget(budget) } : {}),
   });
-  if (ctx.marks === 'host') return { settings, columns, result, plan: built, marks: null };
+  if (ctx.marks === 'host') return { settings, columns, result, plan: built, marks: null, ...(budget ? { budget } : {}) };
   const ids = columns.id !== null ? claimIds(table.columns[columns.id], table.rowCount) : null;
   const prior = priorMarksOf(table.headers, table.columns, table.rowCount);
   const merged = mergeMarks(built, prior, ids, ctx.previousMarks ?? []);
-  return { settings, columns, result, plan: merged.plan, marks: { kept: merged.kept, restored: merged.restored, gone: merged.gone } };
+  return { settings, columns, result, plan: merged.plan, marks: { kept: merged.kept, restored: merged.restored, gone: merged.gone }, ...(budget ? { budget } : {}) };
 }
 
 /** Claim IDs as text (trimmed; '' for a blank cell), the key review marks follow. */

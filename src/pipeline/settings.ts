@@ -17,11 +17,13 @@ import {
   DIRECTIONS,
   METHOD_IDS,
   SMALL_GROUP_POLICIES,
+  WIDEN_ORDERS,
   type DecimalMode,
   type Direction,
   type MethodId,
   type ScoreOptions,
   type SmallGroupPolicy,
+  type WidenOrder,
 } from '../scoring/types.js';
 import { defaultCutoff } from '../scoring/cutoff.js';
 import { TailmarkError } from './errors.js';
@@ -44,6 +46,12 @@ export interface Settings {
   readonly minGroupSize: number;
   /** What happens to smaller groups. */
   readonly smallGroups: SmallGroupPolicy;
+  /**
+   * With several group columns, the wider peer group a small group is compared with before the
+   * whole column: let go of the first group column first ('drop-first': the same category across
+   * every cost centre), of the last ('drop-last'), or straight to the whole column ('column').
+   */
+  readonly widen: WidenOrder;
   /** Decimal separator of text amounts: 'auto' decides per column from its cells (said in the notes), or given. */
   readonly decimal: DecimalMode;
   /**
@@ -104,6 +112,7 @@ export const SETTING_SPECS: { readonly [K in SettingKey]: Spec<Settings[K]> } = 
     check: (v) => (typeof v === 'number' && Number.isInteger(v) && v >= 1 ? null : 'must be a whole number of at least 1'),
   },
   smallGroups: { label: 'The small-group choice', fallback: () => 'pool', check: oneOf(SMALL_GROUP_POLICIES) },
+  widen: { label: 'The wider peer group', fallback: () => 'drop-first', check: oneOf(WIDEN_ORDERS) },
   decimal: { label: 'The decimal separator', fallback: () => 'auto', check: oneOf(DECIMAL_MODES) },
   reviewer: {
     label: 'The reviewer name',
@@ -211,6 +220,7 @@ export function engineOptions(s: Settings): Required<ScoreOptions> {
     logScale: s.logScale,
     minGroupSize: s.minGroupSize,
     smallGroups: s.smallGroups,
+    widen: s.widen,
     decimal: s.decimal,
     decimalComma: s.decimal === 'comma',
   };

@@ -58,6 +58,7 @@ function groupEntry(col: Column, g: Column['groups'][number], d: Description, mu
     rule: describeGroupRule(col.method, g.medcouple ?? d.medcouple),
     chanceRate: g.chanceRate,
     unreachable: g.unreachable,
+    comparedWith: g.comparedWith,
   };
   if (multi) entry.column = col.column;
   return entry;

@@ -2,7 +2,7 @@
  * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
-import { defaultCutoff, describeColumn, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN, type Description } from '../scoring/index.js';
+import { defaultCutoff, describeColumn, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN, populationOfRow, widenLevels, type Description } from '../scoring/index.js';
 import { describeFallback } from '../scoring/fallbacks.js';
 import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
@@ -14,7 +14,9 @@ import {
   type MethodId,
   type Population,
   type ScoreResult,
+  type SmallGroupPolicy,
   type SourceTable,
+  type WidenOrder,
 } from '../scoring/types.js';
 import type { NotesSection, Plan, PlanCell, PlanColumn, RunLogEntry } from './types.js';
 import { HIGHLIGHT_RULES } from './rules.js';
@@ -31,6 +33,8 @@ import {
 } from './style.js';
 
 export interface PlanContext {
+  /** What a review budget did (src/pipeline/budget.ts), for the notes' settings table. */
+  readonly budgetNote?: string;
   /** Where the data came from, e.g. "claims.xlsx, sheet Claims, A1:G601" or "Claims!A1:G601". */
   readonly source: string;
   readonly when: Date;
@@ -113,6 +117,7 @@ const POPULATION_WORDS: Record<Population, string> = {
   none: 'not scored',
   group: 'its own group',
   column: 'the whole column',
+  wider: 'a wider peer group',
 };
 
 /** Round for display in the notes table: 2 decimals for ordinary amounts, 4 significant digits for small ones. */
@@ -140,7 +145,7 @@ function flagWord(col: ColumnScores, r: number): PlanCell {
   if (!col.flagged[r]) return null;
   const s = col.scores[r];
   if (Number.isFinite(s)) return s < 0 ? FLAG_WORDS.low : FLAG_WORDS.high;
-  const g = col.population[r] === 2 ? col.pooled : col.groups[col.groupOf[r]];
+  const g = populationOfRow(col, r);
   const v = col.values[r];
   return g && g.lower !== null && v < g.lower ? FLAG_WORDS.low : FLAG_WORDS.high;
 }
@@ -161,7 +166,7 @@ function groupRow(g: GroupStats, d: Description, method: MethodId): PlanCell[] {
     tidy(g.upper),
     g.flagged,
     g.fallbacks.length ? g.fallbacks.map((f) => describeFallback(f)).join(' ') : '',
-    POPULATION_WORDS[g.population],
+    g.population === 'wider' ? `the wider peer group ${g.comparedWith}` : POPULATION_WORDS[g.population],
     d.medcouple === null ? null : Math.round(d.medcouple * 1000) / 1000,
     describeGroupRule(method, g.medcouple ?? d.medcouple),
     g.chanceRate === null ? null : `${g.chanceRateAtMost ? 'fewer than 1 in ' + oneInN(g.chanceRate).replace('about 1 in ', '') : oneInN(g.chanceRate)}`,
@@ -258,10 +263,11 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Parameter', 'Value'],
       ['Method', methodName],
       ['Cutoff', options.cutoff],
+      ...(ctx.budgetNote ? [['Review budget', ctx.budgetNote] as PlanCell[]] : []),
       ['Direction', directionWords(options.direction)],
       ['Log scale', options.logScale ? 'yes (scores computed on ln(amount))' : 'no'],
       ['Minimum group size', options.minGroupSize],
-      ['Smaller groups', options.smallGroups === 'pool' ? 'compared with the whole column' : 'left unscored'],
+      ['Smaller groups', smallGroupWords(options.smallGroups, options.widen, result.groupColumns)],
       ...result.columns.map((c): PlanCell[] => ['Decimal separator', describeDecimal(c.column, c.decimal)]),
       ['Value columns', result.columns.map((c) => c.column).join(', ')],
       ['Group columns', result.groupColumns.length ? result.groupColumns.join(', ') : '(none)'],
@@ -276,6 +282,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       table: true,
       rows: [GROUP_TABLE_HEADER, ...byGroup.map((x) => groupRow(x.g, x.d, col.method)), groupRow(col.pooled, d.whole, col.method)],
     });
+    if (col.wider.length > 0) sections.push(widerSection(col));
   });
   const excludedRows: PlanCell[][] = [['Column', 'Reason', 'Cells']];
   for (const col of result.columns) {
@@ -294,7 +301,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   for (const col of result.columns) {
     for (const g of col.groups) {
       if (g.unreachable) {
-        const most = maxReach(col.method, g.population === 'column' ? col.pooled.n : g.n);
+        const most = maxReach(col.method, g.population === 'column' ? col.pooled.n : g.population === 'wider' ? col.wider[col.widerOf[col.groups.indexOf(g)]].n : g.n);
         unreachable.push([col.column, g.label, g.n, Number.isFinite(most) ? Math.round(most * 1000) / 1000 : null, col.cutoff]);
       }
     }
@@ -348,9 +355,39 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     caution: CAUTION,
     result,
     descriptions,
+    budgetNote: ctx.budgetNote ?? null,
     table: ctx.table,
     idColumn: ctx.idColumn ?? null,
   };
+}
+
+/** The wider peer groups small groups of a column were compared with (widen.ts). */
+function widerSection(col: ColumnScores): NotesSection {
+  const users = col.wider.map(() => [] as string[]);
+  col.groups.forEach((g, i) => {
+    if (col.widerOf[i] >= 0 && g.population === 'wider') users[col.widerOf[i]].push(g.label);
+  });
+  return {
+    title: `Wider peer groups: ${col.column}`,
+    table: true,
+    rows: [
+      ['Wider peer group', 'n (amounts used)', 'Centre (scoring scale)', 'Scale (scoring scale)', 'Lower bound', 'Upper bound', 'Flagged (rows of the small groups)', 'Small groups compared with it', 'Claims flagged by chance at this size'],
+      ...col.wider.map((w, i): PlanCell[] => [
+        w.label, w.n, tidy(w.center), tidy(w.scale), tidy(w.lower), tidy(w.upper), w.flagged, users[i].join('; '),
+        w.chanceRate === null ? null : oneInN(w.chanceRate),
+      ]),
+    ],
+  };
+}
+
+/** What happens to a group smaller than the minimum, in the order tried. */
+export function smallGroupWords(policy: SmallGroupPolicy, widen: WidenOrder, groupColumns: readonly string[]): string {
+  if (policy === 'skip') return 'left unscored';
+  const steps = widenLevels(groupColumns.length, widen).map((keep) => {
+    const dropped = groupColumns.filter((_, i) => !keep.includes(i));
+    return `the same ${keep.map((k) => groupColumns[k]).join(' / ')} across every ${dropped.join(' / ')}`;
+  });
+  return `compared with ${[...steps, 'the whole column'].join(', then ')} (the first with enough claims)`;
 }
 
 /** Every term the result columns use, in plain words (shown near the top of the notes sheet). */

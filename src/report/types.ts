@@ -92,6 +92,8 @@ export interface Plan {
   readonly result: ScoreResult;
   /** The descriptive statistics of each value column's groups and whole column (`describeColumn`), in the order of `result.columns`. */
   readonly descriptions: readonly ColumnDescription[];
+  /** What a review budget did (`PlanContext.budgetNote`), or null when the cutoff was not set from one. */
+  readonly budgetNote: string | null;
   readonly table: SourceTable;
   readonly idColumn: string | null;
 }

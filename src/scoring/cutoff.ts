@@ -3,7 +3,7 @@ import { getMethod } from './methods/index.js';
 import { normalUpperTail } from './normalCdf.js';
 import { quickselect } from './quickselect.js';
 import { formatCutoff, formatNumber } from './format.js';
-import type { ColumnScores, Direction, MethodId } from './types.js';
+import type { ColumnScores, Direction, MethodId, ScoreResult } from './types.js';
 
 /** Default cutoff per method: robust 3.5 (Iglewicz & Hoaglin 1993), classic 3 (three-sigma, common practice), IQR k = 1.5 (Tukey 1977). */
 export function defaultCutoff(method: MethodId): number {
@@ -152,6 +152,23 @@ export function countFlaggedAt(col: ColumnScores, cutoff: number): { total: numb
     }
   }
   return { total, perGroup };
+}
+
+/**
+ * Per row of the table, the largest cutoff at which it is still flagged in at least one value
+ * column (the largest of its columns' reaches, see `reachOf`); NaN for rows no column scored. A
+ * row flagged by several columns is one claim to review. Cost O(rows x value columns).
+ */
+export function reachOfRows(result: ScoreResult): Float64Array {
+  const out = new Float64Array(result.rowCount).fill(NaN);
+  for (const col of result.columns) {
+    const reach = reachOf(col);
+    for (let r = 0; r < out.length; r++) {
+      const t = reach[r];
+      if (t > out[r] || (Number.isNaN(out[r]) && !Number.isNaN(t))) out[r] = t;
+    }
+  }
+  return out;
 }
 
 /**

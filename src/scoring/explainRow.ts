@@ -8,6 +8,18 @@ const directionWords = (d: Direction): string => (d === 'both' ? 'both direction
 const q = (label: string): string => `"${label}"`;
 
 /**
+ * The population row `row` was scored against: its group, the whole column (population 2) or the
+ * wider peer group its small group was compared with (population 3).
+ */
+export function populationOfRow(col: ColumnScores, row: number): GroupStats {
+  const gi = col.groupOf[row];
+  const pop = col.population[row];
+  if (pop === 2) return col.pooled;
+  if (pop === 3) return col.wider[col.widerOf[gi]];
+  return col.groups[gi];
+}
+
+/**
  * One row's result in plain words with its numbers, e.g.
  * `Amount 1,840.00 is 6.2 robust z above the median of its group "CC-410 / Travel" (median 212.00,
  * scaled MAD 61.30, n = 24); cutoff 3.5, both directions. Flagged.`
@@ -41,14 +53,16 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
       : 'there are no usable values to compare with';
     return `${amount} was left unscored: in ${groupText} ${why}.`;
   }
-  const stats: GroupStats = pop === 2 ? col.pooled : g;
-  const against = pop === 2 ? `the whole column ${q(name)}` : groupText;
-  const pooledNote = pop === 2 ? `Compared with the whole column because its group ${q(g.label)} has n = ${g.n} < ${min}. ` : '';
+  const stats = populationOfRow(col, row);
+  const against = pop === 2 ? `the whole column ${q(name)}` : pop === 3 ? `the wider peer group ${q(stats.label)}` : groupText;
+  const pooledNote = pop === 2
+    ? `Compared with the whole column because its group ${q(g.label)} has n = ${g.n} < ${min}${g.fallbacks.includes('small-pooled') && result.groupColumns.length > 1 && result.options.widen !== 'column' ? ' and no wider peer group has enough either' : ''}. `
+    : pop === 3 ? `Compared with the wider peer group ${q(stats.label)} (n = ${stats.n}) because its group ${q(g.label)} has n = ${g.n} < ${min}. ` : '';
   const z = col.scores[row];
   const flagged = col.flagged[row] === 1;
   const log = col.logScale;
   // The pooled note above already says why a small group was compared with the whole column.
-  const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled' && f !== 'small-skipped').map((f) => FALLBACK_WORDS[f]);
+  const fallbacks = stats.fallbacks.filter((f) => f !== 'small-pooled' && f !== 'small-skipped' && f !== 'small-widened').map((f) => FALLBACK_WORDS[f]);
   const tail = `${pooledNote}${flagged ? 'Flagged.' : 'Not flagged.'}${fallbacks.length > 0 ? ' ' + fallbacks.join(' ') : ''}`;
   const fenceMethod = getMethod(col.method).kind === 'fence';
   const cut = `${fenceMethod ? 'k = ' : 'cutoff '}${formatCutoff(col.cutoff)}, ${directionWords(col.direction)}`;
@@ -106,8 +120,8 @@ export function explainRowShort(result: ScoreResult, col: ColumnScores, row: num
       ? `not scored: group of ${g.n} (< ${result.options.minGroupSize})`
       : 'not scored: no spread to measure by';
   }
-  const stats: GroupStats = pop === 2 ? col.pooled : g;
-  const vsColumn = pop === 2 ? ' (whole column)' : '';
+  const stats = populationOfRow(col, row);
+  const vsColumn = pop === 2 ? ' (whole column)' : pop === 3 ? ` (vs ${stats.label})` : '';
   const z = col.scores[row];
   const log = col.logScale;
   const centre = (c: number | null): string => (c === null ? 'n/a' : formatNumber(log ? Math.exp(c) : c));

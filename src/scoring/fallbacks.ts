@@ -12,6 +12,8 @@ export const FALLBACK_WORDS: Record<Fallback, string> = {
   'iqr-zero':
     "The group's IQR is 0, so its fences are Q1 - k x and Q3 + k x the whole column's IQR (scores count the column's IQRs); if the column's IQR is 0 too, the group is not scored.",
   'small-pooled': 'The group is smaller than the minimum size, so its claims are compared with the whole column.',
+  'small-widened':
+    'The group is smaller than the minimum size, so its claims are compared with a wider peer group: the claims that share its other key values, across every value of the key column(s) let go (see "Compared with").',
   'small-skipped': 'The group is smaller than the minimum size, so its claims are left unscored.',
   'cutoff-unreachable': 'In a group of this size no score of this method can pass the cutoff, whatever the amounts (classic z: (n - 1)/sqrt(n) <= cutoff, Shiffler 1988; other methods: maxReach.ts).',
 };

@@ -9,7 +9,8 @@ import type { Fallback, Population, ScoreOptions } from './types.js';
 export const POP_NONE = 0;
 export const POP_GROUP = 1;
 export const POP_COLUMN = 2;
-export const POP_NAMES: readonly Population[] = ['none', 'group', 'column'];
+export const POP_WIDER = 3;
+export const POP_NAMES: readonly Population[] = ['none', 'group', 'column', 'wider'];
 
 export function dedupe(fallbacks: readonly Fallback[]): Fallback[] {
   const out: Fallback[] = [];
@@ -20,13 +21,13 @@ export function dedupe(fallbacks: readonly Fallback[]): Fallback[] {
 /**
  * Fits every group on the statistics its method needs (classic: the summaries `pre` computed in
  * row order; otherwise `summarizeFor` in place on the group's slice of `yOrdered`, which it
- * permutes and overwrites); small groups take the whole column's fit ('pool') or none
- * ('skip'). Writes the fits, and the same flattened to typed arrays for the row pass, into the
+ * permutes and overwrites); small groups take the fit of their wider peer group (`widerFits`
+ * [`widerOf[g]`], see widen.ts), else the whole column's ('pool'), or none ('skip'). Writes the fits, and the same flattened to typed arrays for the row pass, into the
  * arrays given (a plain return after the loop: see `codeKeyColumn` on deoptimization).
  */
 export function fitGroups(
   method: ScoringMethod, opts: Required<ScoreOptions>, yOrdered: Float64Array | null, pre: readonly Summary[] | null,
-  start: Int32Array, count: Int32Array, column: () => { s: Summary; fit: Fit },
+  start: Int32Array, count: Int32Array, column: () => { s: Summary; fit: Fit }, widerFits: readonly Fit[], widerOf: Int32Array,
   fits: Fit[], scoringSummaries: (Summary | null)[], groupFallbacks: Fallback[][], flat: FlatFits,
 ): void {
   const nGroups = count.length;
@@ -47,6 +48,10 @@ export function fitGroups(
       fit = method.fit(s, opts.cutoff, opts.direction, columnSummary);
       popCode = fit.kind === 'none' ? POP_NONE : POP_GROUP;
       fallbacks = dedupe(fit.fallbacks);
+    } else if (opts.smallGroups === 'pool' && n > 0 && widerOf[g] >= 0) {
+      fit = widerFits[widerOf[g]];
+      popCode = fit.kind === 'none' ? POP_NONE : POP_WIDER;
+      fallbacks = dedupe(['small-widened', ...fit.fallbacks]);
     } else if (opts.smallGroups === 'pool' && n > 0) {
       fit = column().fit;
       popCode = fit.kind === 'none' ? POP_NONE : POP_COLUMN;

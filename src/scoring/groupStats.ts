@@ -9,9 +9,13 @@ import { maxReach } from './maxReach.js';
 import type { Fit } from './methods/method.js';
 import type { Grouping } from './groups.js';
 import { NREASONS, reasonCounts } from './parseColumn.js';
-import { POP_COLUMN, POP_NAMES } from './fitGroups.js';
+import { POP_COLUMN, POP_GROUP, POP_NAMES, POP_WIDER } from './fitGroups.js';
+import type { WiderPopulation } from './widen.js';
 import { real, type Summary } from './summary.js';
 import type { Fallback, GroupStats, Population, ScoreOptions } from './types.js';
+
+/** Label of the whole-column population (`ColumnScores.pooled`). */
+export const WHOLE_COLUMN_LABEL = '(whole column)';
 
 /** Sum of `values` over the groups whose population code is `pop` (-1: all groups). */
 export function sumOf(values: Int32Array, popOf: Uint8Array, pop: number): number {
@@ -27,15 +31,20 @@ export type StatsHead = Pick<GroupStats, 'key' | 'label' | 'keyParts' | 'rows' |
 export function buildGroups(
   grouping: Grouping, count: Int32Array, gCounts: Int32Array, fits: readonly Fit[], summaries: readonly (Summary | null)[], logScale: boolean, flaggedPerGroup: Int32Array,
   groupFallbacks: readonly Fallback[][], popOf: Uint8Array, opts: Required<ScoreOptions>, nAll: number,
+  wide: { readonly populations: readonly WiderPopulation[]; readonly widerOf: Int32Array },
 ): GroupStats[] {
   const nGroups = count.length;
   const { start } = grouping;
   const groups: GroupStats[] = new Array<GroupStats>(nGroups);
   for (let g = 0; g < nGroups; g++) {
     const n = count[g];
+    const pop = popOf[g];
+    const wider = pop === POP_WIDER ? wide.populations[wide.widerOf[g]] : null;
+    const comparedWith = pop === POP_GROUP ? grouping.labels[g] : pop === POP_COLUMN ? WHOLE_COLUMN_LABEL : wider !== null ? wider.label : '';
     groups[g] = groupStats(
       { key: grouping.keys[g], label: grouping.labels[g], keyParts: grouping.keyParts[g], rows: start[g + 1] - start[g], n, excluded: reasonCounts(gCounts, g * NREASONS) },
-      fits[g], summaries[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[popOf[g]], opts, popOf[g] === POP_COLUMN ? nAll : n,
+      fits[g], summaries[g], logScale, flaggedPerGroup[g], groupFallbacks[g], POP_NAMES[pop], comparedWith, opts,
+      pop === POP_COLUMN ? nAll : wider !== null ? wider.n : n,
     );
   }
   return groups;
@@ -48,7 +57,7 @@ export function buildGroups(
  */
 export function groupStats(
   head: StatsHead, fit: Fit, summary: Summary | null, logScale: boolean, flagged: number, fallbacks: readonly Fallback[], population: Population,
-  opts: Required<ScoreOptions>, popN: number,
+  comparedWith: string, opts: Required<ScoreOptions>, popN: number,
 ): GroupStats {
   const scored = fit.kind !== 'none';
   const chance = scored ? chanceRate(opts.method, opts.cutoff, opts.direction, popN) : null;
@@ -65,6 +74,7 @@ export function groupStats(
     flagged,
     fallbacks,
     population,
+    comparedWith,
     maxAttainableZ: head.n >= 2 ? maxAttainableZ(head.n) : null,
     chanceRate: chance === null ? null : chance.rate,
     chanceRateAtMost: chance !== null && chance.atMost,
@@ -78,3 +88,24 @@ function bound(x: number, unit: number, logScale: boolean): number | null {
   const b = logScale ? Math.exp(v) : v;
   return Number.isFinite(b) ? b : null;
 }
+
+/**
+ * One GroupStats per wider peer group used (widen.ts): its own values' fit, and the flags of the
+ * small groups' rows held against it (`flaggedPerGroup` summed over the groups that use it).
+ */
+export function widerStats(
+  wide: { readonly populations: readonly WiderPopulation[]; readonly widerOf: Int32Array }, flaggedPerGroup: Int32Array, logScale: boolean,
+  opts: Required<ScoreOptions>,
+): GroupStats[] {
+  const flagged = new Int32Array(wide.populations.length);
+  wide.widerOf.forEach((p, g) => {
+    if (p >= 0) flagged[p] += flaggedPerGroup[g];
+  });
+  return wide.populations.map((p, i) => groupStats(
+    { key: p.level.grouping.keys[p.w], label: p.label, keyParts: p.keyParts, rows: p.rows, n: p.n, excluded: NO_EXCLUSIONS },
+    p.fit, p.s, logScale, flagged[i], p.fit.fallbacks, p.fit.kind === 'none' ? 'none' : 'wider', p.label, opts, p.n,
+  ));
+}
+
+/** Exclusions are counted per group and for the whole column, not for wider groups. */
+const NO_EXCLUSIONS = reasonCounts(new Int32Array(NREASONS), 0);

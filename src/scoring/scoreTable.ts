@@ -8,7 +8,8 @@ import { accumulate, gatherColumn, NREASONS, parseAndAccumulate, parseAndScatter
 import { classicInRowOrder } from './classicRowOrder.js';
 import { dedupe, fitGroups, POP_COLUMN } from './fitGroups.js';
 import { scoreRows, type FlatFits } from './scoreRows.js';
-import { buildGroups, groupStats, sumOf } from './groupStats.js';
+import { buildGroups, groupStats, sumOf, WHOLE_COLUMN_LABEL, widerStats } from './groupStats.js';
+import { tableWidening, widenSmallGroups, type WidenLevel } from './widen.js';
 import {
   type ColumnScores,
   type DecimalMode,
@@ -19,10 +20,10 @@ import {
   type ScoreInput,
   type ScoreOptions,
   type ScoreResult,
+  WIDEN_ORDERS,
 } from './types.js';
 
-/** Label of the whole-column population (`ColumnScores.pooled`). */
-export const WHOLE_COLUMN_LABEL = '(whole column)';
+export { WHOLE_COLUMN_LABEL };
 
 /**
  * Fills in defaults (DEFAULT_OPTIONS, the method's default cutoff). The settings a user chose are
@@ -35,7 +36,7 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
   const method = getMethod(merged.method);
   const cutoff = merged.cutoff ?? method.defaultCutoff;
   const minGroupSize = merged.minGroupSize;
-  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups)) {
+  if (!(cutoff >= 0) || !Number.isFinite(cutoff) || !(minGroupSize >= 1) || !['high', 'low', 'both'].includes(merged.direction) || !['pool', 'skip'].includes(merged.smallGroups) || !WIDEN_ORDERS.includes(merged.widen ?? 'drop-first')) {
     throw new RangeError(`scoreTable: options outside the engine's contract (${JSON.stringify(merged)}); validate settings with src/pipeline first`);
   }
   return {
@@ -45,6 +46,7 @@ export function resolveOptions(options: ScoreOptions): Required<ScoreOptions> {
     logScale: merged.logScale === true,
     minGroupSize: Math.ceil(minGroupSize),
     smallGroups: merged.smallGroups,
+    widen: merged.widen ?? 'drop-first',
     decimalComma: merged.decimalComma === true,
     decimal: merged.decimalComma === true ? 'comma' : decimalMode(merged.decimal),
   };
@@ -102,7 +104,8 @@ export function scoreTable(input: ScoreInput, options: ScoreOptions): ScoreResul
     }
   }
   const grouping = groupRows(input.groupColumns, rowCount);
-  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, opts, method));
+  const widening = tableWidening(input.groupColumns, grouping, rowCount, opts);
+  const columns = input.valueColumns.map((c) => scoreColumn(c.name, c.cells, grouping, widening, opts, method));
   return { options: opts, rowCount, groupColumns: input.groupColumns.map((c) => c.name), columns };
 }
 
@@ -110,6 +113,7 @@ function scoreColumn(
   name: string,
   cells: ArrayLike<RawCell>,
   grouping: Grouping,
+  widening: (() => readonly WidenLevel[]) | null,
   opts: Required<ScoreOptions>,
   method: ScoringMethod,
 ): ColumnScores {
@@ -187,7 +191,12 @@ function scoreColumn(
     unit: new Float64Array(nGroups), center: new Float64Array(nGroups), scale: new Float64Array(nGroups), q1: new Float64Array(nGroups), q3: new Float64Array(nGroups),
     lowScale: new Float64Array(nGroups), highScale: new Float64Array(nGroups),
   };
-  fitGroups(method, opts, yOrdered, pre, start, count, column, fits, scoringSummaries, groupFallbacks, flat);
+  // Small groups: a wider peer group first when there are several key columns (widen.ts).
+  const anySmall = count.some((n) => n > 0 && n < opts.minGroupSize);
+  const wide = widening !== null && anySmall
+    ? widenSmallGroups(widening(), count, groupOf, exclusion, y, method, opts, () => column().s)
+    : { populations: [], widerOf: new Int32Array(nGroups).fill(-1) };
+  fitGroups(method, opts, yOrdered, pre, start, count, column, wide.populations.map((p) => p.fit), wide.widerOf, fits, scoringSummaries, groupFallbacks, flat);
   const popOf = flat.popOf;
 
   // 4. Score every row in row order.
@@ -201,7 +210,8 @@ function scoreColumn(
   );
 
   // 5. Per-group results.
-  const groups = buildGroups(grouping, count, gCounts, fits, scoringSummaries, logScale, flaggedPerGroup, groupFallbacks, popOf, opts, nAll);
+  const groups = buildGroups(grouping, count, gCounts, fits, scoringSummaries, logScale, flaggedPerGroup, groupFallbacks, popOf, opts, nAll, wide);
+  const wider = widerStats(wide, flaggedPerGroup, logScale, opts);
   const flaggedRows = sumOf(flaggedPerGroup, popOf, -1);
   const pooledFlagged = sumOf(flaggedPerGroup, popOf, POP_COLUMN);
 
@@ -213,7 +223,7 @@ function scoreColumn(
     const whole = column();
     pooled = groupStats(
       { key: '', label: WHOLE_COLUMN_LABEL, keyParts: [], rows: rowCount, n: nAll, excluded: reasonCounts(colCounts, 0) },
-      whole.fit, whole.s, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', opts, nAll,
+      whole.fit, whole.s, logScale, pooledFlagged, dedupe(whole.fit.fallbacks), whole.fit.kind === 'none' ? 'none' : 'column', WHOLE_COLUMN_LABEL, opts, nAll,
     );
     return pooled;
   };
@@ -233,6 +243,9 @@ function scoreColumn(
     groups,
     decimal,
   };
+  col.wider = wider;
+  col.widerOf = wide.widerOf;
+  col.widerKeep = wide.populations.map((p) => p.level.keep);
   Object.defineProperty(col, 'pooled', { enumerable: true, configurable: true, get: pooledStats });
   col.excludedCounts = reasonCounts(colCounts, 0);
   col.scoredRows = scoredRows;

@@ -76,6 +76,14 @@ export type Direction = (typeof DIRECTIONS)[number];
 /** What happens to groups smaller than `minGroupSize`: score against the whole column, or leave unscored. */
 export const SMALL_GROUP_POLICIES = ['pool', 'skip'] as const;
 export type SmallGroupPolicy = (typeof SMALL_GROUP_POLICIES)[number];
+/**
+ * With several key columns, the wider peer group a small group is compared with before the whole
+ * column ('pool' only; see widen.ts): 'drop-first' lets go of the first key column first (cost
+ * centre x category -> the same category across every cost centre), 'drop-last' of the last (the
+ * same cost centre across every category), 'column' goes straight to the whole column.
+ */
+export const WIDEN_ORDERS = ['drop-first', 'drop-last', 'column'] as const;
+export type WidenOrder = (typeof WIDEN_ORDERS)[number];
 
 export interface ScoreOptions {
   readonly method: MethodId;
@@ -86,6 +94,8 @@ export interface ScoreOptions {
   readonly logScale: boolean;
   readonly minGroupSize: number;
   readonly smallGroups: SmallGroupPolicy;
+  /** Which wider peer group a small group is compared with before the whole column; default 'drop-first'. */
+  readonly widen?: WidenOrder;
   /** Older form of `decimal: 'comma'`; when true it wins over `decimal`. */
   readonly decimalComma?: boolean;
   /** Decimal separator of text cells, per value column; default 'auto' (decided from each column's cells). */
@@ -98,12 +108,13 @@ export const DEFAULT_OPTIONS: Omit<ScoreOptions, 'method'> & { method: MethodId 
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
+  widen: 'drop-first',
   decimalComma: false,
   decimal: 'auto',
 };
 
 /** Which population a row was compared with. Numeric code = index. */
-export const POPULATIONS = ['none', 'group', 'column'] as const;
+export const POPULATIONS = ['none', 'group', 'column', 'wider'] as const;
 export type Population = (typeof POPULATIONS)[number];
 
 /** A fallback the engine had to take for a group, reported per group. */
@@ -118,6 +129,8 @@ export type Fallback =
   | 'iqr-zero'
   /** Group smaller than the minimum size: compared with the whole column. */
   | 'small-pooled'
+  /** Group smaller than the minimum size: compared with a wider peer group (`comparedWith`). */
+  | 'small-widened'
   /** Group smaller than the minimum size: left unscored. */
   | 'small-skipped'
   /** No score can reach the cutoff in a population of this size, whatever the amounts (`maxReach.ts`; classic z: (n-1)/sqrt(n) <= cutoff, Shiffler 1988). */
@@ -161,6 +174,11 @@ export interface GroupStats {
   readonly fallbacks: readonly Fallback[];
   /** Which population this group's rows were scored against. */
   readonly population: Population;
+  /**
+   * The label of that population: the group's own label, a wider peer group's (e.g. "Travel
+   * (every Cost centre)", see widen.ts), "(whole column)", or '' when not scored.
+   */
+  readonly comparedWith: string;
   /** Largest |classic z| attainable in a sample of n, (n - 1)/sqrt(n); null when n < 2. */
   readonly maxAttainableZ: number | null;
   /**
@@ -205,6 +223,18 @@ export interface ColumnScores {
   readonly groups: readonly GroupStats[];
   /** The whole column as one population (used for pooled small groups). */
   readonly pooled: GroupStats;
+  /**
+   * The wider peer groups small groups were compared with (population 'wider'), each with the
+   * fit of its own values and the flags of the small groups' rows held against it.
+   */
+  readonly wider: readonly GroupStats[];
+  /** Per group: index into `wider` (-1 when the group was not compared with a wider group). */
+  readonly widerOf: Int32Array;
+  /**
+   * Per wider peer group: the key columns it keeps (indices into the group columns); a group
+   * belongs to it when its `keyParts` at those indices equal the wider group's `keyParts`.
+   */
+  readonly widerKeep: readonly (readonly number[])[];
   readonly excludedCounts: Readonly<Record<ExclusionReason, number>>;
   readonly scoredRows: number;
   readonly flaggedRows: number;

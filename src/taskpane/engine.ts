@@ -6,7 +6,7 @@
 import { describeDecimal } from '../report/decimal.js';
 import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
-import { defaultCutoff, describeCutoff, describeRows, explainRow, oneInN } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, describeRows, explainRow, oneInN, populationOfRow } from '../scoring/index.js';
 import { scoreColumns } from '../pipeline/run.js';
 import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
 
@@ -134,13 +134,14 @@ export function chartFor(data: PreviewData, s: RunSettings, column: string, grou
   for (let r = 0; r < base.groupOf.length; r++) if (base.groupOf[r] === gi) rows.push(r);
   const values: number[] = [];
   for (const r of rows) if (!Number.isNaN(base.values[r])) values.push(base.values[r]);
-  const pooled = g.population === 'column';
+  const pooled = g.population === 'column' || g.population === 'wider';
   let robust: ChartLine;
   let classic: ChartLine;
   if (pooled) {
     const c = scorePreview({ valueColumns: [col], groupColumns: data.groupColumns }, s, { method: 'classic', cutoff: classicCut }).columns[0];
-    robust = lineOf(base.pooled, g.flagged, 'robust', robustCut);
-    classic = lineOf(c.pooled, c.groups[gi]?.flagged ?? 0, 'classic', classicCut);
+    const against = (x: typeof base): GroupStats => (x.groups[gi].population === 'wider' ? x.wider[x.widerOf[gi]] : x.pooled);
+    robust = lineOf(against(base), g.flagged, 'robust', robustCut);
+    classic = lineOf(against(c), c.groups[gi]?.flagged ?? 0, 'classic', classicCut);
   } else if (g.population === 'none') {
     robust = { method: 'robust', cutoff: robustCut, lower: null, upper: null, flagged: 0 };
     classic = { method: 'classic', cutoff: classicCut, lower: null, upper: null, flagged: 0 };
@@ -196,12 +197,23 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
   const gi = col.groupOf[row];
   const g = col.groups[gi];
   const pooled = pop === 2;
-  const stats = pooled ? col.pooled : g;
+  const stats = populationOfRow(col, row);
+  // Groups whose rows make up that population: every group (whole column), the groups of the wider
+  // peer group (same kept key values), or the group itself.
+  const inPopulation = new Uint8Array(col.groups.length);
+  if (pop === 3) {
+    const keep = col.widerKeep[col.widerOf[gi]];
+    col.groups.forEach((h, i) => {
+      if (keep.every((k, j) => h.keyParts[k] === stats.keyParts[j])) inPopulation[i] = 1;
+    });
+  } else if (pooled) inPopulation.fill(1);
+  else inPopulation[gi] = 1;
+  const member = (r: number): boolean => inPopulation[col.groupOf[r]] === 1;
   const values: number[] = [];
   for (let r = 0; r < col.values.length; r++) {
     const v = col.values[r];
     if (Number.isNaN(v)) continue;
-    if (pooled || col.groupOf[r] === gi) values.push(v);
+    if (member(r)) values.push(v);
   }
   values.sort((a, b) => a - b);
   const v = col.values[row];
@@ -209,7 +221,7 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
   const n = values.length;
   let centreName = 'median';
   let spreadName = '1.4826 × MAD';
-  const d = describeRows(col, (r) => pooled || col.groupOf[r] === gi);
+  const d = describeRows(col, member);
   let centre = d.median;
   let spread = d.scaledMad;
   if (col.method === 'classic') {
@@ -237,8 +249,8 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
     score: Number.isFinite(score) ? score : null,
     flagged: col.flagged[row] === 1,
     reason,
-    against: pooled || result.groupColumns.length === 0 ? `the whole column "${col.column}"` : `peer group ${g.label}`,
-    pooled,
+    against: pooled || result.groupColumns.length === 0 ? `the whole column "${col.column}"` : pop === 3 ? `the wider peer group ${stats.label}` : `peer group ${g.label}`,
+    pooled: pop === 2 || pop === 3,
     n,
     centreName,
     centre,

@@ -236,6 +236,7 @@ export function initialSettings(table: DetectedTable, saved: RunSettings | null)
     logScale: DEFAULT_OPTIONS.logScale,
     minGroupSize: DEFAULT_OPTIONS.minGroupSize,
     smallGroups: DEFAULT_OPTIONS.smallGroups,
+    widen: 'drop-first',
     decimal: 'auto',
     reviewer: null,
     detailColumns: null,

@@ -3,7 +3,7 @@
  * injected `WorkbookLayer`; components receive `PaneModel` and only render it.
  */
 import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef, useState } from 'react';
-import type { BudgetAnswer } from '../pipeline/budget.js';
+import { describeBudget, type BudgetAnswer } from '../pipeline/budget.js';
 import { toCsv } from '../report/marksExport.js';
 import type { Exception, PreviewData, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
 import { downloadBlob } from './download.js';
@@ -414,7 +414,9 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
       dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
       return;
     }
+    // The engine's exact cutoff: the box may show it rounded, the run uses this number.
     dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
+    if (answer.flagged < n) dispatch({ type: 'notice', area: 'method', text: describeBudget(answer) });
   }, []);
 
   const actions = useMemo<PaneActions>(

@@ -85,7 +85,7 @@ describe('batch -> add-in -> batch keeps review marks and adds nothing twice', (
     expect(table.hasResults).toBe(true);
     const settings = (await layer.loadSettings()) ?? {
       valueColumns: ['Amount'], groupColumns: ['Cost centre', 'Category'], idColumn: 'Claim ID', method: 'robust' as const,
-      cutoff: 3.5, direction: 'both' as const, logScale: false, minGroupSize: 8, smallGroups: 'pool' as const, decimal: 'auto' as const, reviewer: null, detailColumns: null,
+      cutoff: 3.5, direction: 'both' as const, logScale: false, minGroupSize: 8, smallGroups: 'pool' as const, widen: 'drop-first' as const, decimal: 'auto' as const, reviewer: null, detailColumns: null,
     };
     // Re-scoring the batch command's workbook in the add-in is accepted (it used to be refused as a name clash).
     await layer.run(table, settings);

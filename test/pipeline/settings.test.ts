@@ -36,7 +36,7 @@ describe('validateSettings', () => {
     expect(validateSettings({ ...cols, method: 'iqr' }).cutoff).toBe(1.5);
     expect(validateSettings(cols)).toEqual({
       valueColumns: ['Amount'], groupColumns: ['Team'], idColumn: null, method: 'skew', cutoff: 3,
-      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', decimal: 'auto', reviewer: null, detailColumns: null,
+      direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool', widen: 'drop-first', decimal: 'auto', reviewer: null, detailColumns: null,
     });
     expect(Object.keys(defaultSettings()).sort()).toEqual([...SETTING_KEYS].sort());
   });
@@ -70,7 +70,7 @@ describe('validateSettings', () => {
 
   it('maps to the engine options one to one', () => {
     const s = validateSettings({ ...cols, method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', decimal: 'comma' });
-    expect(engineOptions(s)).toEqual({ method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', decimal: 'comma', decimalComma: true });
+    expect(engineOptions(s)).toEqual({ method: 'classic', cutoff: 2.5, direction: 'high', logScale: true, minGroupSize: 5, smallGroups: 'skip', widen: 'drop-first', decimal: 'comma', decimalComma: true });
     // A workbook saved with the older tick box keeps its meaning.
     expect(settingsFromSaved({ ...cols, decimalComma: true })?.decimal).toBe('comma');
   });

@@ -1,7 +1,7 @@
 import * as ss from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import {
-  describeColumn, groupRows, KEY_SEPARATOR, keyPart, MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
+  describeColumn, groupRows, medcouple, KEY_SEPARATOR, keyPart, MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
 } from '../../src/scoring/index.js';
 import { expectNear, rng, rStats } from './helpers.js';
 
@@ -11,7 +11,7 @@ import { expectNear, rng, rStats } from './helpers.js';
 const DESCRIPTIVE = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
 const ALL_FIELDS = [
   'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'medcouple', 'fenceFrom',
-  'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'maxAttainableZ', 'chanceRate', 'chanceRateAtMost', 'unreachable',
+  'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'comparedWith', 'maxAttainableZ', 'chanceRate', 'chanceRateAtMost', 'unreachable',
 ];
 const METHODS: MethodId[] = ['robust', 'classic', 'iqr', 'adjusted'];
 
@@ -197,6 +197,32 @@ describe('descriptions after scoring, rows of groups interleaved (simple-statist
       expectNear(describeColumn(c).groups[gi].median!, ss.median(b) * unit, 1e-13);
     }
   });
+});
+
+describe('the medcouple of every group, whatever the method (medcouple(), checked against robustbase in medcouple.test.ts)', () => {
+  const r = rng(4242);
+  const keys: RawCell[] = [];
+  const amounts: RawCell[] = [];
+  for (let i = 0; i < 300; i++) {
+    keys.push(`CC-${600 + (i % 5)}`);
+    amounts.push(Math.round(Math.exp(3 + (i % 5) / 4 + r()) * 100) / 100);
+  }
+  keys.push('CC-699', 'CC-699'); // a pooled group of two
+  amounts.push(40, 90);
+  for (const method of ['skew', 'robust', 'adjusted', 'classic'] as const) {
+    for (const logScale of [false, true]) {
+      it(`${method}${logScale ? ', log scale' : ''}: taken from scoring or computed, the same number`, () => {
+        const col = score(amounts, keys, method, { logScale });
+        const d = describeColumn(col);
+        col.groups.forEach((g, gi) => {
+          const x = (amounts.filter((_, i) => keys[i] === g.key) as number[]).map((v) => (logScale ? Math.log(v) : v));
+          expectNear(d.groups[gi].medcouple!, medcouple(x), 1e-12);
+        });
+        const all = (amounts as number[]).map((v) => (logScale ? Math.log(v) : v));
+        expectNear(d.whole.medcouple!, medcouple(all), 1e-12);
+      });
+    }
+  }
 });
 
 describe('GroupStats and descriptions are plain data', () => {

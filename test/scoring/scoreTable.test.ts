@@ -282,7 +282,7 @@ describe('contract details', () => {
   it('every GroupStats field is present', () => {
     const g = one([1, 2, 3, 4]).columns[0].groups[0];
     expect(Object.keys(g).sort()).toEqual([
-      'center', 'chanceRate', 'chanceRateAtMost', 'excluded', 'fallbacks', 'fenceFrom', 'flagged', 'key', 'keyParts', 'label', 'lower', 'maxAttainableZ',
+      'center', 'chanceRate', 'chanceRateAtMost', 'comparedWith', 'excluded', 'fallbacks', 'fenceFrom', 'flagged', 'key', 'keyParts', 'label', 'lower', 'maxAttainableZ',
       'medcouple', 'n', 'population', 'rows', 'scale', 'unreachable', 'upper',
     ]);
   });

@@ -252,6 +252,7 @@ describe('in-memory preview', () => {
     logScale: false,
     minGroupSize: 8,
     smallGroups: 'pool',
+    widen: 'drop-first',
     decimal: 'auto',
     reviewer: null,
     detailColumns: null,
@@ -273,6 +274,10 @@ describe('in-memory preview', () => {
       const cut = answer.kind === 'cutoff' ? answer.cutoff : Number.NaN;
       const at = scoreTable(data, { method: 'robust', cutoff: cut, direction: 'both', logScale: false, minGroupSize: 8, smallGroups: 'pool' });
       expect(at.columns[0].flaggedRows).toBeLessThanOrEqual(budget);
+      // The pane runs with the engine's exact cutoff: the reducer keeps it unrounded.
+      const st = reducer(ready(), { type: 'budget-applied', cutoff: cut, claims: budget });
+      expect(st.settings?.cutoff).toBe(cut);
+      if (answer.kind === 'cutoff') expect(at.columns[0].flaggedRows).toBe(answer.flagged);
     }
   });
 

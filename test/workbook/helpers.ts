@@ -72,6 +72,7 @@ export const SETTINGS: RunSettings = {
   logScale: false,
   minGroupSize: 8,
   smallGroups: 'pool',
+  widen: 'drop-first',
   decimal: 'auto',
   reviewer: null,
   detailColumns: null,

@@ -1,7 +1,7 @@
 import { Button, Checkbox, Field, Input, Select, Slider, Text, Textarea } from '@fluentui/react-components';
 import type { ReactNode } from 'react';
 import { CAUTION_SHORT } from '../../report/style.js';
-import type { DecimalMode, Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
+import type { DecimalMode, Direction, MethodId, SmallGroupPolicy, WidenOrder } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
 import { GroupCountTable } from './GroupCountTable.js';
 import { NumberInput } from './NumberInput.js';
@@ -84,11 +84,20 @@ export function MethodSection({ model, fileChoices }: { model: PaneModel; fileCh
         </Field>
         <Field label="Smaller groups" className={s.grow}>
           <Select value={settings.smallGroups} onChange={(_, d) => actions.setSettings({ smallGroups: d.value as SmallGroupPolicy })}>
-            <option value="pool">Compare with whole column</option>
+            <option value="pool">Compare with a wider group</option>
             <option value="skip">Leave unscored</option>
           </Select>
         </Field>
       </div>
+      {settings.smallGroups === 'pool' && settings.groupColumns.length >= 2 ? (
+        <Field label="Before the whole column, compare a small group with">
+          <Select value={settings.widen} onChange={(_, d) => actions.setSettings({ widen: d.value as WidenOrder })}>
+            <option value="drop-first">{`the same ${settings.groupColumns.slice(1).join(' / ')} across every ${settings.groupColumns[0]}`}</option>
+            <option value="drop-last">{`the same ${settings.groupColumns.slice(0, -1).join(' / ')} across every ${settings.groupColumns[settings.groupColumns.length - 1]}`}</option>
+            <option value="column">nothing wider: the whole column at once</option>
+          </Select>
+        </Field>
+      ) : null}
       <Field label={`Cutoff (${m.unit}; default ${def})`}>
         <div className={s.row}>
           <Slider
