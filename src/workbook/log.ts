@@ -5,7 +5,7 @@
 import { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, type PlanCell } from '../report/index.js';
 import { TailmarkError } from './api.js';
 import { formatFor, toCellValue } from './notes.js';
-import type { Syncer } from './sync.js';
+import { jsonBytes, type Syncer } from './sync.js';
 
 export function logNameClash(): TailmarkError {
   return new TailmarkError(
@@ -35,7 +35,7 @@ export async function queueLogLines(sync: Syncer, sheet: Excel.Worksheet, create
   if (lines.length === 0) return;
   const values = lines.map((l) => Array.from({ length: width }, (_, i) => toCellValue(l[i] ?? null)));
   const formats = lines.map((l) => Array.from({ length: width }, (_, i) => formatFor(l[i] ?? null)));
-  await sync.reserve(JSON.stringify(values).length + JSON.stringify(formats).length + 256);
+  await sync.reserve(jsonBytes(values) + jsonBytes(formats) + 256);
   const r = sheet.getRangeByIndexes(Math.max(2, next), 0, lines.length, width);
   r.numberFormat = formats;
   r.values = values;

@@ -13,7 +13,7 @@ import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
-import type { Syncer } from './sync.js';
+import { utf8Bytes, type Syncer } from './sync.js';
 
 function noResults(): TailmarkError {
   return new TailmarkError('no-results', 'This workbook has no Tailmark results yet. Select your claims table and run a review first.');
@@ -250,7 +250,7 @@ export async function markRows(sync: Syncer, rows: readonly number[], status: st
   await appendLog(sync, lines);
   for (const run of runs) {
     const n = run.n;
-    const bytes = n * ((label?.length ?? 0) + (note?.length ?? 0) + 16);
+    const bytes = n * (utf8Bytes(label ?? '') + utf8Bytes(note ?? '') + 16);
     if (bytes > target) throw new TailmarkError('too-large', 'Too many rows or too long a note to mark at once; mark fewer rows.');
     await sync.reserve(bytes);
     if (label !== null) {

@@ -1,7 +1,8 @@
 /**
  * run(): read -> score -> plan -> check -> write, inside one Excel.run.
  *
- * Syncs (5,000 rows x 10 columns, fits one chunk): resolve 1, read 1, check 1, write 1.
+ * Syncs (5,000 rows x 10 columns, fits one chunk): resolve 1, read 1, check 1, backup of an
+ * existing notes/log sheet 1 (re-runs), write 1.
  * Every phase grows with cells only: reads and writes go in row chunks under the payload budget;
  * nothing loops over groups or flagged rows with a sync.
  *
@@ -12,8 +13,8 @@
  *    data -> 'column-limit'; all before any write;
  *  - cancellation is honoured between phases up to the write phase; a cancelled or refused run
  *    leaves the workbook as it was;
- *  - if a write sync fails part-way (only possible when the writes need several syncs), the
- *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
+ *  - before the first write, what the write may change is read back (backup.ts); if a write sync
+ *    fails part-way, undo.ts restores it, so a failed run or re-run leaves the workbook as it was.
  *
  * Where the parts live: placement of our columns in place.ts, the writes (values, dropdown, rules,
  * notes, log) in write-results.ts, undoing a failed write in undo.ts; the run itself (resolve ->
@@ -47,8 +48,9 @@ import { readRows } from './read.js';
 import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
 import { place } from './place.js';
-import { writeAll, writeNotes } from './write-results.js';
-import { compensate } from './undo.js';
+import { logLinesFor, writeAll, writeNotes } from './write-results.js';
+import { queueSmallBackup, readSheetBackups, type Backup, type SavedCells } from './backup.js';
+import { undoWrites } from './undo.js';
 import type { Syncer } from './sync.js';
 
 export interface RunDeps {
@@ -140,6 +142,17 @@ function summarise(result: ScoreResult, plan: Plan, syncs: number): RunSummary {
   };
 }
 
+/** Runs of adjacent columns: [3, 4, 5, 9] -> 3 (3 columns), 9 (1). */
+function contiguous(columns: readonly number[]): { column: number; count: number }[] {
+  const out: { column: number; count: number }[] = [];
+  for (const c of columns) {
+    const last = out[out.length - 1];
+    if (last && last.column + last.count === c) last.count++;
+    else out.push({ column: c, count: 1 });
+  }
+  return out;
+}
+
 function textOf(v: unknown): string {
   if (v === null || v === undefined) return '';
   return typeof v === 'string' ? v : String(v);
@@ -199,6 +212,10 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const markSpans: { column: number; into: string[] }[] = [];
   if (placement.oldStatus !== null) markSpans.push({ column: placement.oldStatus, into: oldStatus });
   if (placement.oldNote !== null) markSpans.push({ column: placement.oldNote, into: oldNote });
+  // Our existing result columns, read back to write them back if the write fails (backup.ts).
+  const savedCells: SavedCells[] = [];
+  const backupSpans = contiguous(placement.oldColumns);
+  const firstSpan = 1 + markSpans.length;
   const notesA1 = res.notesSheet.isNullObject ? null : res.notesSheet.getRange('A1');
   const logA1 = res.logSheet.isNullObject ? null : res.logSheet.getRange('A1');
   // The previous run's list of marks (src/report/marks.ts) sits in the first columns of the notes.
@@ -206,6 +223,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
+  let notesUsed: Excel.Range | null = null;
+  let small: ReturnType<typeof queueSmallBackup> | null = null;
   await readRows(
     sync,
     res.sheet,
@@ -214,17 +233,23 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     [
       { column: res.spanStart, columnCount: res.spanCols, props: 'values' },
       ...markSpans.map((m) => ({ column: m.column, columnCount: 1, props: 'values' as const })),
+      ...backupSpans.map((b) => ({ column: b.column, columnCount: b.count, props: 'cells' as const })),
     ],
     (si, offset, d) => {
       if (si === 0) fp.addRows(d.values);
-      else {
+      else if (si >= firstSpan) {
+        savedCells.push({ row: res.headerRow + 1 + offset, column: backupSpans[si - firstSpan].column, formulas: d.values, numberFormat: d.numberFormat!, props: null });
+      } else {
         const into = markSpans[si - 1].into;
         for (let r = 0; r < d.values.length; r++) into[offset + r] = textOf(d.values[r][0]);
       }
     },
     {
-      bytesPerRowHint: Math.max(16, data.bytesPerRow / 2.5) + 24 * markSpans.length,
+      bytesPerRowHint: Math.max(16, data.bytesPerRow / 2.5) + 24 * markSpans.length + 40 * placement.oldColumns.length,
       withFirstSync: () => {
+        notesUsed = res.notesSheet.isNullObject ? null : res.notesSheet.getUsedRangeOrNullObject(false);
+        notesUsed?.load(['rowIndex', 'rowCount', 'columnIndex', 'columnCount']);
+        small = queueSmallBackup(sync, res, placement, customRules);
         res.sheet.protection.load('protected');
         notesA1?.load('values');
         notesMarks?.load('values');
@@ -268,10 +293,26 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const marksKept = merged.kept + merged.restored;
   const values: (readonly PlanCell[])[] = plan.columns.map((c) => c.values);
 
-  // ---- write ----
+  // ---- backup: what the write may change, read before it (backup.ts) ----
   const createdNotes = res.notesSheet.isNullObject;
   const createdLog = res.logSheet.isNullObject;
   const firstDataRow = res.headerRow + 1;
+  const logNext = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
+  const logLines = logLinesFor(res, plan, settings, deps.record);
+  const lastRows = !res.table && res.state && res.state.sheet === res.sheetName ? res.state.rowCount : 0;
+  if (lastRows > res.rows && backupSpans.length > 0) {
+    // The data shrank: our cells below it are cleared by the write, so read them too.
+    await readRows(sync, res.sheet, firstDataRow + res.rows, lastRows - res.rows, backupSpans.map((b) => ({ column: b.column, columnCount: b.count, props: 'cells' as const })), (si, offset, d) => {
+      savedCells.push({ row: firstDataRow + res.rows + offset, column: backupSpans[si].column, formulas: d.values, numberFormat: d.numberFormat!, props: null });
+    });
+  }
+  const backup: Backup = {
+    cells: savedCells,
+    ...small!(),
+    ...(await readSheetBackups(sync, res, createdNotes ? null : notesUsed, createdLog ? null : { next: logNext, lines: logLines.length })),
+  };
+
+  // ---- write ----
   const newState: LayerState = {
     v: 1,
     sheet: res.sheetName,
@@ -285,13 +326,13 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   };
   try {
     await writeAll(sync, res, plan, placement, values, ourRules, firstDataRow, deps);
-    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed, settings, deps.record);
+    await writeNotes(sync, res, plan, createdNotes, createdLog, logNext, logLines);
     await sync.reserve(2048);
     ctx.workbook.settings.add(SETTINGS_KEY, JSON.stringify(settings));
     ctx.workbook.settings.add(STATE_KEY, JSON.stringify(newState));
     await sync.flush();
   } catch (e) {
-    await compensate(sync, res, placement, plan, createdNotes, createdLog, oldStatus, oldNote, firstDataRow, e);
+    await undoWrites(sync, { res, placement, plan, createdNotes, createdLog, backup }, e);
     throw e;
   }
   deps.onProgress?.({ phase: 'notes', fraction: 1 });
