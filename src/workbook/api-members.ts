@@ -17,6 +17,11 @@ export interface ExcelMember {
 
 export const EXCEL_MEMBERS: readonly ExcelMember[] = [
   // Reading back and writing back what a run changes (backup.ts, undo.ts).
+  { member: 'Workbook.load', apiSet: null },
+  { member: 'Workbook.protection', apiSet: 'ExcelApi 1.7' },
+  { member: 'Workbook.readOnly', apiSet: 'ExcelApi 1.8' },
+  { member: 'WorkbookProtection.load', apiSet: null },
+  { member: 'WorkbookProtection.protected', apiSet: 'ExcelApi 1.7' },
   { member: 'CellPropertiesFill.color', apiSet: 'ExcelApi 1.9' },
   { member: 'CellPropertiesFillLoadOptions.color', apiSet: 'ExcelApi 1.9' },
   { member: 'CellPropertiesFont.bold', apiSet: 'ExcelApi 1.9' },

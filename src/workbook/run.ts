@@ -7,7 +7,9 @@
  * nothing loops over groups or flagged rows with a sync.
  *
  * Safety:
- *  - protected sheet -> 'protected' before any write (checked at resolve and again at check);
+ *  - read-only workbook -> 'read-only'; protected sheet, or protected workbook structure when the
+ *    notes or log sheet must be added -> 'protected'; all before any write (the sheet's protection
+ *    again at check);
  *  - the data is re-read (values) in the check sync and compared by fingerprint -> 'changed-during-run';
  *  - notes/log sheet names taken by the user's own sheets -> 'name-clash'; no room right of the
  *    data -> 'column-limit'; all before any write;
@@ -45,7 +47,7 @@ import {
   isNotesMarker,
 } from './notes.js';
 import { readRows } from './read.js';
-import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
+import { columnOf, protectedError, readOnlyError, resolveTable, spanHeaders, structureError, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
 import { place } from './place.js';
 import { logLinesFor, writeAll, writeNotes } from './write-results.js';
@@ -69,6 +71,14 @@ export interface RunOutcome {
   readonly marksKept: number;
   /** Sheet columns (0-based) of our result columns, in plan order. */
   readonly resultColumns: readonly string[];
+}
+
+/** Refusal when inserting whole columns for our block would widen another table on the sheet. */
+function obstacleError(count: number, at: number, tables: readonly string[]): TailmarkError {
+  return new TailmarkError(
+    'column-limit',
+    `Tailmark's ${count} result columns need ${count} whole sheet columns inserted at column ${columnLetters(at)} (the cells right of your data are in use), which would widen the table ${tables.map((t) => `"${t}"`).join(', ')} elsewhere on this sheet. Leave ${count} empty columns right of your data, or move that table, then run again. Nothing was changed.`,
+  );
 }
 
 function cancelled(): TailmarkError {
@@ -166,7 +176,12 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
 
   // ---- resolve (the chosen columns are checked before the read) ----
   const res = await resolveTable(sync, table);
+  // Checked before anything is written: read-only, sheet protection, and structure protection
+  // when a sheet must be added.
+  if (res.readOnly) throw readOnlyError();
   if (res.protected) throw protectedError(res.sheetName);
+  const toAdd = [res.notesSheet.isNullObject ? NOTES_SHEET_NAME : null, res.logSheet.isNullObject ? LOG_SHEET_NAME : null].filter((n): n is string => n !== null);
+  if (res.structureProtected && toAdd.length > 0) throw structureError(toAdd);
   if (res.rows < 1) throw new TailmarkError('no-numbers', `The table at ${table.address} has no data rows under its header. Add claims, then run again.`);
   for (const n of settings.valueColumns) columnOf(res, n, 'value');
   for (const n of settings.groupColumns) columnOf(res, n, 'group');
@@ -224,6 +239,9 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
   let notesUsed: Excel.Range | null = null;
+  // Whole sheet columns inserted for our block must not widen another table on the sheet: a
+  // table found both in the column left of the insertion point and in the one right of it spans it.
+  const across: { left?: Excel.TableScopedCollection; right?: Excel.TableScopedCollection } = {};
   let small: ReturnType<typeof queueSmallBackup> | null = null;
   await readRows(
     sync,
@@ -250,6 +268,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
         notesUsed = res.notesSheet.isNullObject ? null : res.notesSheet.getUsedRangeOrNullObject(false);
         notesUsed?.load(['rowIndex', 'rowCount', 'columnIndex', 'columnCount']);
         small = queueSmallBackup(sync, res, placement, customRules);
+        if (placement.insertCount > 0 && placement.insertAt > 0) {
+          const at = (c: number) => res.sheet.getRangeByIndexes(0, c, 1, 1).getEntireColumn().getTables(false);
+          across.left = at(placement.insertAt - 1).load('items/name');
+          across.right = at(placement.insertAt).load('items/name');
+        }
         res.sheet.protection.load('protected');
         notesA1?.load('values');
         notesMarks?.load('values');
@@ -278,6 +301,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       'name-clash',
       `A sheet named "${LOG_SHEET_NAME}" already exists and was not made by Tailmark. Rename that sheet, then run again. Nothing was changed.`,
     );
+  }
+  if (across.left && across.right) {
+    const right = new Set(across.right.items.map((t) => t.name));
+    const widened = across.left.items.map((t) => t.name).filter((n) => right.has(n));
+    if (widened.length > 0) throw obstacleError(placement.insertCount, placement.insertAt, widened);
   }
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
