@@ -1,9 +1,9 @@
 import { defineConfig } from 'vitest/config';
 
 /**
- * Two projects: every suite against the sandbox, and the workbook-layer suites again through
+ * Three projects: every unit suite against the sandbox; the workbook-layer suites again through
  * Microsoft's real Office.js client (@microsoft/office-js) whose requests the sandbox answers
- * (test/workbook/helpers.ts reads TAILMARK_TEST_CLIENT).
+ * (test/workbook/helpers.ts reads TAILMARK_TEST_CLIENT); and the browser end-to-end tests (e2e).
  */
 export default defineConfig({
   test: {
@@ -12,7 +12,12 @@ export default defineConfig({
     projects: [
       {
         extends: true,
-        test: { name: 'sandbox', include: ['test/**/*.test.ts', 'test/**/*.test.tsx'] },
+        test: { name: 'sandbox', include: ['test/**/*.test.ts', 'test/**/*.test.tsx'], exclude: ['test/e2e/**'] },
+      },
+      {
+        extends: true,
+        // Browser end-to-end tests (npm run test:e2e): the bundles are built once, before the files start.
+        test: { name: 'e2e', include: ['test/e2e/**/*.test.ts'], globalSetup: ['test/e2e/global-setup.ts'] },
       },
       {
         extends: true,

@@ -147,7 +147,9 @@ export type Action =
   | { readonly type: 'show-progress' }
   | { readonly type: 'run-done'; readonly summary: RunSummary; readonly settings: RunSettings }
   | { readonly type: 'exceptions'; readonly list: readonly Exception[]; readonly keepRow?: number | null }
-  | { readonly type: 'goto'; readonly row: number; readonly fromSheet?: boolean; readonly force?: boolean }
+  /** Rows of the follow-up list read again (a selection change): null = neither flagged nor marked now. */
+  | { readonly type: 'exception-rows'; readonly rows: readonly { readonly row: number; readonly exception: Exception | null }[] }
+  | { readonly type: 'goto'; readonly row: number; readonly fromSheet?: boolean; readonly force?: boolean; readonly claim?: ClaimRecord | null }
   | { readonly type: 'pending-done' }
   | { readonly type: 'order'; readonly order: ReviewOrder }
   | { readonly type: 'filter'; readonly filter: ReviewFilter }
@@ -454,10 +456,16 @@ export function reducer(state: PaneState, action: Action): PaneState {
         ...drafts,
       };
     }
+    case 'exception-rows': {
+      const fresh = new Map(action.rows.map((u) => [u.row, u.exception]));
+      const list = [...state.exceptions.filter((e) => !fresh.has(e.row)), ...action.rows.flatMap((u) => (u.exception ? [u.exception] : []))];
+      return reducer(state, { type: 'exceptions', list: list.sort((a, b) => a.row - b.row) });
+    }
     case 'goto': {
-      if (action.row === state.currentRow) return { ...state, pending: null };
+      const claim = action.claim ?? null;
+      if (action.row === state.currentRow) return { ...state, pending: null, ...(claim ? { claim } : {}) };
       if (state.draftDirty && !action.force) return { ...state, pending: { row: action.row, fromSheet: action.fromSheet === true } };
-      return { ...state, currentRow: action.row, claim: null, pending: null, ...draftsFor(state.exceptions, action.row) };
+      return { ...state, currentRow: action.row, claim, pending: null, ...draftsFor(state.exceptions, action.row) };
     }
     case 'pending-done':
       return { ...state, pending: null };

@@ -30,6 +30,7 @@ import {
   type ReviewFilter,
   type ReviewOrder,
 } from './state.js';
+import { selectionActions } from './selection.js';
 
 /** How long a run may take before the progress bar appears, ms. */
 export const PROGRESS_DELAY_MS = 300;
@@ -123,6 +124,17 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer, loadExceptions],
   );
 
+  /** A selection change in the sheet: after a run, only the selected claim and the rows it may have changed. */
+  const follow = useCallback(async () => {
+    try {
+      const actions = await selectionActions(layer, stateRef.current);
+      if (actions === 'detect') return await detect(true);
+      if (mounted.current) actions.forEach(dispatch);
+    } catch (error) {
+      if (mounted.current) dispatch({ type: 'failed', error, area: 'review' });
+    }
+  }, [layer, detect]);
+
   // First detection and following the selection.
   useEffect(() => {
     mounted.current = true;
@@ -140,7 +152,7 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
         if (timer) clearTimeout(timer);
         timer = setTimeout(() => {
           // While a run or a mark is writing, the selection moves because of us: ignore it.
-          if (active && stateRef.current.busy === null) void detect(true);
+          if (active && stateRef.current.busy === null) void follow();
         }, 120);
       })
       .then((off) => {
@@ -156,7 +168,7 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
       if (timer) clearTimeout(timer);
       unsubscribe?.();
     };
-  }, [layer, detect]);
+  }, [layer, detect, follow]);
 
   // Back from the sheet (the pane's window regains focus): statuses may have been edited there.
   useEffect(() => {
@@ -283,7 +295,8 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
   const hasResults = state.table?.hasResults === true;
   useEffect(() => {
     const row = state.currentRow;
-    if (row === null || !hasResults) return;
+    // A claim selected in the sheet arrives with its row already read (selectionActions).
+    if (row === null || !hasResults || stateRef.current.claim?.row === row) return;
     let stale = false;
     layer
       .readClaim(row)

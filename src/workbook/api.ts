@@ -93,6 +93,21 @@ export interface ClaimRecord {
   readonly reasons: readonly { readonly valueColumn: string; readonly text: string }[];
 }
 
+/** What a selection change means for the follow-up view. */
+export interface SelectionFollow {
+  /**
+   * False when the selection is not in the last run's block (other sheet, other cells, the block
+   * moved, or no run yet): the pane should detect the table again.
+   */
+  readonly inResults: boolean;
+  /** 0-based data row when one row of the data is selected; null otherwise. */
+  readonly row: number | null;
+  /** That row as the sheet shows it (as readClaim gives it); null when `row` is null. */
+  readonly claim: ClaimRecord | null;
+  /** The follow-up list's entry of the selected row and of each row asked for (null: neither flagged nor marked). */
+  readonly rows: readonly { readonly row: number; readonly exception: Exception | null }[];
+}
+
 /** Review choices kept in the workbook (asked once): who marks, and which columns the follow-up view shows. */
 export interface ReviewPrefs {
   /** Initials or name the reviewer typed; null until asked. Office gives add-ins no user identity without sign-in. */
@@ -122,6 +137,12 @@ export interface WorkbookLayer {
   readClaim(row: number): Promise<ClaimRecord>;
   loadReviewPrefs(): Promise<ReviewPrefs>;
   saveReviewPrefs(prefs: ReviewPrefs): Promise<void>;
+  /**
+   * After a selection change in the sheet: the selected claim and the follow-up list's entries
+   * of that row and of `refresh` (rows whose marks may have been edited in the sheet). At most 2
+   * syncs, cells of those rows only. `inResults: false` means: detect the table again.
+   */
+  followSelection(refresh: readonly number[]): Promise<SelectionFollow>;
   /** Select the sheet row of a data row. */
   selectRow(row: number): Promise<void>;
   /** Set the status (label) and/or note of data rows. */

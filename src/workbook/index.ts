@@ -8,7 +8,7 @@
  * that grows with the number of cells only.
  */
 import type { AsyncPipeline } from '../pipeline/index.js';
-import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, SelectionFollow, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
 import {
@@ -22,6 +22,7 @@ import {
   saveReviewPrefs,
   selectDataRow,
 } from './ops.js';
+import { followSelection } from './follow.js';
 import { runScoring } from './run.js';
 import { Syncer, makeBudget, PAYLOAD_LIMIT, SAFETY } from './sync.js';
 
@@ -169,6 +170,9 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
     },
     listExceptions(): Promise<readonly Exception[]> {
       return act('listExceptions', (s) => listExceptionRows(s));
+    },
+    followSelection(refresh: readonly number[]): Promise<SelectionFollow> {
+      return act('followSelection', (s) => followSelection(s, refresh));
     },
     selectRow(row: number): Promise<void> {
       return act('selectRow', (s) => selectDataRow(s, row));

@@ -3,13 +3,13 @@
  * Each is one Excel.run with a small, fixed number of syncs plus row chunks where it reads data.
  */
 import { validateSettings } from '../pipeline/settings.js';
-import { parseCell } from '../scoring/index.js';
 import type { RawCell } from '../scoring/types.js';
-import { FLAG_WORDS, NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, resultHeaders, type PlanCell } from '../report/index.js';
+import { NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, type PlanCell } from '../report/index.js';
 import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
-import { cellText, toRawCell } from './cells.js';
+import { toRawCell } from './cells.js';
 import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
+import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns } from './exceptions.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, readOnlyError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
@@ -82,22 +82,21 @@ async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Prom
     header.load('values');
   }
   await sync.sync();
-  const columns = new Map<string, number>();
-  const userColumns = new Map<string, number>();
+  let columns: ReadonlyMap<string, number> = new Map<string, number>();
+  let userColumns: ReadonlyMap<string, number> = new Map<string, number>();
   let firstDataRow = state.headerRow + 1;
   let rows = state.rowCount;
-  const ourHeaders = new Set(state.columns.map((c) => c.header));
   if (table && tableRange && tableCols) {
+    const ourHeaders = new Set(state.columns.map((c) => c.header));
+    const ours = new Map<string, number>();
+    const user = new Map<string, number>();
     firstDataRow = tableRange.rowIndex + 1;
     rows = tableRange.rowCount - 1;
-    tableCols.items.forEach((c, i) => (ourHeaders.has(c.name) ? columns : userColumns).set(c.name, tableRange.columnIndex + i));
+    tableCols.items.forEach((c, i) => (ourHeaders.has(c.name) ? ours : user).set(c.name, tableRange.columnIndex + i));
+    columns = ours;
+    userColumns = user;
   } else if (header) {
-    const cells = (header.values[0] as unknown[]).map((v) => cellText(typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean' ? v : null));
-    cells.forEach((h, i) => {
-      const col = state.firstColumn + i;
-      if (col >= state.blockColumn && ourHeaders.has(h)) columns.set(h, col);
-      else if (col < state.blockColumn && h !== '' && !userColumns.has(h)) userColumns.set(h, col);
-    });
+    ({ columns, userColumns } = headerColumns(state, header.values[0] as unknown[]));
   }
   return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected, readOnly: wb.readOnly };
 }
@@ -302,23 +301,7 @@ export async function selectDataRow(sync: Syncer, row: number): Promise<void> {
 export async function listExceptionRows(sync: Syncer): Promise<readonly Exception[]> {
   const loc = await locate(sync, { allowMissing: true });
   if (!loc) return [];
-  const settings = loc.settings;
-  const valueName = settings?.valueColumns[0] ?? null;
-  const find = (name: string | null | undefined) => (name ? loc.userColumns.get(name) : undefined);
-  const wanted: { key: string; column: number }[] = [];
-  const add = (key: string, column: number | undefined) => {
-    if (column !== undefined) wanted.push({ key, column });
-  };
-  add('status', loc.columns.get(STATUS_HEADER));
-  add('note', loc.columns.get(NOTE_HEADER));
-  add('id', find(settings?.idColumn));
-  add('value', find(valueName));
-  settings?.groupColumns.forEach((g, i) => add(`group${i}`, find(g)));
-  for (const v of settings?.valueColumns ?? []) {
-    const h = resultHeaders(v);
-    add(`score:${v}`, loc.columns.get(h.score));
-    add(`flag:${v}`, loc.columns.get(h.flag));
-  }
+  const wanted = exceptionColumns(loc.settings, loc);
   const got = new Map<string, unknown[]>();
   for (const w of wanted) got.set(w.key, new Array<unknown>(loc.rows));
   await readRows(
@@ -332,41 +315,10 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
       for (let r = 0; r < d.values.length; r++) into[offset + r] = d.values[r][0];
     },
   );
-  const text = (k: string, r: number) => {
-    const v = got.get(k)?.[r];
-    return v === undefined || v === null ? '' : String(v).trim();
-  };
-  const flagWords = new Set<string>([FLAG_WORDS.high, FLAG_WORDS.low]);
   const out: Exception[] = [];
   for (let r = 0; r < loc.rows; r++) {
-    let flaggedScore: number | null = null;
-    let anyFlag = false;
-    let firstScore: number | null = null;
-    for (const v of settings?.valueColumns ?? []) {
-      const f = text(`flag:${v}`, r);
-      const s = got.get(`score:${v}`)?.[r];
-      const score = typeof s === 'number' ? s : null;
-      if (firstScore === null) firstScore = score;
-      if (f !== '' && (flagWords.has(f) || f.length > 0)) {
-        anyFlag = true;
-        if (flaggedScore === null) flaggedScore = score;
-      }
-    }
-    const status = text('status', r);
-    const note = text('note', r);
-    if (!anyFlag && status === '' && note === '') continue;
-    const rawValue = got.get('value')?.[r];
-    const parsed = parseCell(rawValue === undefined || rawValue === '' ? null : (rawValue as RawCell), { decimalComma: settings?.decimal === 'comma' });
-    const group = (settings?.groupColumns ?? []).map((_, i) => text(`group${i}`, r) || '(blank)').join(' / ');
-    out.push({
-      row: r,
-      claimId: got.has('id') ? text('id', r) || null : null,
-      group: group === '' ? '(all rows)' : group,
-      value: parsed.ok ? parsed.value : null,
-      score: flaggedScore ?? firstScore,
-      status,
-      note,
-    });
+    const e = exceptionOf(r, (k) => got.get(k)?.[r], got.has('id'), loc.settings);
+    if (e) out.push(e);
   }
   return out;
 }
@@ -406,26 +358,16 @@ export async function readClaimRow(sync: Syncer, row: number): Promise<ClaimReco
   if (!Number.isInteger(row) || row < 0 || row >= loc.rows) {
     throw new TailmarkError('bad-settings', `Row ${row} is outside the data (0..${loc.rows - 1}).`);
   }
-  const user = [...loc.userColumns.entries()].sort((a, b) => a[1] - b[1]);
-  const whys = (loc.settings?.valueColumns ?? []).flatMap((v) => {
-    const c = loc.columns.get(resultHeaders(v).reason);
-    return c === undefined ? [] : [{ valueColumn: v, column: c }];
-  });
-  const cols = [...user.map((u) => u[1]), ...whys.map((w) => w.column)];
-  if (cols.length === 0) return { row, fields: [], reasons: [] };
-  const start = Math.min(...cols);
-  const end = Math.max(...cols) + 1;
+  const shown = claimColumns(loc.settings, loc);
+  if (shown.cols.length === 0) return { row, fields: [], reasons: [] };
+  const start = Math.min(...shown.cols);
+  const end = Math.max(...shown.cols) + 1;
   await sync.reserve(256);
   const r = loc.sheet.getRangeByIndexes(loc.firstDataRow + row, start, 1, end - start);
   r.load('text');
   await sync.sync();
   const line = r.text[0] ?? [];
-  const at = (c: number) => String(line[c - start] ?? '');
-  return {
-    row,
-    fields: user.map(([header, c]) => ({ header, text: at(c) })),
-    reasons: whys.map((w) => ({ valueColumn: w.valueColumn, text: at(w.column) })),
-  };
+  return claimFrom(row, shown, (c) => String(line[c - start] ?? ''));
 }
 
 /** The reviewer's name and follow-up columns, as saved with the run settings. */

@@ -12,7 +12,7 @@ import { NOTE_HEADER, REVIEW_STATUSES, STATUS_HEADER } from '../../src/report/st
 import { scoreColumns } from '../../src/pipeline/run.js';
 import { defaultCutoff } from '../../src/scoring/index.js';
 import { DEFAULT_OPTIONS, type RawCell } from '../../src/scoring/types.js';
-import { buildWeb, openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
+import { openPage, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 const label = (id: string) => REVIEW_STATUSES.find((s) => s.id === id)!.label;
 
@@ -41,7 +41,6 @@ function flaggedByScore(): string[] {
 let session: Session;
 
 beforeAll(async () => {
-  buildWeb();
   session = await startSession();
 }, 300_000);
 

@@ -13,7 +13,7 @@ import { DEMO_GROUPS, demoClaims } from '../../src/demo/claims.js';
 import { NOTES_SHEET_NAME, PALETTE, resultHeaders, REVIEW_STATUSES, STATUS_HEADER } from '../../src/report/style.js';
 import { scoreTable } from '../../src/scoring/index.js';
 import type { RawCell } from '../../src/scoring/types.js';
-import { buildWeb, OUT_DIR, openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
+import { OUT_DIR, openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 /** What the batch engine flags on the demo data with the pane's default choices (robust z, both sides). */
 function expectedFlags(cutoff: number): number {
@@ -35,7 +35,6 @@ const hex = (h: string) => `#${h.toUpperCase()}`;
 let session: Session;
 
 beforeAll(async () => {
-  buildWeb();
   session = await startSession();
   mkdirSync(SCREENSHOT_DIR, { recursive: true });
 }, 300_000);

@@ -8,7 +8,7 @@
  */
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { buildWeb, openPage, startSession, type Session } from './harness.js';
+import { openPage, startSession, type Session } from './harness.js';
 
 const ROWS = 300_000;
 /**
@@ -41,7 +41,6 @@ let session: Session;
 const csv = claimsCsv(ROWS);
 
 beforeAll(async () => {
-  buildWeb();
   session = await startSession();
 }, 300_000);
 
