@@ -3,14 +3,14 @@
  * claims sheet), detect -> run, then readForPreview, on each host: the sandbox directly, and
  * Microsoft's real Office.js client whose requests the sandbox answers. Reports syncs, the largest
  * request/response (bytes: the sandbox's estimate, or the real JSON the client sent and received),
- * time per phase and the longest event-loop stall of the run (the largest gap between ticks of
- * a 5 ms interval timer).
+ * time per phase, the longest event-loop stall of the run (the largest gap between ticks of
+ * a 5 ms interval timer) and the process's peak memory.
  * Usage (after `npm run build:node`): node dist/bench/workbook.js [--json] [--rows N] [--cell]
  *   [--client sandbox|office-js] (default: both)
  * (--cell: detect from one selected cell, B3, through getSurroundingRegion, instead of the whole block).
  */
 import { SandboxWorkbook } from '../src/sandbox/index.js';
-import { officeClientFor } from '../src/cli/office-client.js';
+import { clientSettled, officeClientFor } from '../src/cli/office-client.js';
 import { nodePipeline } from '../src/cli/threads.js';
 import { createWorkbookLayer } from '../src/workbook/index.js';
 import type { RunSettings } from '../src/workbook/api.js';
@@ -26,6 +26,8 @@ export interface WorkbookBenchResult {
   detect: { syncs: number; ms: number };
   run: { syncs: number; ms: number; maxRequestBytes: number; maxResponseBytes: number; flagged: number; longestBlockMs: number };
   preview: { syncs: number; ms: number; maxResponseBytes: number };
+  /** Peak resident memory of this process so far (MB): both hosts in one process count together. */
+  peakRssMb: number;
 }
 
 /** Fill a sheet directly (no syncs): Claim ID, Employee, Cost centre, Category, Amount + 5 more. */
@@ -91,15 +93,16 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
   /** Largest request/response: the real JSON through the client, else the sandbox's estimate. */
   const maxReq = () => (host ? host.wire.requestBytes.max : sb.stats.requestBytes.max);
   const maxResp = () => (host ? host.wire.responseBytes.max : sb.stats.responseBytes.max);
-  const reset = () => {
+  const reset = async () => {
+    if (host) await clientSettled();
     sb.stats.reset();
     host?.wire.reset();
   };
   t0 = performance.now();
-  reset();
+  await reset();
   const table = await layer.detect();
   const detect = { syncs: sb.stats.syncs, ms: performance.now() - t0 };
-  reset();
+  await reset();
   let last = performance.now();
   let longest = 0;
   const ticker = setInterval(() => {
@@ -120,11 +123,11 @@ export async function benchWorkbook(rows = 1_048_575, selection: 'block' | 'cell
     flagged: summary.flagged,
     longestBlockMs: longest,
   };
-  reset();
+  await reset();
   t0 = performance.now();
   await layer.readForPreview(table, BENCH_SETTINGS);
   const preview = { syncs: sb.stats.syncs, ms: performance.now() - t0, maxResponseBytes: maxResp() };
-  return { client, rows, columns: 10, buildMs, detect, run, preview };
+  return { client, rows, columns: 10, buildMs, detect, run, preview, peakRssMb: Math.round(process.resourceUsage().maxRSS / 1024) };
 }
 
 const isMain = typeof process !== 'undefined' && process.argv[1] !== undefined && /bench[\\/]workbook\.(js|ts)$/.test(process.argv[1]);
@@ -142,7 +145,8 @@ if (isMain) {
           `workbook layer, ${r.rows} rows x ${r.columns} columns (${r.client === 'office-js' ? 'real Office.js client, answered by the sandbox' : 'sandbox'})\n` +
             `  detect : ${r.detect.syncs} syncs, ${r.detect.ms.toFixed(0)} ms\n` +
             `  run    : ${r.run.syncs} syncs, ${(r.run.ms / 1000).toFixed(1)} s, max request ${r.run.maxRequestBytes} B, max response ${r.run.maxResponseBytes} B, longest block ${r.run.longestBlockMs.toFixed(0)} ms, ${r.run.flagged} flagged\n` +
-            `  preview: ${r.preview.syncs} syncs, ${(r.preview.ms / 1000).toFixed(1)} s, max response ${r.preview.maxResponseBytes} B\n`,
+            `  preview: ${r.preview.syncs} syncs, ${(r.preview.ms / 1000).toFixed(1)} s, max response ${r.preview.maxResponseBytes} B\n` +
+            `  peak memory of the process so far: ${r.peakRssMb} MB\n`,
         );
       }
     }

@@ -21,7 +21,7 @@ import { writeScoredWorkbook } from '../files/write.js';
 import { checkOutPath } from '../files/layout.js';
 import { writeDemoWorkbook } from '../files/demo.js';
 import { HELP, parseDemoArgs, parseScoreArgs, type ScoreArgs } from './args.js';
-import { TailmarkError, resolveColumns, runPipeline, validateSettings, type PipelineRun } from '../pipeline/index.js';
+import { TailmarkError, fillMergedKeys, resolveColumns, runPipeline, validateSettings, type PipelineRun } from '../pipeline/index.js';
 import { previousMarks } from '../files/marks.js';
 
 const LARGE_ROWS = 50_000;
@@ -95,7 +95,7 @@ async function runScore(args: ScoreArgs, io: Io, outDefault?: string): Promise<{
   const cols = resolveColumns(table.headers, args.settings, table.source);
   checkFormulas(table, [...cols.value, ...cols.group], basename(args.input));
   if (wantWorkbook) checkSheetLimit(table, basename(args.input));
-  const inputNotes = [...(table.readNotes ?? []), ...fillMergedKeys(table, cols.group)];
+  const inputNotes = [...(table.readNotes ?? []), ...fillMergedKeys(table.headers, table.columns as RawCell[][], table.merges ?? [], cols.group)];
   const large = table.rowCount >= LARGE_ROWS;
 
   if (large) progress(`scoring ${table.rowCount.toLocaleString('en')} rows…`);
@@ -179,32 +179,6 @@ function checkFormulas(table: ReadTable, columns: readonly number[], file: strin
     const n = table.unsavedFormulas?.[i] ?? 0;
     if (n > 0) throw new TailmarkError('input-file', unsavedFormulaMessage(file, table.headers[i], n));
   }
-}
-
-/**
- * Merged cells in a peer-group column: every row a merged area covers takes the area's value (the
- * reviewer sees one label spanning those rows, so that is what it means). Returns notes lines.
- */
-function fillMergedKeys(table: ReadTable, groupIdx: readonly number[]): string[] {
-  const notes: string[] = [];
-  for (const g of groupIdx) {
-    const spans = (table.merges ?? []).filter((m) => m.col === g);
-    if (spans.length === 0) continue;
-    const cells = table.columns[g] as RawCell[];
-    let filled = 0;
-    for (const m of spans) {
-      const v = cells[m.from];
-      for (let r = m.from + 1; r <= m.to; r++) {
-        if (cells[r] === null || cells[r] === undefined) {
-          cells[r] = v;
-          filled++;
-        }
-      }
-    }
-    const refs = spans.slice(0, 5).map((m) => m.ref).join(', ') + (spans.length > 5 ? ', ...' : '');
-    notes.push(`${table.headers[g]}: ${filled} cell${filled === 1 ? '' : 's'} in ${spans.length} merged area${spans.length === 1 ? '' : 's'} (${refs}) took the merged value, so every row of an area is in the group its label names`);
-  }
-  return notes;
 }
 
 /** What happened to the review marks of an earlier run, when there were any. */

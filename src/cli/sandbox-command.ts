@@ -21,7 +21,7 @@ import { findColumn, validateSettings, type SettingWords, type SettingsInput } f
 import { parseFlags, settingOptionSpec, settingsFromOptions, settingWords } from './args.js';
 import { nodePipeline } from './threads.js';
 import { LOG_SHEET_NAME } from '../workbook/notes.js';
-import { officeClientFor } from './office-client.js';
+import { clientSettled, officeClientFor } from './office-client.js';
 import { REVIEW_STATUSES } from '../report/index.js';
 import { columnFromLetters, columnLetters } from '../report/columns.js';
 
@@ -205,6 +205,7 @@ export async function runSandboxCommand(argv: string[]): Promise<number> {
         t = await layer.detect();
       }
       const beforeRun = sb.snapshot();
+      if (host) await clientSettled();
       sb.failSyncAt(args.failSync);
       let error: string | null = null;
       try {

@@ -27,3 +27,4 @@ export {
   type PipelinePort,
   type ToWorker,
 } from './offthread.js';
+export { fillMergedKeys, mergedUncheckedNote, type MergedArea } from './merged.js';

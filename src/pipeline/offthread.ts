@@ -91,6 +91,7 @@ export type ToWorker =
       readonly reasonText?: 'eager' | 'on-demand';
       readonly marks?: PipelineContext['marks'];
       readonly previousMarks?: PipelineContext['previousMarks'];
+      readonly inputNotes?: PipelineContext['inputNotes'];
       /** Table columns whose cells will be sent (the others are not needed by the run). */
       readonly columns: readonly number[];
       /** Rows per message for the plan's columns on the way back. */
@@ -169,6 +170,7 @@ export function servePipeline(post: PostToHost): (msg: ToWorker) => void {
             ...(start.reasonText ? { reasonText: start.reasonText } : {}),
             ...(start.marks ? { marks: start.marks } : {}),
             ...(start.previousMarks ? { previousMarks: start.previousMarks } : {}),
+            ...(start.inputNotes ? { inputNotes: start.inputNotes } : {}),
             onScored: () => post({ type: 'progress', id, phase: 'planning', fraction: 0 }),
           });
           // Plan columns go in row slices: one large message would hold the receiving thread
@@ -281,6 +283,7 @@ export function createWorkerPipeline(spawn: () => PipelinePort, options: WorkerP
       port.post({ type: 'start', id, shape, settings: input, when: ctx.when.getTime(), ...(ctx.reasonText ? { reasonText: ctx.reasonText } : {}),
         ...(ctx.marks ? { marks: ctx.marks } : {}),
         ...(ctx.previousMarks ? { previousMarks: ctx.previousMarks } : {}),
+        ...(ctx.inputNotes ? { inputNotes: ctx.inputNotes } : {}),
         columns: needed,
         sliceRows,
       });

@@ -12,7 +12,8 @@ const HEADER_HEIGHT = 24;
 const ROW_HEADER_WIDTH = 56;
 const OVERSCAN = 10;
 const MIN_COL_WIDTH = 64;
-const MAX_COL_WIDTH = 220;
+/** Widest column drawn (px): Tailmark's widest result column (60 characters) fits. */
+const MAX_COL_WIDTH = 480;
 
 const useStyles = makeStyles({
   scroller: {

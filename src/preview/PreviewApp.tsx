@@ -18,10 +18,13 @@ import {
 } from '@fluentui/react-components';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { SandboxWorkbook } from '../sandbox/index.js';
+import { downloadBlob } from '../taskpane/download.js';
 import { browserPipeline } from '../taskpane/offThread.js';
 import { TailmarkPane } from '../taskpane/Pane.js';
 import type { ThemeName } from '../taskpane/theme.js';
 import { createWorkbookLayer, type ExcelRunner } from '../workbook/layer.js';
+import type { CsvChoices, CsvFound } from './csv.js';
+import { FileChoices } from './FileChoices.js';
 import { Grid } from './Grid.js';
 import { a1, sandboxSource } from './sandboxSource.js';
 
@@ -109,6 +112,9 @@ declare global {
   }
 }
 
+/** Delimited text: read by the shared tabular reader (src/table). */
+const isDelimited = (file: File) => /\.(csv|tsv|txt)$/i.test(file.name) || file.type === 'text/csv' || file.type === 'text/tab-separated-values';
+
 function delayed(sb: SandboxWorkbook, ms: number, bump: () => void): ExcelRunner {
   return async (options, batch) => {
     try {
@@ -137,6 +143,8 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
   const [busy, setBusy] = useState(false);
   /** Opening or downloading a file: what is happening and how far (null: not known). */
   const [work, setWork] = useState<{ what: string; fraction: number | null } | null>(null);
+  /** The opened delimited file, what its reading found and the reviewer's choices (null: not a delimited file). */
+  const [csv, setCsv] = useState<{ file: File; found: CsvFound; choices: CsvChoices } | null>(null);
   const fileRef = useRef<HTMLInputElement>(null);
   const bump = useCallback(() => setVersion((v) => v + 1), []);
   const source = useMemo(() => sandboxSource(book.sb), [book]);
@@ -194,22 +202,24 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
     };
   }, [book, bump]);
 
-  const open = async (file: File) => {
+  const open = async (file: File, choices: CsvChoices = {}) => {
     setBusy(true);
     setMessage(null);
     try {
       let sb: SandboxWorkbook;
       setWork({ what: `Opening ${file.name}`, fraction: null });
-      if (/\.csv$/i.test(file.name) || file.type === 'text/csv') {
+      if (isDelimited(file)) {
         const { openCsv } = await import('./openCsv.js');
-        sb = await openCsv(file, file.name.replace(/\.csv$/i, '').slice(0, 31) || 'Sheet1', (fraction) =>
+        const read = await openCsv(file, file.name.replace(/\.(csv|tsv|txt)$/i, '').slice(0, 31) || 'Sheet1', choices, (fraction) =>
           setWork({ what: `Opening ${file.name}`, fraction }),
         );
+        sb = read.sb;
+        setCsv({ file, found: read.found, choices });
       } else {
-        // One import of the bridge (which holds ExcelJS) for opening and downloading: the bundle then has
-        // one ExcelJS chunk, not two.
-        const { readXlsx, sandboxFromExcelJs } = await import('../sandbox/exceljs-bridge.js');
-        sb = sandboxFromExcelJs(await readXlsx(await file.arrayBuffer()));
+        setCsv(null);
+        // Read in a worker (ExcelJS and the sandbox built there), handed over in parts.
+        const { openXlsx } = await import('./openXlsx.js');
+        sb = await openXlsx(file, (fraction) => setWork({ what: `Opening ${file.name}`, fraction }));
       }
       const first = sb.sheetNames()[0];
       sb.setSelection(first, 'A1');
@@ -217,7 +227,9 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
       setSheet(first);
       setMessage({ intent: 'info', text: `Opened ${file.name}. It stays in this browser tab; nothing is uploaded.` });
     } catch (e) {
-      setMessage({ intent: 'error', text: `Could not open ${file.name}: ${e instanceof Error ? e.message : String(e)}. Open an .xlsx or .csv file.` });
+      // The shared reader names the batch command's option; here the choice is the pane's control.
+      const why = (e instanceof Error ? e.message : String(e)).replace(/^--header-row (\d+): /, 'Header row $1: ');
+      setMessage({ intent: 'error', text: `Could not open ${file.name}: ${why}. Open an .xlsx, .csv or .tsv file.` });
     } finally {
       setBusy(false);
       setWork(null);
@@ -234,12 +246,7 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
       const wb = sandboxToExcelJs(book.sb);
       const buf = await wb.xlsx.writeBuffer();
       const blob = new Blob([buf], { type: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet' });
-      const url = URL.createObjectURL(blob);
-      const a = document.createElement('a');
-      a.href = url;
-      a.download = `${book.name.replace(/\.(xlsx|csv)$/i, '').replace(/[^\w.-]+/g, '-')}-tailmark.xlsx`;
-      a.click();
-      setTimeout(() => URL.revokeObjectURL(url), 10_000);
+      downloadBlob(blob, `${book.name.replace(/\.(xlsx|csv|tsv|txt)$/i, '').replace(/[^\w.-]+/g, '-')}-tailmark.xlsx`);
     } catch (e) {
       setMessage({ intent: 'error', text: `Could not build the .xlsx: ${e instanceof Error ? e.message : String(e)}.` });
     } finally {
@@ -265,13 +272,13 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
         <section className={mergeClasses(s.book, view === 'pane' && s.hidden)} aria-label="Workbook">
           <div className={s.tools}>
             <Button size="small" onClick={() => fileRef.current?.click()} disabled={busy} data-testid="open-file">
-              Open .xlsx or .csv…
+              Open .xlsx, .csv or .tsv…
             </Button>
             <input
               ref={fileRef}
               className={s.hidden}
               type="file"
-              accept=".xlsx,.csv,text/csv,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
+              accept=".xlsx,.csv,.tsv,.txt,text/csv,text/tab-separated-values,text/plain,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
               data-testid="file-input"
               onChange={(e) => {
                 const f = e.target.files?.[0];
@@ -304,7 +311,13 @@ export function PreviewApp({ initial, theme, syncDelay, view }: PreviewProps) {
           <Grid source={source} sheet={shown} version={version} onSelect={select} onEdit={edit} />
         </section>
         <aside className={mergeClasses(s.pane, view === 'pane' && s.paneOnly)} aria-label="Tailmark task pane">
-          <TailmarkPane key={book.id} layer={layer} />
+          <TailmarkPane
+            key={book.id}
+            layer={layer}
+            fileChoices={
+              csv && <FileChoices name={csv.file.name} found={csv.found} choices={csv.choices} onChoose={(c) => void open(csv.file, c)} />
+            }
+          />
         </aside>
       </div>
     </div>

@@ -11,6 +11,7 @@ export {
   STATUS_HEADER,
   resultHeaders,
   statusLabel,
+  widthToShow,
   type ReviewState,
 } from './style.js';
 export { planToJson, planJsonChunks, type PlanJson } from './json.js';

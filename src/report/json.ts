@@ -3,7 +3,7 @@
  * gives the same document as text a chunk at a time, so the batch command streams it at any size
  * (a full-height sheet never holds one object per row or the whole text); `planToJson` is the object.
  */
-import { describeGroupRule } from '../scoring/index.js';
+import { describeGroupRule, type Description } from '../scoring/index.js';
 import { POPULATIONS, type RawCell } from '../scoring/types.js';
 import type { Plan } from './types.js';
 
@@ -45,7 +45,7 @@ function rowEntry(col: Column, r: number, ids: readonly RawCell[] | null, multi:
 }
 
 /** One group of one value column as the JSON sink gives it. */
-function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): Record<string, unknown> {
+function groupEntry(col: Column, g: Column['groups'][number], d: Description, multi: boolean): Record<string, unknown> {
   const entry: Record<string, unknown> = {
     key: g.label,
     n: g.n,
@@ -54,8 +54,8 @@ function groupEntry(col: Column, g: Column['groups'][number], multi: boolean): R
     lower: g.lower,
     upper: g.upper,
     flagged: g.flagged,
-    medcouple: g.medcouple,
-    rule: describeGroupRule(col.method, g.medcouple),
+    medcouple: d.medcouple,
+    rule: describeGroupRule(col.method, g.medcouple ?? d.medcouple),
     chanceRate: g.chanceRate,
     unreachable: g.unreachable,
   };
@@ -79,10 +79,10 @@ export function planToJson(plan: Plan): PlanJson {
   const ids = idCells(plan);
   const rows: Record<string, unknown>[] = [];
   const groups: Record<string, unknown>[] = [];
-  for (const col of result.columns) {
+  result.columns.forEach((col, c) => {
     for (let r = 0; r < result.rowCount; r++) rows.push(rowEntry(col, r, ids, multi));
-    for (const g of col.groups) groups.push(groupEntry(col, g, multi));
-  }
+    col.groups.forEach((g, i) => groups.push(groupEntry(col, g, plan.descriptions[c].groups[i], multi)));
+  });
   return { method: result.options.method, cutoff: result.options.cutoff, decimal: decimalOf(plan), rows, groups };
 }
 
@@ -110,9 +110,9 @@ export function* planJsonChunks(plan: Plan): Generator<string> {
   }
   buf += `${first ? '' : '\n  '}],\n  "groups": [`;
   first = true;
-  for (const col of result.columns) {
-    for (const g of col.groups) {
-      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(groupEntry(col, g, multi))}`;
+  for (const [c, col] of result.columns.entries()) {
+    for (const [i, g] of col.groups.entries()) {
+      buf += `${first ? '\n' : ',\n'}    ${JSON.stringify(groupEntry(col, g, plan.descriptions[c].groups[i], multi))}`;
       first = false;
     }
   }

@@ -2,7 +2,7 @@
  * buildPlan: turn a ScoreResult into what a run writes (result columns, highlight rules, notes sheet,
  * log entry). Pure; every sink (Office.js, xlsx, JSON) applies the same plan.
  */
-import { defaultCutoff, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN } from '../scoring/index.js';
+import { defaultCutoff, describeColumn, describeCutoff, describeGroupRule, explainRowShort, maxReach, oneInN, type Description } from '../scoring/index.js';
 import { describeFallback } from '../scoring/fallbacks.js';
 import { columnLetters } from './columns.js';
 import { describeDecimal } from './decimal.js';
@@ -27,6 +27,7 @@ import {
   STATUS_HEADER,
   resultHeaders,
   statusLabel,
+  widthToShow,
 } from './style.js';
 
 export interface PlanContext {
@@ -144,30 +145,30 @@ function flagWord(col: ColumnScores, r: number): PlanCell {
   return g && g.lower !== null && v < g.lower ? FLAG_WORDS.low : FLAG_WORDS.high;
 }
 
-function groupRow(g: GroupStats, method: MethodId): PlanCell[] {
+function groupRow(g: GroupStats, d: Description, method: MethodId): PlanCell[] {
   return [
     g.label,
     g.rows,
     g.n,
-    tidy(g.median),
-    tidy(g.mad),
-    tidy(g.scaledMad),
-    tidy(g.mean),
-    tidy(g.sd),
-    tidy(g.q1),
-    tidy(g.q3),
+    tidy(d.median),
+    tidy(d.mad),
+    tidy(d.scaledMad),
+    tidy(d.mean),
+    tidy(d.sd),
+    tidy(d.q1),
+    tidy(d.q3),
     tidy(g.lower),
     tidy(g.upper),
     g.flagged,
     g.fallbacks.length ? g.fallbacks.map((f) => describeFallback(f)).join(' ') : '',
     POPULATION_WORDS[g.population],
-    g.medcouple === null ? null : Math.round(g.medcouple * 1000) / 1000,
-    describeGroupRule(method, g.medcouple),
+    d.medcouple === null ? null : Math.round(d.medcouple * 1000) / 1000,
+    describeGroupRule(method, g.medcouple ?? d.medcouple),
     g.chanceRate === null ? null : `${g.chanceRateAtMost ? 'fewer than 1 in ' + oneInN(g.chanceRate).replace('about 1 in ', '') : oneInN(g.chanceRate)}`,
   ];
 }
 
-const byLabel = (a: GroupStats, b: GroupStats) => (a.label < b.label ? -1 : a.label > b.label ? 1 : 0);
+const byLabel = (a: { g: GroupStats }, b: { g: GroupStats }) => (a.g.label < b.g.label ? -1 : a.g.label > b.g.label ? 1 : 0);
 
 const GROUP_TABLE_HEADER: PlanCell[] = [
   'Group', 'Rows', 'n (amounts used)', 'Median', 'MAD', 'Scaled MAD (1.4826 x MAD)', 'Mean', 'SD', 'Q1', 'Q3',
@@ -177,6 +178,8 @@ const GROUP_TABLE_HEADER: PlanCell[] = [
 /** Build the plan of a run. */
 export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
   const { options } = result;
+  // Every descriptive statistic of every group: the notes sheet's group table and --json show them.
+  const descriptions = result.columns.map((col) => describeColumn(col));
   const rows = result.rowCount;
   const columns: PlanColumn[] = [];
   const anyFlag = new Uint8Array(rows);
@@ -195,10 +198,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       if (col.flagged[r]) anyFlag[r] = 1;
       if (Number.isFinite(col.scores[r])) anyScore[r] = 1;
     }
-    columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: 12 });
-    columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: 15 });
+    columns.push({ header: h.score, kind: 'score', valueColumn: col.column, values: score, numberFormat: '0.00', width: widthToShow(h.score, 12) });
+    columns.push({ header: h.flag, kind: 'flag', valueColumn: col.column, values: flag, width: widthToShow(h.flag, 15) });
     const reasonValues: readonly PlanCell[] = lazy ? onDemandArray<PlanCell>(rows, (r) => explainRowShort(result, col, r)) : reason;
-    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: 42 });
+    columns.push({ header: h.reason, kind: 'reason', valueColumn: col.column, values: reasonValues, width: widthToShow(h.reason, 42) });
   });
   const open = statusLabel('open');
   const status: PlanCell[] = new Array<PlanCell>(rows);
@@ -211,8 +214,8 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     flaggedRows += anyFlag[r];
     scoredRows += anyScore[r];
   }
-  columns.push({ header: STATUS_HEADER, kind: 'status', valueColumn: null, values: status, width: 16 });
-  columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: 32 });
+  columns.push({ header: STATUS_HEADER, kind: 'status', valueColumn: null, values: status, width: widthToShow(STATUS_HEADER, 16) });
+  columns.push({ header: NOTE_HEADER, kind: 'note', valueColumn: null, values: note, width: widthToShow(NOTE_HEADER, 32) });
 
   const when = ctx.when.toISOString();
   const methodName = METHOD_NAMES[options.method];
@@ -265,13 +268,15 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
       ['Claim ID column', ctx.idColumn ?? '(none)'],
     ],
   });
-  for (const col of result.columns) {
+  result.columns.forEach((col, c) => {
+    const d = descriptions[c];
+    const byGroup = col.groups.map((g, i) => ({ g, d: d.groups[i] })).sort(byLabel);
     sections.push({
       title: `Groups: ${col.column}`,
       table: true,
-      rows: [GROUP_TABLE_HEADER, ...[...col.groups].sort(byLabel).map((g) => groupRow(g, col.method)), groupRow(col.pooled, col.method)],
+      rows: [GROUP_TABLE_HEADER, ...byGroup.map((x) => groupRow(x.g, x.d, col.method)), groupRow(col.pooled, d.whole, col.method)],
     });
-  }
+  });
   const excludedRows: PlanCell[][] = [['Column', 'Reason', 'Cells']];
   for (const col of result.columns) {
     for (const reason of EXCLUSION_REASONS) {
@@ -342,6 +347,7 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     log,
     caution: CAUTION,
     result,
+    descriptions,
     table: ctx.table,
     idColumn: ctx.idColumn ?? null,
   };

@@ -44,6 +44,19 @@ export const STATUS_HEADER = 'Tailmark status';
 export const NOTE_HEADER = 'Tailmark note';
 export const NOTES_SHEET_NAME = 'Tailmark notes';
 
+/** Widest column we give a result column, in characters (a longer header wraps or is cut). */
+export const MAX_COLUMN_CHARS = 60;
+
+/**
+ * Width (in characters of the sheet's default font, the unit of Excel's and xlsx column widths)
+ * that shows `text` in bold plus a margin: 1.15 characters per character + 2 (common practice,
+ * no source: bold proportional text runs up to about 15 % wider than the digit a width counts),
+ * at least `least`, at most MAX_COLUMN_CHARS.
+ */
+export function widthToShow(text: string, least: number): number {
+  return Math.min(MAX_COLUMN_CHARS, Math.max(least, Math.ceil([...text].length * 1.15) + 2));
+}
+
 /** Headers of the three result columns of one value column. */
 export function resultHeaders(valueColumn: string): { score: string; flag: string; reason: string } {
   return {

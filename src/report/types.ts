@@ -4,6 +4,7 @@
  */
 
 import type { ScoreResult, SourceTable } from '../scoring/types.js';
+import type { ColumnDescription } from '../scoring/describe.js';
 /** A cell value a sink writes. Strings are always written as text (never as formulas). */
 export type PlanCell = string | number | boolean | null;
 
@@ -89,6 +90,8 @@ export interface Plan {
   readonly caution: string;
   /** What the plan was made from, for sinks that report the numbers themselves (JSON). */
   readonly result: ScoreResult;
+  /** The descriptive statistics of each value column's groups and whole column (`describeColumn`), in the order of `result.columns`. */
+  readonly descriptions: readonly ColumnDescription[];
   readonly table: SourceTable;
   readonly idColumn: string | null;
 }

@@ -165,6 +165,8 @@ export function sandboxFromExcelJs(wb: ExcelJS.Workbook): SandboxWorkbook {
         stopIfTrue: false,
       });
     }
+    // Merged cells (as the file lists them; their other cells are blank there too).
+    for (const m of (ws.model as { merges?: string[] }).merges ?? []) s.merges.push(...rectsOf(m));
     // Data validations (exceljs keys them by address or range).
     const dvs = internals(ws).dataValidations.model;
     const byRule = new Map<string, Rect[]>();
@@ -269,6 +271,7 @@ export function sandboxToExcelJs(sb: SandboxWorkbook): ExcelJS.Workbook {
       }
     }
     for (const [c, w] of s.widths) ws.getColumn(c + 1).width = pointsToChars(w);
+    for (const m of s.merges) ws.mergeCells(formatRect(m));
     s.cfs.forEach((cf, i) => {
       const style: Record<string, unknown> = {};
       if (cf.fill) style.fill = { type: 'pattern', pattern: 'solid', bgColor: { argb: hexToArgb(cf.fill) } };

@@ -389,8 +389,11 @@ function idProp(x: readonly string[] | ProxyBase<unknown>): string | null {
 function valueOf(n: ProxyBase<unknown>, select: readonly string[], idName: string | null): unknown {
   if (n instanceof CollectionBase) {
     const list: ProxyBase<unknown>[] = (n as CollectionBase<unknown, ProxyBase<unknown>>).items;
+    // The client names item properties with or without "items/" (a collection reached through a
+    // navigation property, such as RangeAreas.areas, keeps the prefix).
+    const itemSelect = select.map((p) => (p.startsWith('items/') ? p.slice(6) : p)).filter((p) => p !== 'items');
     const items = list.map((it) => {
-      const v = objectValue(it, select);
+      const v = objectValue(it, itemSelect);
       if (idName) {
         const id = it._data[idName];
         if (id !== undefined) v._Id = id;

@@ -18,6 +18,9 @@ const RANGE_SCALARS = [
   'rowIndex', 'columnIndex', 'rowCount', 'columnCount', 'cellCount', 'isEntireColumn', 'isEntireRow',
 ] as const;
 
+/** Merged areas Range.getMergedAreasOrNullObject returns at most (Microsoft's documentation of the method). */
+export const MAX_MERGED_AREAS = 512;
+
 export class RangeProxy extends ProxyBase<RangeTarget> {
   protected readonly entity = 'Range';
   protected readonly scalars = RANGE_SCALARS;
@@ -354,6 +357,21 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
       if (t.sheet.visibility !== 'Visible') throw err('InvalidOperation', `Cannot select on hidden sheet "${t.sheet.name}".`, 'Range.select');
       m.activeSheetId = t.sheet.id;
       m.selection = { sheetId: t.sheet.id, areas: [{ ...t.rect }] };
+    });
+  }
+  /**
+   * The merged areas that meet this range, whole (ExcelApi 1.13); a null object when there are
+   * none. Excel refuses more than 512 areas: so does the sandbox.
+   */
+  getMergedAreasOrNullObject(): RangeAreasProxy {
+    return new RangeAreasProxy(this.context, `${this.path}.getMergedAreasOrNullObject()`, true, () => {
+      const t = this.target();
+      const rects = t.sheet.merges.filter((m) => intersect(m, t.rect) !== null);
+      if (rects.length === 0) return null;
+      if (rects.length > MAX_MERGED_AREAS) {
+        throw err('GeneralException', `The range has ${rects.length} merged areas; Excel returns at most ${MAX_MERGED_AREAS}.`, 'Range.getMergedAreasOrNullObject');
+      }
+      return { sheet: t.sheet, rects: rects.map((m) => ({ ...m })) };
     });
   }
   getTables(fullyContained?: boolean): TableCollectionProxy {

@@ -73,6 +73,8 @@ export class SheetModel {
   /** In priority order: index 0 is priority 0 (evaluated first). */
   cfs: ConditionalFormatModel[] = [];
   validations: ValidationModel[] = [];
+  /** Merged areas (set up by tests and the ExcelJS bridge; the layer never merges). */
+  merges: Rect[] = [];
   protected = false;
   visibility: 'Visible' | 'Hidden' | 'VeryHidden' = 'Visible';
   constructor(readonly id: string, public name: string) {}

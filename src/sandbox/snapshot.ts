@@ -5,7 +5,7 @@
  * Runs in Node and in the browser (no Node-only imports).
  */
 import { columnLetters, formatRect } from './address.js';
-import { CellError, ATTRS, type Attr, type SheetModel, type StoredValue, type WorkbookModel } from './model.js';
+import { CellError, ATTRS, DEFAULT_COLUMN_WIDTH, type Attr, type SheetModel, type StoredValue, type WorkbookModel } from './model.js';
 
 export interface CellSnapshot {
   value?: number | string | boolean | { error: string };
@@ -62,7 +62,9 @@ export function snapshotOf(m: WorkbookModel): SandboxSnapshot {
       }
     }
     const columnWidths: Record<string, number> = {};
-    for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) columnWidths[columnLetters(c)] = w;
+    // A column set to the standard width looks, prints and reads (RangeFormat.columnWidth) the same
+    // as one never set, and Excel has no call to un-set a width: such columns are left out.
+    for (const [c, w] of [...s.widths].sort((x, y) => x[0] - y[0])) if (w !== DEFAULT_COLUMN_WIDTH) columnWidths[columnLetters(c)] = w;
     return {
       name: s.name, position, visibility: s.visibility, protected: s.protected, cells, columnWidths,
       tables: s.tables.map((t) => ({ name: t.name, address: formatRect(t.rect), showHeaders: t.showHeaders })),

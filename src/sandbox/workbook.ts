@@ -6,7 +6,7 @@
  *
  * Runs in Node and in the browser (no Node-only imports).
  */
-import { type Rect, rect, parseAddress, formatRect, formatAddress, columnIndex, MAX_COLS, MAX_ROWS } from './address.js';
+import { type Rect, rect, parseAddress, formatRect, formatAddress, columnIndex, intersect, MAX_COLS, MAX_ROWS } from './address.js';
 import { SandboxError } from './errors.js';
 import { CellError, WorkbookModel, type SheetModel, type StoredValue, dateToSerial, normaliseColour } from './model.js';
 import { SandboxContext, type SandboxOptions } from './context.js';
@@ -310,6 +310,15 @@ export class SandboxWorkbook {
 
   setProtected(sheet: string, on: boolean): void {
     this.sheet(sheet).protected = on;
+  }
+
+  /** Merge cells directly, as a user would (the first cell keeps its value; the others are emptied, as Excel does). */
+  mergeCells(sheet: string, address: string): void {
+    const s = this.sheet(sheet);
+    const r = this.rectOf(address);
+    if (s.merges.some((m) => intersect(m, r) !== null)) throw new Error(`${address} overlaps a merged area.`);
+    for (let i = 0; i < r.rows; i++) for (let j = 0; j < r.cols; j++) if (i > 0 || j > 0) this.setCell(sheet, r.r0 + i, r.c0 + j, null);
+    s.merges.push(r);
   }
 
   /** Add a table directly (headers must already be in the first row). */

@@ -67,7 +67,7 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
       ? `${fences}, ${iqrName}${log ? ' of ln amounts' : ''} ${formatNumber(stats.scale ?? 0, 3)} (between Tukey's hinges), medcouple ${mc === null ? 'n/a' : formatNumber(mc, 2)}, n = ${stats.n}`
       : log
         ? `${fences}, ${iqrName} of ln amounts ${formatNumber(stats.scale ?? 0, 3)}, n = ${stats.n}`
-        : `Q1 ${fmtQ(stats, 'q1')}, Q3 ${fmtQ(stats, 'q3')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
+        : `Q1 ${fmtQ(stats, 'low')}, Q3 ${fmtQ(stats, 'high')}, ${iqrName} ${scaleText(stats.scale)}, ${fences}, n = ${stats.n}`;
     const unitWord = adjusted ? 'skew-adjusted IQRs' : 'IQRs';
     const where = z > 0
       ? `is ${formatScore(z)} ${unitWord}${logNote} above the upper fence of ${against}`
@@ -85,8 +85,8 @@ export function explainRow(result: ScoreResult, col: ColumnScores, row: number):
   return `${amount} ${lead} (${centreName} ${centreText(stats.center)}, ${scaleName} ${scaleText(stats.scale)}, n = ${stats.n}); ${cut}. ${tail}`;
 }
 
-function fmtQ(s: GroupStats, which: 'q1' | 'q3'): string {
-  const v = s[which];
+function fmtQ(s: GroupStats, which: 'low' | 'high'): string {
+  const v = s.fenceFrom === null ? null : s.fenceFrom[which];
   return v === null ? 'n/a' : formatNumber(v);
 }
 

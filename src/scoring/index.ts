@@ -4,6 +4,7 @@ export { parseCell, EXCEL_ERROR_LITERALS, CURRENCY_CODES, CURRENCY_SYMBOLS } fro
 export { inferDecimal, decimalEvidence } from './inferDecimal.js';
 export { groupRows, keyPart, BLANK_KEY_LABEL, ALL_ROWS_LABEL, KEY_SEPARATOR, LABEL_SEPARATOR, type Grouping } from './groups.js';
 export { scoreTable, resolveOptions, WHOLE_COLUMN_LABEL } from './scoreTable.js';
+export { describeColumn, describePopulation, describeRows, type ColumnDescription, type Description } from './describe.js';
 export { explainRow, explainRowShort } from './explainRow.js';
 export { formatNumber, formatScore, formatCutoff } from './format.js';
 export { defaultCutoff, tailProbability, oneInN, describeCutoff, cutoffForBudget, countFlaggedAt, iqrFenceInSds } from './cutoff.js';

@@ -10,21 +10,26 @@ import { toFloat64Copy } from './quickselect.js';
 export const MAD_NORMAL_CONSTANT = 1.4826;
 
 /**
- * Median absolute deviation of `a[0..n-1]` around `center`, using `dev` (length >= n) as scratch.
- * Does not change `a`; overwrites `dev[0..n-1]`.
+ * dev[i] = |a[i] - center| for i < n (`dev` may be `a` itself); returns the sum of those
+ * deviations (n x the mean absolute deviation around `center`). O(n).
  */
-export function madAround(a: Float64Array, n: number, center: number, dev: Float64Array): number {
-  if (n <= 0) return NaN;
-  for (let i = 0; i < n; i++) dev[i] = Math.abs(a[i] - center);
-  return medianInPlace(dev, n);
+export function absDeviations(a: ArrayLike<number>, n: number, center: number, dev: Float64Array): number {
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    const d = Math.abs(a[i] - center);
+    dev[i] = d;
+    sum += d;
+  }
+  return sum;
 }
 
 /**
  * Raw (unscaled) median absolute deviation: MAD = median_i |x_i - median(x)|. Multiply by
  * `MAD_NORMAL_CONSTANT` (1.4826) for a normal-consistent scale; `mad(xs, MAD_NORMAL_CONSTANT)`
- * equals R's `mad(x)` and `mad(xs)` equals R's `mad(x, constant = 1)`.
+ * equals R's `mad(x)` and `mad(xs)` equals R's `mad(x, constant = 1)`. The engine computes its
+ * MADs with the same two steps (`medianInPlace`, `absDeviations`, then `medianInPlace`).
  *
- * Cost: O(n) expected (two quickselects on Float64Array copies; the input is never mutated).
+ * Cost: O(n) expected (two quickselects on a Float64Array copy; the input is never mutated).
  * Degenerate input: empty -> NaN; a sample where more than half the values are equal -> 0 (the
  * engine then falls back to the mean absolute deviation, see `meanAbsoluteDeviation`).
  * Source: F. R. Hampel, "The influence curve and its role in robust estimation", JASA 69, 1974;
@@ -35,5 +40,6 @@ export function mad(xs: ArrayLike<number>, constant = 1): number {
   const n = a.length;
   if (n === 0) return NaN;
   const med = medianInPlace(a, n);
-  return constant * madAround(a, n, med, a);
+  absDeviations(a, n, med, a);
+  return constant * medianInPlace(a, n);
 }

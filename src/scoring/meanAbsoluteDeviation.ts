@@ -1,4 +1,6 @@
-import { median } from './median.js';
+import { absDeviations } from './mad.js';
+import { medianInPlace } from './median.js';
+import { toFloat64Copy } from './quickselect.js';
 
 /**
  * Factor that turns the mean absolute deviation into a normal-consistent scale:
@@ -9,16 +11,9 @@ import { median } from './median.js';
  */
 export const MEANAD_NORMAL_CONSTANT = Math.sqrt(Math.PI / 2);
 
-/** Mean absolute deviation of `a[0..n-1]` around `center`. O(n); does not change `a`. n = 0 -> NaN. */
-export function meanAbsDevAround(a: Float64Array, n: number, center: number): number {
-  if (n <= 0) return NaN;
-  let s = 0;
-  for (let i = 0; i < n; i++) s += Math.abs(a[i] - center);
-  return s / n;
-}
-
 /**
- * Mean absolute deviation around the median: (1/n) sum_i |x_i - median(x)|.
+ * Mean absolute deviation around the median: (1/n) sum_i |x_i - median(x)|, computed as the
+ * engine does (`medianInPlace`, then `absDeviations`).
  *
  * Cost: O(n) expected (one quickselect for the median on a copy, one pass).
  * Degenerate input: empty -> NaN; all values equal -> 0.
@@ -26,10 +21,9 @@ export function meanAbsDevAround(a: Float64Array, n: number, center: number): nu
  * Statistical Methods, 1.3.5.6 "Measures of Scale", "average absolute deviation").
  */
 export function meanAbsoluteDeviation(xs: ArrayLike<number>): number {
-  const n = xs.length;
+  const a = toFloat64Copy(xs);
+  const n = a.length;
   if (n === 0) return NaN;
-  const med = median(xs);
-  let s = 0;
-  for (let i = 0; i < n; i++) s += Math.abs(xs[i] - med);
-  return s / n;
+  const med = medianInPlace(a, n);
+  return absDeviations(a, n, med, a) / n;
 }

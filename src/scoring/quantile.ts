@@ -1,18 +1,21 @@
 import { minOfRange, quickselect, toFloat64Copy } from './quickselect.js';
 
 /**
- * Type-7 quantile of `a[0..n-1]`, rearranging that range (quickselect). MUTATES `a`.
- * Several calls on the same buffer are fine: each works on whatever permutation it finds.
+ * Type-7 quantile p of buf[0..n-1] when its order-statistic positions lie within [left, right] and
+ * that range already holds exactly the elements of those ranks (left of it smaller, right larger):
+ * [0, n - 1] for any buffer, or a half that a median selection left (`medianInPlace`). Rearranges
+ * that range (quickselect). The engine's one quantile.
  */
-export function quantileInPlace(a: Float64Array, n: number, p: number): number {
-  if (n <= 0 || !(p >= 0 && p <= 1)) return NaN;
+export function typeSevenWithin(buf: Float64Array, n: number, p: number, left: number, right: number): number {
   const h = (n - 1) * p;
   const lo = Math.floor(h);
-  quickselect(a, lo, 0, n - 1);
-  const xlo = a[lo];
+  quickselect(buf, lo, left, right);
+  const xlo = buf[lo];
   const frac = h - lo;
   if (frac === 0 || lo + 1 >= n) return xlo;
-  const xhi = minOfRange(a, lo + 1, n - 1);
+  // The next order statistic is the smallest element after position lo; elements beyond `right`
+  // are all >= buf[right], so only (lo, right] needs scanning when lo < right.
+  const xhi = lo + 1 <= right ? minOfRange(buf, lo + 1, right) : minOfRange(buf, lo + 1, n - 1);
   return xlo + frac * (xhi - xlo);
 }
 
@@ -29,5 +32,7 @@ export function quantileInPlace(a: Float64Array, n: number, p: number): number {
  */
 export function quantile(xs: ArrayLike<number>, p: number): number {
   const a = toFloat64Copy(xs);
-  return quantileInPlace(a, a.length, p);
+  const n = a.length;
+  if (n === 0 || !(p >= 0 && p <= 1)) return NaN;
+  return typeSevenWithin(a, n, p, 0, n - 1);
 }

@@ -1,15 +1,17 @@
 import { medcoupleSorted } from './medcouple.js';
-import { medianInPlace } from './median.js';
+import { absDeviations } from './mad.js';
+import { medianInPlace, medianSorted } from './median.js';
+import { typeSevenWithin } from './quantile.js';
+import { meanAndSd } from './sampleStandardDeviation.js';
 import { tukeyHingesSorted } from './tukeyHinges.js';
-import { minOfRange, quickselect } from './quickselect.js';
-import { constantSummary, EMPTY_SUMMARY, powerOfTwoUnit, type Summary, typeSevenWithin } from './summary.js';
+import { constantSummary, EMPTY_SUMMARY, powerOfTwoUnit, type Summary } from './summary.js';
 import type { MethodId } from './types.js';
 
 
 /**
  * The statistics one method needs to score a population, and no others (engine internal, the
- * hot path of `scoreTable`); the fields a method does not need are NaN here and are computed on
- * demand by `summarize` (see `lazyStats.ts`):
+ * hot path of `scoreTable`); the fields a method does not need are NaN here (every statistic of
+ * a group, whatever the method, is `describeColumn`, describe.ts):
  * - robust: median and MAD, and the mean absolute deviation around the median (its sum comes
  *   free with the deviation pass the MAD needs; the method uses it only when MAD = 0);
  * - classic: mean and sample SD (corrected two-pass, Chan, Golub & LeVeque 1983), no copy;
@@ -48,18 +50,7 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
       a = scratch;
       lo = 0;
     }
-    const m0 = sum / n;
-    let ss = 0;
-    let c = 0;
-    const hi = lo + n;
-    for (let i = lo; i < hi; i++) {
-      const d = a[i] - m0;
-      ss += d * d;
-      c += d;
-    }
-    const mean = m0 + c / n;
-    const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
-    const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
+    const { mean, sd } = meanAndSd(a, lo, n, sum);
     return { n, unit, median: NaN, mad: NaN, meanAbsDev: NaN, mean, sd, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
   }
   if (unit === 1) {
@@ -71,14 +62,12 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
     // One sort gives the median, Tukey's hinges and the medcouple.
     const sorted = scratch.subarray(0, n).sort();
     const { low, high } = tukeyHingesSorted(sorted, n);
-    const median = n % 2 === 1 ? sorted[n >> 1] : sorted[(n >> 1) - 1] + (sorted[n >> 1] - sorted[(n >> 1) - 1]) / 2;
+    const median = medianSorted(sorted, n);
     const mc = medcoupleSorted(sorted, n);
     return { n, unit, median, mad: NaN, meanAbsDev: NaN, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: low, hingeHigh: high, medcouple: mc };
   }
   const k = (n - 1) >> 1;
-  quickselect(scratch, k, 0, n - 1);
-  const xk = scratch[k];
-  const median = n % 2 === 1 ? xk : xk + (minOfRange(scratch, k + 1, n - 1) - xk) / 2;
+  const median = medianInPlace(scratch, n);
   if (method === 'iqr') {
     const q1 = typeSevenWithin(scratch, n, 0.25, 0, k);
     const q3 = typeSevenWithin(scratch, n, 0.75, k, n - 1);
@@ -86,12 +75,7 @@ export function summarizeFor(method: MethodId, src: Float64Array, from: number, 
   }
   // robust: deviations from the median (read from the scratch, which holds the same values,
   // permuted and scaled), then their median.
-  let sad = 0;
-  for (let i = 0; i < n; i++) {
-    const d = Math.abs(scratch[i] - median);
-    scratch[i] = d;
-    sad += d;
-  }
+  const sad = absDeviations(scratch, n, median, scratch);
   const mad = medianInPlace(scratch, n);
   return { n, unit, median, mad, meanAbsDev: sad / n, mean: NaN, sd: NaN, q1: NaN, q3: NaN, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
 }

@@ -1,5 +1,7 @@
+import { absDeviations } from './mad.js';
 import { medianInPlace } from './median.js';
-import { minOfRange, quickselect } from './quickselect.js';
+import { typeSevenWithin } from './quantile.js';
+import { meanAndSd } from './sampleStandardDeviation.js';
 
 /**
  * Every statistic of one population, computed in one go on a scratch buffer (engine internal).
@@ -76,50 +78,16 @@ export function summarize(buf: Float64Array, n: number, dev: Float64Array): Summ
     for (let i = 0; i < n; i++) sum += (buf[i] /= unit);
   }
   // Mean and SD: corrected two-pass (Chan, Golub & LeVeque 1983), one pass after the sum.
-  const m0 = sum / n;
-  let ss = 0;
-  let c = 0;
-  for (let i = 0; i < n; i++) {
-    const d = buf[i] - m0;
-    ss += d * d;
-    c += d;
-  }
-  const mean = m0 + c / n;
-  const v = n >= 2 ? (ss - (c * c) / n) / (n - 1) : NaN;
-  const sd = n >= 2 ? (v > 0 ? Math.sqrt(v) : 0) : NaN;
+  const { mean, sd } = meanAndSd(buf, 0, n, sum);
   // Median, then Q1 and Q3 (type 7) selected within the halves the median selection left.
   const k = (n - 1) >> 1;
-  quickselect(buf, k, 0, n - 1);
-  const xk = buf[k];
-  const median = n % 2 === 1 ? xk : xk + (minOfRange(buf, k + 1, n - 1) - xk) / 2;
+  const median = medianInPlace(buf, n);
   const q1 = typeSevenWithin(buf, n, 0.25, 0, k);
   const q3 = typeSevenWithin(buf, n, 0.75, k, n - 1);
   // Mean absolute deviation around the median and MAD.
-  let sad = 0;
-  for (let i = 0; i < n; i++) {
-    const d = Math.abs(buf[i] - median);
-    dev[i] = d;
-    sad += d;
-  }
+  const sad = absDeviations(buf, n, median, dev);
   const mad = medianInPlace(dev, n);
   return { n, unit, median, mad, meanAbsDev: sad / n, mean, sd, q1, q3, hingeLow: NaN, hingeHigh: NaN, medcouple: NaN };
-}
-
-/**
- * Type-7 quantile p of buf[0..n-1] when its order-statistic positions lie within [left, right] and
- * that range already holds exactly the elements of those ranks (left of it smaller, right larger).
- */
-export function typeSevenWithin(buf: Float64Array, n: number, p: number, left: number, right: number): number {
-  const h = (n - 1) * p;
-  const lo = Math.floor(h);
-  quickselect(buf, lo, left, right);
-  const xlo = buf[lo];
-  const frac = h - lo;
-  if (frac === 0 || lo + 1 >= n) return xlo;
-  // The next order statistic is the smallest element after position lo; elements beyond `right`
-  // are all >= buf[right], so only (lo, right] needs scanning when lo < right.
-  const xhi = lo + 1 <= right ? minOfRange(buf, lo + 1, right) : minOfRange(buf, lo + 1, n - 1);
-  return xlo + frac * (xhi - xlo);
 }
 
 /** A summary figure back in real units, or null when undefined or not representable. */

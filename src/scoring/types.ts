@@ -123,7 +123,11 @@ export type Fallback =
   /** No score can reach the cutoff in a population of this size, whatever the amounts (`maxReach.ts`; classic z: (n-1)/sqrt(n) <= cutoff, Shiffler 1988). */
   | 'cutoff-unreachable';
 
-/** Statistics of one population (a group, or the whole column). NaN never appears: undefined stats are null. */
+/**
+ * How one population (a group, or the whole column) was scored. NaN never appears: undefined
+ * figures are null. Its descriptive statistics (median, MAD, mean, SD, quartiles, medcouple) are
+ * `describeColumn` (describe.ts), computed when a host asks for them.
+ */
 export interface GroupStats {
   /** Stable key: key column values joined by U+001F after trimming. */
   readonly key: string;
@@ -136,20 +140,17 @@ export interface GroupStats {
   /** Numeric values used (after exclusions). */
   readonly n: number;
   readonly excluded: Readonly<Record<ExclusionReason, number>>;
-  readonly median: number | null;
-  readonly mad: number | null;
-  /** 1.4826 x MAD. */
-  readonly scaledMad: number | null;
-  readonly meanAbsDev: number | null;
-  readonly mean: number | null;
-  readonly sd: number | null;
-  readonly q1: number | null;
-  readonly q3: number | null;
   /**
-   * Medcouple (Brys, Hubert & Struyf 2004): robust skewness in [-1, 1], > 0 when the upper tail is
-   * longer. Of the scoring values (ln amounts on log scale). Computed on first read (O(n log n)).
+   * The medcouple the method scored this group's own values with (adjusted, skew: of the scoring
+   * values, ln amounts on log scale); null when the method used none or the group was not scored on
+   * its own. Every group's medcouple, whatever the method, is in `describeColumn`.
    */
   readonly medcouple: number | null;
+  /**
+   * Fence methods: the quartiles the fences are measured from (IQR: Q1 and Q3, type 7; adjusted
+   * and skew: Tukey's hinges), on the scoring scale like `center`; null for the z methods.
+   */
+  readonly fenceFrom: { readonly low: number | null; readonly high: number | null } | null;
   /** Centre and scale the method used (median and scaled MAD / mean and SD / Q1..Q3 with IQR). On the log scale if logScale. */
   readonly center: number | null;
   readonly scale: number | null;
@@ -180,9 +181,8 @@ export interface GroupStats {
  *
  * The typed arrays (`values`, `scores`, `flagged`, `exclusion`, `groupOf`, `population`,
  * `fenceMultiple`) are owned by the result: callers must not mutate them (copy first, e.g.
- * `Float64Array.from(col.scores)`), because the lazily computed statistics (the descriptive
- * fields of `groups` and of `pooled` read for the first time) are built from `values`,
- * `exclusion` and `groupOf`.
+ * `Float64Array.from(col.scores)`), because `pooled` (computed on first read) and
+ * `describeColumn` read `values`, `exclusion` and `groupOf`.
  */
 export interface ColumnScores {
   readonly column: string;

@@ -1,4 +1,5 @@
 import { Text } from '@fluentui/react-components';
+import type { ReactNode } from 'react';
 import type { WorkbookLayer } from '../workbook/api.js';
 import { ChartSection } from './components/ChartSection.js';
 import { ManageSection } from './components/ManageSection.js';
@@ -10,7 +11,7 @@ import { TableSection } from './components/TableSection.js';
 import { usePaneState, type PaneModel } from './usePaneState.js';
 
 /** The pane's screens, rendered from the model only. */
-export function PaneView({ model }: { model: PaneModel }) {
+export function PaneView({ model, fileChoices }: { model: PaneModel; fileChoices?: ReactNode }) {
   const s = usePaneStyles();
   return (
     <main className={s.root} aria-label="Tailmark" data-testid="pane" aria-busy={model.state.busy !== null}>
@@ -23,7 +24,7 @@ export function PaneView({ model }: { model: PaneModel }) {
         <Text className={s.muted}>Find claims that are unusual for their peer group, and follow them up in place.</Text>
       </header>
       <TableSection model={model} />
-      <MethodSection model={model} />
+      <MethodSection model={model} fileChoices={fileChoices} />
       <ChartSection model={model} />
       <RunSection model={model} />
       <ReviewSection model={model} />
@@ -32,8 +33,11 @@ export function PaneView({ model }: { model: PaneModel }) {
   );
 }
 
-/** The task pane, given a workbook layer (real Excel or the sandbox). */
-export function TailmarkPane({ layer }: { layer: WorkbookLayer }) {
+/**
+ * The task pane, given a workbook layer (real Excel or the sandbox). `fileChoices`: controls for
+ * how a file was read (the preview page's opened .csv), shown beside the decimal separator.
+ */
+export function TailmarkPane({ layer, fileChoices }: { layer: WorkbookLayer; fileChoices?: ReactNode }) {
   const model = usePaneState(layer);
-  return <PaneView model={model} />;
+  return <PaneView model={model} fileChoices={fileChoices} />;
 }

@@ -6,7 +6,7 @@
 import { describeDecimal } from '../report/decimal.js';
 import type { ColumnScores, GroupStats, MethodId, ScoreResult } from '../scoring/types.js';
 import type { PreviewData, RunSettings } from '../workbook/api.js';
-import { defaultCutoff, describeCutoff, explainRow, mad, MAD_NORMAL_CONSTANT, mean, median, oneInN, quantile, sampleStandardDeviation } from '../scoring/index.js';
+import { defaultCutoff, describeCutoff, describeRows, explainRow, oneInN } from '../scoring/index.js';
 import { scoreColumns } from '../pipeline/run.js';
 import { cutoffForReviewBudget, type BudgetAnswer } from '../pipeline/budget.js';
 
@@ -183,9 +183,10 @@ export interface ClaimContext {
 
 /**
  * The follow-up view's context of one claim: its explanation, the centre and spread of the
- * population it was compared with (in the claim's own units, computed from the amounts: median and
- * 1.4826 x MAD for robust z, mean and SD for classic z, median and IQR for the fence methods), its bounds,
- * and a sorted sample for the strip. O(rows) for the group scan plus O(n log n) for its sort.
+ * population it was compared with (in the claim's own units, as the engine describes that
+ * population: median and 1.4826 x MAD for robust z, mean and SD for classic z, median and IQR for
+ * the fence methods), its bounds, and a sorted sample for the strip. O(rows) for the group scan
+ * plus O(n log n) for its sort.
  */
 export function claimContext(result: ScoreResult, columnIndex: number, row: number): ClaimContext | null {
   const col = result.columns[columnIndex];
@@ -206,25 +207,19 @@ export function claimContext(result: ScoreResult, columnIndex: number, row: numb
   const v = col.values[row];
   const value = Number.isNaN(v) ? null : v;
   const n = values.length;
-  const fin = (x: number) => (Number.isFinite(x) ? x : null);
   let centreName = 'median';
   let spreadName = '1.4826 × MAD';
-  let centre: number | null = null;
-  let spread: number | null = null;
-  if (n > 0) {
-    if (col.method === 'classic') {
-      centreName = 'mean';
-      spreadName = 'SD';
-      centre = fin(mean(values));
-      spread = n > 1 ? fin(sampleStandardDeviation(values)) : null;
-    } else if (col.method !== 'robust') {
-      spreadName = 'IQR';
-      centre = fin(median(values));
-      spread = fin(quantile(values, 0.75) - quantile(values, 0.25));
-    } else {
-      centre = fin(median(values));
-      spread = fin(mad(values, MAD_NORMAL_CONSTANT));
-    }
+  const d = describeRows(col, (r) => pooled || col.groupOf[r] === gi);
+  let centre = d.median;
+  let spread = d.scaledMad;
+  if (col.method === 'classic') {
+    centreName = 'mean';
+    spreadName = 'SD';
+    centre = d.mean;
+    spread = d.sd;
+  } else if (col.method !== 'robust') {
+    spreadName = 'IQR';
+    spread = d.q1 !== null && d.q3 !== null && Number.isFinite(d.q3 - d.q1) ? d.q3 - d.q1 : null;
   }
   let rankFromTop: number | null = null;
   if (value !== null && n > 0) {

@@ -2,20 +2,13 @@
  * The one hook that owns the task pane's state. It talks to the workbook only through the
  * injected `WorkbookLayer`; components receive `PaneModel` and only render it.
  */
-import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef } from 'react';
-import type { Exception, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
-import {
-  budgetCutoff,
-  chartFor,
-  claimContext,
-  followColumn,
-  previewOf,
-  scorePreview,
-  summarisePreview,
-  type ChartData,
-  type ClaimContext,
-  type PreviewSummary,
-} from './engine.js';
+import { useCallback, useDeferredValue, useEffect, useMemo, useReducer, useRef, useState } from 'react';
+import type { BudgetAnswer } from '../pipeline/budget.js';
+import { toCsv } from '../report/marksExport.js';
+import type { Exception, PreviewData, ReviewPrefs, RunSettings, WorkbookLayer } from '../workbook/api.js';
+import { downloadBlob } from './download.js';
+import type { ChartData, ClaimContext, PreviewSummary } from './engine.js';
+import { createPaneEngine } from './paneEngine.js';
 import {
   DONE_LABELS,
   initialState,
@@ -62,6 +55,8 @@ export interface PaneActions {
   readonly setCutoffReason: (text: string) => void;
   readonly askRemove: (open: boolean) => void;
   readonly remove: (includeNotes: boolean, keepMarks: boolean) => void;
+  /** Keep the marks before a removal: a CSV download or a new sheet; resolves to what happened, in words. */
+  readonly exportMarks: (to: 'csv' | 'sheet') => Promise<string>;
   readonly fold: (area: Area, folded: boolean) => void;
   readonly showAllGroups: (on: boolean) => void;
   readonly dismiss: () => void;
@@ -86,6 +81,9 @@ export interface PaneModel {
 function sameColumns(a: RunSettings, b: RunSettings): boolean {
   return JSON.stringify([a.valueColumns, a.groupColumns]) === JSON.stringify([b.valueColumns, b.groupColumns]);
 }
+
+/** File name of the marks saved before a removal. */
+const MARKS_CSV_NAME = 'tailmark-marks.csv';
 
 export function usePaneState(layer: WorkbookLayer): PaneModel {
   const [state, dispatch] = useReducer(reducer, initialState);
@@ -203,18 +201,36 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     };
   }, [key, layer]);
 
-  // Scoring follows the settings a moment later on big tables, so typing and sliding stay responsive.
+  // What-if scoring (live counts, chart, budget, the claim's context) happens in a worker that holds
+  // the pane's read of the data (paneEngine.ts); the pane's thread only asks and shows the answers.
+  const engine = useMemo(() => createPaneEngine(), []);
+  useEffect(() => () => engine.dispose(), [engine]);
   const settings = useDeferredValue(state.settings);
   const data = state.preview && state.preview.key === key ? state.preview.data : null;
+  useEffect(() => {
+    if (data) engine.setData(data);
+  }, [engine, data]);
 
-  const attempt = useMemo(() => {
-    if (!data || !settings || settings.valueColumns.length === 0) return null;
-    return previewOf(data, settings);
-  }, [data, settings]);
-  const scored = attempt?.result ?? null;
-  const previewError = attempt?.error ?? null;
-
-  const preview = useMemo(() => (scored && settings ? summarisePreview(scored, settings) : null), [scored, settings]);
+  // The live counts: the last answer stays shown until the next one arrives.
+  const [live, setLive] = useState<{ data: PreviewData; summary: PreviewSummary | null; error: string | null } | null>(null);
+  useEffect(() => {
+    if (!data || !settings || settings.valueColumns.length === 0) return;
+    let stale = false;
+    engine
+      .ask({ kind: 'summary', settings })
+      .then((a) => {
+        if (a && !stale && mounted.current) setLive({ data, summary: a.summary, error: a.error });
+      })
+      .catch((e: unknown) => {
+        if (!stale && mounted.current) setLive({ data, summary: null, error: e instanceof Error ? e.message : String(e) });
+      });
+    return () => {
+      stale = true;
+    };
+  }, [engine, data, settings]);
+  const current = live && live.data === data && settings && settings.valueColumns.length > 0 ? live : null;
+  const preview = current?.summary ?? null;
+  const previewError = current?.error ?? null;
 
   const chartGroups = useMemo(() => {
     const first = preview?.columns.find((c) => c.column === (state.chartColumn ?? settings?.valueColumns[0])) ?? preview?.columns[0];
@@ -222,16 +238,30 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     return [...first.groups].sort((a, b) => b.flagged - a.flagged || b.n - a.n).map((g) => g.label);
   }, [preview, state.chartColumn, settings]);
 
-  const chart = useMemo(() => {
+  const chartAsk = useMemo(() => {
     if (!data || !settings || chartGroups.length === 0) return null;
     const column = state.chartColumn && settings.valueColumns.includes(state.chartColumn) ? state.chartColumn : settings.valueColumns[0];
     const group = state.chartGroup && chartGroups.includes(state.chartGroup) ? state.chartGroup : chartGroups[0];
-    try {
-      return chartFor(data, settings, column, group);
-    } catch {
-      return null;
-    }
+    return { kind: 'chart' as const, settings, column, group };
   }, [data, settings, chartGroups, state.chartGroup, state.chartColumn]);
+  const [charted, setCharted] = useState<{ ask: object; chart: ChartData | null } | null>(null);
+  useEffect(() => {
+    if (!chartAsk) return;
+    let stale = false;
+    engine
+      .ask(chartAsk)
+      .then((a) => {
+        if (a && !stale && mounted.current) setCharted({ ask: chartAsk, chart: a.chart });
+      })
+      .catch(() => {
+        if (!stale && mounted.current) setCharted({ ask: chartAsk, chart: null });
+      });
+    return () => {
+      stale = true;
+    };
+  }, [engine, chartAsk]);
+  // The last chart stays until the next is drawn (null when there is nothing to draw).
+  const chart = chartAsk ? (charted?.chart ?? null) : null;
 
   const runWith = useCallback(
     async (picked: RunSettings) => {
@@ -313,23 +343,30 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
 
   const view = useMemo(() => reviewView(state.exceptions, state.order, state.filter, labelOf, DONE_LABELS), [state.exceptions, state.order, state.filter]);
 
-  // The last run's scores, recomputed from the pane's read of the same columns (for the claim's context).
+  // The claim's peer-group context, from the pane's read of the same columns scored with the last
+  // run's settings (in the worker).
   const saved = state.saved;
-  const reviewScored = useMemo(() => {
-    if (!data || !saved || !state.settings || !sameColumns(saved, state.settings)) return null;
-    if (data.valueColumns.length !== saved.valueColumns.length) return null;
-    try {
-      return scorePreview(data, saved);
-    } catch {
-      return null;
-    }
-  }, [data, saved, state.settings]);
-
-  const context = useMemo(() => {
+  const contextSettings =
+    data && saved && state.settings && sameColumns(saved, state.settings) && data.valueColumns.length === saved.valueColumns.length ? saved : null;
+  const [contexted, setContexted] = useState<{ settings: RunSettings; data: PreviewData; row: number; context: ClaimContext | null } | null>(null);
+  useEffect(() => {
     const row = state.currentRow;
-    if (!reviewScored || row === null || row >= reviewScored.rowCount) return null;
-    return claimContext(reviewScored, followColumn(reviewScored, row), row);
-  }, [reviewScored, state.currentRow]);
+    if (!contextSettings || !data || row === null) return;
+    let stale = false;
+    engine
+      .ask({ kind: 'context', settings: contextSettings, row })
+      .then((a) => {
+        if (a && !stale && mounted.current) setContexted({ settings: contextSettings, data, row, context: a.context });
+      })
+      .catch(() => {
+        if (!stale && mounted.current) setContexted({ settings: contextSettings, data, row, context: null });
+      });
+    return () => {
+      stale = true;
+    };
+  }, [engine, data, contextSettings, state.currentRow]);
+  const context =
+    contexted && contexted.settings === contextSettings && contexted.data === data && contexted.row === state.currentRow ? contexted.context : null;
 
   const viewRef = useRef(view);
   viewRef.current = view;
@@ -361,6 +398,25 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
     [layer, loadExceptions],
   );
 
+  const dataRef = useRef(data);
+  dataRef.current = data;
+  /** What a review budget's answer does: set the cutoff, or say why it does not. */
+  const budgetAnswered = useCallback((answer: BudgetAnswer, n: number, cutoff: number) => {
+    if (answer.kind === 'all-fit') {
+      dispatch({
+        type: 'notice',
+        area: 'method',
+        text: `All ${answer.flaggable} claims that any cutoff could flag fit in ${n}, so the budget does not set a cutoff; it stays at ${cutoff}.`,
+      });
+      return;
+    }
+    if (answer.kind === 'none') {
+      dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
+      return;
+    }
+    dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
+  }, []);
+
   const actions = useMemo<PaneActions>(
     () => ({
       refresh: () => void detect(false),
@@ -371,25 +427,14 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
         const s = stateRef.current.settings;
         const text = stateRef.current.budget.trim();
         const n = Number(text);
-        if (!s || !scored) return;
+        if (!s || !dataRef.current) return;
         if (text === '' || !Number.isInteger(n) || n < 1) {
           dispatch({ type: 'notice', area: 'method', text: 'Enter how many claims you can review as a whole number of at least 1, e.g. 25.' });
           return;
         }
-        const answer = budgetCutoff(scored, n);
-        if (answer.kind === 'all-fit') {
-          dispatch({
-            type: 'notice',
-            area: 'method',
-            text: `All ${answer.flaggable} claims that any cutoff could flag fit in ${n}, so the budget does not set a cutoff; it stays at ${s.cutoff}.`,
-          });
-          return;
-        }
-        if (answer.kind === 'none') {
-          dispatch({ type: 'notice', area: 'method', text: 'No cutoff gives that many claims with these settings.' });
-          return;
-        }
-        dispatch({ type: 'budget-applied', cutoff: answer.cutoff, claims: n });
+        void engine.ask({ kind: 'budget', settings: s, claims: n }).then((a) => {
+          if (a && mounted.current) budgetAnswered(a.answer, n, s.cutoff);
+        }, (error: unknown) => dispatch({ type: 'failed', error, area: 'method' }));
       },
       setCutoffReason: (text) => dispatch({ type: 'cutoff-reason', text }),
       run: () => {
@@ -482,11 +527,23 @@ export function usePaneState(layer: WorkbookLayer): PaneModel {
           )
           .catch((error: unknown) => dispatch({ type: 'failed', error, area: 'manage' }));
       },
+      exportMarks: async (to) => {
+        try {
+          const out = await layer.exportMarks(to === 'sheet');
+          const n = out.rows.length - 1;
+          const what = `${n} ${n === 1 ? 'claim' : 'claims'} with a status or note`;
+          if (to === 'sheet') return `Copied ${what} to the new sheet "${out.sheet}". That sheet is yours: Tailmark never changes or removes it.`;
+          downloadBlob(new Blob([toCsv(out.rows)], { type: 'text/csv;charset=utf-8' }), MARKS_CSV_NAME);
+          return `Saved ${what} as ${MARKS_CSV_NAME} (your browser's downloads).`;
+        } catch (e) {
+          return `Could not keep the marks: ${e instanceof Error ? e.message : String(e)}`;
+        }
+      },
       fold: (area, folded) => dispatch({ type: 'fold', area, folded }),
       showAllGroups: (on) => dispatch({ type: 'all-groups', on }),
       dismiss: () => dispatch({ type: 'dismiss' }),
     }),
-    [layer, detect, runWith, scored, selectRow, show, save],
+    [layer, detect, runWith, engine, budgetAnswered, selectRow, show, save],
   );
 
   return { state, preview, previewError, chart, chartGroups, view, context, actions };

@@ -5,6 +5,8 @@
 
 export const MAX_ROWS = 1_048_576;
 export const MAX_COLUMNS = 16_384;
+/** Characters a cell holds (Excel's specifications and limits: 32,767). */
+export const MAX_CELL_TEXT = 32_767;
 
 import { columnLetters, columnFromLetters } from '../report/columns.js';
 

@@ -131,6 +131,12 @@ export interface WorkbookLayer {
    * leaves the status and note columns in place as plain cells (no dropdown, no highlighting).
    */
   remove(includeNotes: boolean, keepMarks?: boolean): Promise<void>;
+  /**
+   * The reviewer's statuses and notes with who saved each last and when (from the log sheet), as
+   * rows of text, header first (src/report/marksExport.ts). `toSheet` also copies them to a new
+   * sheet, the reviewer's own from then on (runs and remove leave it alone); its name is returned.
+   */
+  exportMarks(toSheet: boolean): Promise<MarksExport>;
   loadSettings(): Promise<RunSettings | null>;
   listExceptions(): Promise<readonly Exception[]>;
   /** One claim row as displayed, for the follow-up view. */
@@ -149,6 +155,14 @@ export interface WorkbookLayer {
   mark(rows: readonly number[], status: string | null, note: string | null): Promise<void>;
   /** Subscribe to selection changes; returns an unsubscribe function. */
   onSelectionChanged(handler: () => void): Promise<() => void>;
+}
+
+/** What exportMarks() read (and where it copied it). */
+export interface MarksExport {
+  /** Header first; every cell text. */
+  readonly rows: readonly (readonly string[])[];
+  /** The new sheet's name when copied to a sheet, else null. */
+  readonly sheet: string | null;
 }
 
 /** Raw columns for the pane's live preview (no writes). */

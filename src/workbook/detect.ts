@@ -25,7 +25,7 @@ import { cellText, toRawCell } from './cells.js';
 import { guessColumn, headerNames, looksLikeHeader } from './guess.js';
 import { readRows } from './read.js';
 import { STATE_KEY, isOurHeader, parseState, type LayerState } from './state.js';
-import { errorCode, type Syncer } from './sync.js';
+import { errorCode, jsonBytes, type Syncer } from './sync.js';
 
 /** What detect learnt that run() can reuse (kept beside the DetectedTable object). */
 export interface DetectMemo {
@@ -188,7 +188,7 @@ async function regionOfFirstValue(sync: Syncer, sheet: Excel.Worksheet, cut: Rec
   first.load(['rowIndex', 'columnIndex', 'rowCount', 'columnCount']);
   await sync.sync();
   const values = top.values as unknown[][];
-  sync.noteResponse(JSON.stringify(values).length);
+  sync.noteResponse(jsonBytes(values));
   for (let r = 0; r < values.length; r++) {
     for (let c = 0; c < values[r].length; c++) {
       if (isBlank(values[r][c])) continue;
@@ -228,7 +228,7 @@ async function readSample(sync: Syncer, sheet: Excel.Worksheet, block: Rect, als
         for (let c = 0; c < vr.length; c++) out[c] = toRawCell(vr[c], tr[c], fr[c]);
         rows[offset + r] = out;
       }
-      bytes += JSON.stringify(d.values).length + JSON.stringify(d.valueTypes).length + JSON.stringify(d.numberFormat).length;
+      bytes += jsonBytes(d.values) + jsonBytes(d.valueTypes) + jsonBytes(d.numberFormat);
       cells += d.values.length * (d.values[0]?.length ?? 0);
     },
   );

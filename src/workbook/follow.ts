@@ -16,7 +16,7 @@ import type { ClaimRecord, Exception, SelectionFollow } from './api.js';
 import { MAX_COLUMNS } from './a1.js';
 import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns, type HeaderColumns } from './exceptions.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
-import type { Syncer } from './sync.js';
+import { jsonBytes, type Syncer } from './sync.js';
 
 /** Rows to refresh beyond the selected one (the pane asks for the claim it showed). */
 export const MAX_REFRESH_ROWS = 4;
@@ -87,7 +87,7 @@ export async function followSelection(sync: Syncer, refresh: readonly number[]):
   const rows = block.rowCount - 1;
   const cells = header.values[0] as unknown[];
   const where = table ? tableColumns(state, block.columnIndex, cells) : headerColumns(state, cells);
-  sync.noteResponse(JSON.stringify(cells).length + reads.reduce((n, x) => n + (x.range.isNullObject ? 0 : JSON.stringify(x.range.values).length * (x.selected ? 2 : 1)), 0));
+  sync.noteResponse(jsonBytes(cells) + reads.reduce((n, x) => n + (x.range.isNullObject ? 0 : jsonBytes(x.range.values) * (x.selected ? 2 : 1)), 0));
   const keys = exceptionColumns(settings, where);
   const hasId = keys.some((k) => k.key === 'id');
   const shown = claimColumns(settings, where);

@@ -8,9 +8,10 @@
  * that grows with the number of cells only.
  */
 import type { AsyncPipeline } from '../pipeline/index.js';
-import type { ClaimRecord, DetectedTable, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, SelectionFollow, WorkbookLayer } from './api.js';
+import type { ClaimRecord, DetectedTable, MarksExport, Exception, PreviewData, ReviewPrefs, RunProgress, RunRecord, RunSettings, RunSummary, SelectionFollow, WorkbookLayer } from './api.js';
 import { TailmarkError } from './api.js';
 import { detectTable } from './detect.js';
+import { exportMarkRows } from './export-marks.js';
 import {
   listExceptionRows,
   loadReviewPrefs,
@@ -63,9 +64,18 @@ export interface WorkbookLayerOptions {
   readonly isSetSupported?: (name: string, version: string) => boolean;
 }
 
-/** Office's requirement check when Office.js is loaded; false elsewhere (Node, the preview page). */
+/**
+ * Without Office.js the layer runs on the sandbox (tests, the preview page, `tailmark sandbox`),
+ * which models the feature-detected members up to ExcelApi 1.13 (merged areas), not undo groups (1.20).
+ */
+const SANDBOX_EXCEL_API = [1, 13];
+
+/** Office's requirement check when Office.js is loaded; the sandbox's (SANDBOX_EXCEL_API) elsewhere. */
 function officeSupports(name: string, version: string): boolean {
-  if (typeof Office === 'undefined') return false;
+  if (typeof Office === 'undefined') {
+    const [major, minor] = version.split('.').map(Number);
+    return name === 'ExcelApi' && (major < SANDBOX_EXCEL_API[0] || (major === SANDBOX_EXCEL_API[0] && (minor ?? 0) <= SANDBOX_EXCEL_API[1]));
+  }
   const requirements = Office.context?.requirements;
   return requirements ? requirements.isSetSupported(name, version) : false;
 }
@@ -137,7 +147,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
       return act('detect', (s) => detectTable(s));
     },
     readForPreview(table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
-      return act('preview', (s) => previewColumns(s, table, settings));
+      return act('preview', (s) => previewColumns(s, table, settings, supports));
     },
     async run(table: DetectedTable, settings: RunSettings, onProgress?: (p: RunProgress) => void, signal?: AbortSignal, record?: RunRecord): Promise<RunSummary> {
       if (signal?.aborted) throw new TailmarkError('cancelled', 'Cancelled. Nothing was written to the workbook.');
@@ -148,6 +158,7 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
           ...(signal ? { signal } : {}),
           ...(record ? { record } : {}),
           ...(options.pipeline ? { pipeline: options.pipeline } : {}),
+          supports,
         }),
       );
       lastRun = { summary: out.summary, marksKept: out.marksKept, resultColumns: out.resultColumns };
@@ -155,6 +166,12 @@ export function createWorkbookLayer(run: ExcelRunner, options: WorkbookLayerOpti
     },
     remove(includeNotes: boolean, keepMarks = false): Promise<void> {
       return act('remove', (s) => removeResults(s, includeNotes, keepMarks));
+    },
+    exportMarks(toSheet: boolean): Promise<MarksExport> {
+      return act('exportMarks', async (s) => {
+        const out = await exportMarkRows(s, toSheet, now());
+        return { rows: out.grid, sheet: out.sheet };
+      });
     },
     readClaim(row: number): Promise<ClaimRecord> {
       return act('readClaim', (s) => readClaimRow(s, row));

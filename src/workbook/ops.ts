@@ -7,9 +7,11 @@ import type { RawCell } from '../scoring/types.js';
 import { NOTE_HEADER, NOTES_SHEET_NAME, REVIEW_STATUSES, STATUS_HEADER, isTailmarkFormula, markLine, type PlanCell } from '../report/index.js';
 import { TailmarkError, type ClaimRecord, type DetectedTable, type Exception, type PreviewData, type ReviewPrefs, type RunSettings } from './api.js';
 import { toRawCell } from './cells.js';
+import { MAX_CELL_TEXT } from './a1.js';
 import { appendLog } from './log.js';
 import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns } from './exceptions.js';
+import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { readRows } from './read.js';
 import { columnOf, protectedError, readOnlyError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
@@ -40,7 +42,7 @@ interface Located {
  * Load our state and find our columns as they are now: by table column name for tables, by the
  * header cells at the remembered place otherwise. 2 syncs.
  */
-async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Promise<Located | null> {
+export async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}): Promise<Located | null> {
   const wb = sync.context.workbook;
   const st = wb.settings.getItemOrNullObject(STATE_KEY);
   st.load('value');
@@ -212,6 +214,12 @@ function statusText(status: string): string {
  */
 export async function markRows(sync: Syncer, rows: readonly number[], status: string | null, note: string | null, now: Date = new Date()): Promise<void> {
   const label = status === null ? null : statusText(status);
+  if (note !== null && note.length > MAX_CELL_TEXT) {
+    throw new TailmarkError(
+      'too-large',
+      `The note is ${note.length.toLocaleString('en')} characters long; an Excel cell holds at most ${MAX_CELL_TEXT.toLocaleString('en')}. Shorten it, then save again. Nothing was changed.`,
+    );
+  }
   const loc = await locate(sync);
   if (!loc) throw noResults();
   if (loc.readOnly) throw readOnlyError();
@@ -323,13 +331,15 @@ export async function listExceptionRows(sync: Syncer): Promise<readonly Exceptio
   return out;
 }
 
-export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings): Promise<PreviewData> {
+export async function previewColumns(sync: Syncer, table: DetectedTable, settings: RunSettings, supports: (name: string, version: string) => boolean = () => false): Promise<PreviewData> {
   const res = await resolveTable(sync, table);
   const want = [
     ...settings.valueColumns.map((name) => ({ name, kind: 'value' as const, column: columnOf(res, name, 'value') })),
     ...settings.groupColumns.map((name) => ({ name, kind: 'group' as const, column: columnOf(res, name, 'group') })),
   ];
   const cells: RawCell[][] = want.map(() => new Array<RawCell>(res.rows));
+  const keys = want.flatMap((w, i) => (w.kind === 'group' ? [{ index: i, column: w.column }] : []));
+  const merged = new MergedKeys(res.sheet, res.headerRow + 1, res.rows, keys, supports(MERGED_AREAS_SET.name, MERGED_AREAS_SET.version));
   await readRows(
     sync,
     res.sheet,
@@ -340,8 +350,10 @@ export async function previewColumns(sync: Syncer, table: DetectedTable, setting
       const into = cells[si];
       for (let r = 0; r < d.values.length; r++) into[offset + r] = toRawCell(d.values[r][0], d.valueTypes![r][0], d.numberFormat![r][0]);
     },
-    res.bytesPerCell ? { bytesPerRowHint: res.bytesPerCell * want.length * 1.2 } : {},
+    { ...(res.bytesPerCell ? { bytesPerRowHint: res.bytesPerCell * want.length * 1.2 } : {}), withEachSync: merged.queue },
   );
+  // Merged cells in the key columns, as a run reads them (its notes line is the run's to write).
+  merged.fill(want.map((w) => w.name), cells);
   return {
     valueColumns: want.flatMap((w, i) => (w.kind === 'value' ? [{ name: w.name, cells: cells[i] }] : [])),
     groupColumns: want.flatMap((w, i) => (w.kind === 'group' ? [{ name: w.name, cells: cells[i] }] : [])),

@@ -40,6 +40,11 @@ export interface ReadOptions {
   readonly bytesPerRowHint?: number;
   /** Queue extra loads in the first sync (they are synced together with the first chunk). */
   readonly withFirstSync?: () => void;
+  /**
+   * Queue extra loads about the rows of each sync (row offset and count, relative to firstRow);
+   * the function returned is called once that sync has succeeded (e.g. merged areas, merged.ts).
+   */
+  readonly withEachSync?: (rowOffset: number, rows: number) => () => void;
   readonly onProgress?: (rowsDone: number, rowsTotal: number) => void;
   readonly signal?: AbortSignal;
 }
@@ -60,8 +65,6 @@ export function guessBytesPerRow(spans: readonly ReadSpan[]): number {
   return Math.max(b, 16);
 }
 
-/** UTF-8 bytes of the JSON text of a loaded array: what it costs in the response. */
-export { jsonBytes };
 
 /**
  * Read rows [firstRow, firstRow + rowCount) of the given spans; `consume(span, rowOffset, data)`
@@ -98,6 +101,7 @@ export async function readRows(
     for (;;) {
       const loaded: { span: number; offset: number; range: Excel.Range; props: ReadProps }[] = [];
       if (extra) extra();
+      const collect = options.withEachSync?.(done, rows);
       for (let sub = 0; sub < rows; sub += SUB_ROWS) {
         const n = Math.min(SUB_ROWS, rows - sub);
         spans.forEach((s, si) => {
@@ -118,6 +122,7 @@ export async function readRows(
       }
       extra = undefined;
       syncs++;
+      collect?.();
       let bytes = 0;
       for (const l of loaded) {
         const values = (l.props === 'cells' ? l.range.formulas : l.range.values) as unknown[][];

@@ -38,7 +38,7 @@ import {
   type PlanCell,
 } from '../report/index.js';
 import { TailmarkError, type DetectedTable, type GroupSummary, type RunProgress, type RunRecord, type RunSettings, type RunSummary } from './api.js';
-import { columnLetters, rectAddress } from './a1.js';
+import { MAX_CELL_TEXT, columnLetters, rectAddress } from './a1.js';
 import { toRawCell } from './cells.js';
 import { Fingerprint } from './fingerprint.js';
 import {
@@ -50,6 +50,7 @@ import { readRows } from './read.js';
 import { columnOf, protectedError, readOnlyError, resolveTable, spanHeaders, structureError, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
 import { place } from './place.js';
+import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { logLinesFor, writeAll, writeNotes } from './write-results.js';
 import { queueSmallBackup, readSheetBackups, type Backup, type SavedCells } from './backup.js';
 import { undoWrites } from './undo.js';
@@ -63,6 +64,8 @@ export interface RunDeps {
   readonly record?: RunRecord;
   /** How the pipeline runs (the pane passes a worker-backed one; default: same thread, yielding between steps). */
   readonly pipeline?: AsyncPipeline;
+  /** Requirement-set check (feature-detected members such as getMergedAreasOrNullObject); default: none. */
+  readonly supports?: (name: string, version: string) => boolean;
 }
 
 export interface RunOutcome {
@@ -92,7 +95,12 @@ export interface SpanData {
   readonly bytesPerRow: number;
 }
 
-export async function readSpan(sync: Syncer, res: Resolved, deps: Pick<RunDeps, 'onProgress' | 'signal'>): Promise<SpanData> {
+export async function readSpan(
+  sync: Syncer,
+  res: Resolved,
+  deps: Pick<RunDeps, 'onProgress' | 'signal'>,
+  withEachSync?: (rowOffset: number, rows: number) => () => void,
+): Promise<SpanData> {
   const columns: RawCell[][] = Array.from({ length: res.spanCols }, () => new Array<RawCell>(res.rows));
   const fp = new Fingerprint();
   const hint = res.bytesPerCell !== null && res.bytesPerCell > 0 ? res.bytesPerCell * res.spanCols * 1.1 : undefined;
@@ -117,6 +125,7 @@ export async function readSpan(sync: Syncer, res: Resolved, deps: Pick<RunDeps, 
       ...(hint !== undefined ? { bytesPerRowHint: hint } : {}),
       onProgress: (done, total) => deps.onProgress?.({ phase: 'reading', fraction: total ? done / total : 1 }),
       ...(deps.signal ? { signal: deps.signal } : {}),
+      ...(withEachSync ? { withEachSync } : {}),
     },
   );
   return { columns, fingerprint: fp.value, bytesPerRow: out.bytesPerRow };
@@ -170,6 +179,13 @@ function textOf(v: unknown): string {
 
 export async function runScoring(sync: Syncer, table: DetectedTable, chosen: RunSettings, deps: RunDeps): Promise<RunOutcome> {
   const settings = validateSettings(chosen);
+  const reason = deps.record?.cutoffReason ?? '';
+  if (reason.length > MAX_CELL_TEXT) {
+    throw new TailmarkError(
+      'too-large',
+      `The reason for the cutoff is ${reason.length.toLocaleString('en')} characters long; an Excel cell holds at most ${MAX_CELL_TEXT.toLocaleString('en')}. Shorten it, then run again. Nothing was changed.`,
+    );
+  }
   const { signal } = deps;
   if (signal?.aborted) throw cancelled();
   const ctx = sync.context;
@@ -189,8 +205,13 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
 
   // ---- read ----
   if (signal?.aborted) throw cancelled();
-  const data = await readSpan(sync, res, deps);
+  // Merged cells in the key columns take the area's value (asked with the read, where Excel can tell).
+  const keys = settings.groupColumns.map((n) => columnOf(res, n, 'group')).map((column) => ({ index: column - res.spanStart, column }));
+  const mergedKeys = new MergedKeys(res.sheet, res.headerRow + 1, res.rows, keys, deps.supports?.(MERGED_AREAS_SET.name, MERGED_AREAS_SET.version) ?? false);
+  const data = await readSpan(sync, res, deps, mergedKeys.queue);
   if (signal?.aborted) throw cancelled();
+  const headers = spanHeaders(res);
+  const inputNotes = mergedKeys.fill(headers, data.columns);
 
   // ---- the pipeline: resolve -> parse -> group -> score -> plan ----
   deps.onProgress?.({ phase: 'scoring', fraction: 0 });
@@ -198,9 +219,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const pipeline = deps.pipeline ?? runPipelineYielding;
   const { result, plan: built, columns } = await pipeline(
     {
-      source: res.tableName ? `${address} (table ${res.tableName})` : address,
+      // Said in words, as the batch command says it ("sheet Claims, A1:E81"): an address such as
+      // 'Expense claims'!A1:C41 written into a cell would begin with Excel's text-prefix apostrophe.
+      source: `sheet ${res.sheetName}, ${address.slice(address.lastIndexOf('!') + 1)}${res.tableName ? ` (table ${res.tableName})` : ''}`,
       sheetName: res.sheetName,
-      headers: spanHeaders(res),
+      headers,
       columns: data.columns,
       rowCount: res.rows,
       headerRow: res.headerRow + 1,
@@ -211,6 +234,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     {
       when: deps.now(),
       marks: 'host',
+      ...(inputNotes.length > 0 ? { inputNotes } : {}),
       onProgress: (phase, fraction) => deps.onProgress?.({ phase: 'scoring', fraction: phase === 'sending' ? fraction * 0.2 : phase === 'scoring' ? 0.2 + fraction * 0.5 : 0.7 + fraction * 0.3 }),
       ...(signal ? { signal } : {}),
     },
@@ -243,6 +267,8 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   // table found both in the column left of the insertion point and in the one right of it spans it.
   const across: { left?: Excel.TableScopedCollection; right?: Excel.TableScopedCollection } = {};
   let small: ReturnType<typeof queueSmallBackup> | null = null;
+  // Widths of the empty columns we will write into, kept so removal (or a failed write) puts them back.
+  const emptyWidths = placement.pristine.map((i) => res.sheet.getRangeByIndexes(0, placement.columns[i], 1, 1));
   await readRows(
     sync,
     res.sheet,
@@ -280,6 +306,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
         logUsed?.load(['rowIndex', 'rowCount']);
         for (const cf of customRules) cf.custom.rule.load('formula');
         tableRange?.load(['rowCount', 'columnCount']);
+        for (const r of emptyWidths) r.load('format/columnWidth');
       },
     },
   );
@@ -307,6 +334,7 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     const widened = across.left.items.map((t) => t.name).filter((n) => right.has(n));
     if (widened.length > 0) throw obstacleError(placement.insertCount, placement.insertAt, widened);
   }
+  placement.pristine.forEach((i, j) => (placement.block[i] = { ...placement.block[i], width: emptyWidths[j].format.columnWidth }));
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
 

@@ -8,6 +8,29 @@ export const PAYLOAD_LIMIT = 5 * 1024 * 1024;
 /** Share of the limit we plan to use (headroom for JSON overhead we do not see). */
 export const SAFETY = 0.6;
 
+/**
+ * UTF-8 bytes of a string: what it costs in a request or a response (Excel's 5 MB limit counts
+ * bytes; text such as Japanese takes 3 bytes a character). O(length), no copy.
+ */
+export function utf8Bytes(s: string): number {
+  let n = s.length;
+  for (let i = 0; i < s.length; i++) {
+    const c = s.charCodeAt(i);
+    if (c < 0x80) continue;
+    if (c < 0x800) n += 1;
+    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length) {
+      n += 2; // a surrogate pair: 2 UTF-16 units, 4 bytes
+      i++;
+    } else n += 2;
+  }
+  return n;
+}
+
+/** UTF-8 bytes of a value's JSON text (what the client sends or receives for it). */
+export function jsonBytes(x: unknown): number {
+  return utf8Bytes(JSON.stringify(x) ?? '');
+}
+
 export interface Budget {
   /** The host's limit, bytes. */
   readonly limit: number;
@@ -67,31 +90,4 @@ export class Syncer {
   async flush(): Promise<void> {
     if (this.pending > 0) await this.sync();
   }
-}
-
-/**
- * UTF-8 length of a string without encoding it (Excel's payload limit counts bytes): 1 byte below
- * U+0080, 2 below U+0800, 4 for a surrogate pair, 3 otherwise.
- */
-export function utf8Bytes(s: string): number {
-  let n = s.length;
-  for (let i = 0; i < s.length; i++) {
-    const c = s.charCodeAt(i);
-    if (c < 0x80) continue;
-    if (c < 0x800) n += 1;
-    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length) {
-      const d = s.charCodeAt(i + 1);
-      if (d >= 0xdc00 && d <= 0xdfff) {
-        n += 2;
-        i++;
-      } else n += 2;
-    } else n += 2;
-  }
-  return n;
-}
-
-/** UTF-8 bytes of the JSON text of a value: what it costs in a request or response. */
-export function jsonBytes(x: unknown): number {
-  const s = JSON.stringify(x);
-  return s === undefined ? 0 : utf8Bytes(s);
 }

@@ -81,6 +81,9 @@ export async function undoWrites(sync: Syncer, u: UndoInput, original: unknown):
           const r = sheet.getRangeByIndexes(res.headerRow, c, res.rows + 1, 1);
           r.dataValidation.clear();
           r.clear('All');
+          // The width the empty column had before we widened it (kept in the block's state).
+          const w = placement.block[i].width;
+          if (w !== null) r.format.columnWidth = w;
         }
       }
       for (const d of [...placement.dropColumns].sort((a, b) => a.column - b.column)) {

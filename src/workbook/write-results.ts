@@ -83,9 +83,10 @@ export async function writeAll(
   }
   for (let i = 0; i < k; i++) {
     const w = plan.columns[i].width;
-    // Widths only on columns we inserted (deleting them restores the sheet exactly); an empty
-    // column we wrote into keeps its width, because an explicit width cannot be un-set.
-    if (placement.fresh[i] && placement.block[i].inserted && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
+    // Widths on columns new this run: ones we inserted (deleting them restores the sheet), and
+    // empty ones we write into, whose earlier width the state keeps for removal and undo.
+    const b = placement.block[i];
+    if (placement.fresh[i] && (b.inserted || b.width !== null) && w) sheet.getRangeByIndexes(0, placement.columns[i], 1, 1).format.columnWidth = Math.round(w * POINTS_PER_CHAR);
   }
   // Rows the table or block no longer has (the data shrank): clear our cells below.
   if (!res.table && (res.state?.rowCount ?? 0) > rows) {

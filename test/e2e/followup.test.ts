@@ -271,6 +271,8 @@ describe('screenshots of the follow-up view', () => {
       await expect.poll(() => page.getByTestId('pending').count()).toBe(0);
       await page.getByTestId('remove').click();
       await page.getByTestId('remove-counts').waitFor();
+      // Let the dialog finish fading in.
+      await page.waitForTimeout(500);
       await page.screenshot({ path: path.join(SCREENSHOT_DIR, `remove-320-${theme}.png`) });
       await page.close();
     }

@@ -6,6 +6,7 @@
  * Cancel takes to answer. The 250 ms bound on both is the project's target (issue 10); a task
  * over 50 ms is what the browser reports as a long task (W3C Long Tasks API).
  */
+import ExcelJS from 'exceljs';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openPage, startSession, type Session } from './harness.js';
@@ -13,12 +14,19 @@ import { openPage, startSession, type Session } from './harness.js';
 const ROWS = 300_000;
 /**
  * The target is 250 ms (issue 10). On the project's 2-core machine, shared with other builds and
- * test runs, the longest task measured 461-1,180 ms (mostly one sandbox sync answering on the
+ * test runs, the longest task measured 461-1,180 ms (377 ms in a later run at load average 14, in a
+ * sandbox sync of the write phase, not in scoring) (mostly one sandbox sync answering on the
  * page's thread while other processes held the cores), so the check asserts a looser bound that
  * still fails the old behaviour (one 7,000 ms block at 300,000 rows) and stays under the ~5 s after
  * which Office restarts an unresponsive add-in; the measured figure is printed on every run.
  */
 const LONGEST_TASK_BOUND_MS = 1500;
+/**
+ * Outside a run (the live counts while sliding the cutoff, opening a 50,000-row .xlsx) the work is in
+ * workers; measured on the same loaded machine: 0 ms (no task over 50 ms) while sliding at 300,000
+ * rows, 275 ms opening the .xlsx (applying its parts). The bound leaves room for the machine's load.
+ */
+const OUTSIDE_RUN_BOUND_MS = 600;
 
 /** An invented claims CSV: 5 cost centres x 4 categories, one claim in 997 twenty-five times the usual. */
 function claimsCsv(rows: number): Buffer {
@@ -132,6 +140,51 @@ describe('the preview stays responsive on 300,000 claims', () => {
     console.log(`Cancel answered in ${ms.toFixed(0)} ms`);
     expect(ms, `cancel took ${ms.toFixed(0)} ms`).toBeLessThan(250);
     expect(await page.getByTestId('summary').count()).toBe(0);
+    await page.close();
+  }, 600_000);
+});
+
+describe('the pane and the preview stay responsive outside a run', () => {
+  it('sliding the cutoff on 300,000 claims: the live counts follow without a long task (figure printed)', async () => {
+    const { page, errors } = await openPage(session, 'preview.html');
+    await openLarge(page);
+    const before = await page.getByTestId('preview-flagged').textContent();
+    await startProbes(page);
+    // Cutoffs tried in a row, as a reviewer sliding the cutoff does (the slider by keyboard: each
+    // step a new cutoff); the counts are worked out in the pane's worker.
+    const slider = page.getByLabel('Cutoff slider');
+    await slider.focus();
+    const t0 = Date.now();
+    for (let i = 0; i < 5; i++) await slider.press('ArrowLeft');
+    await slider.press('Home');
+    await expect.poll(() => page.getByTestId('preview-flagged').textContent(), { timeout: 120_000, interval: 100 }).not.toBe(before);
+    const ms = Date.now() - t0;
+    await page.waitForTimeout(500);
+    const { longest, frameGap } = await readProbes(page);
+    console.log(`300,000 rows, cutoff slid down: counts updated in ${ms} ms; longest main-thread task ${longest.toFixed(0)} ms, largest frame gap ${frameGap.toFixed(0)} ms`);
+    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(OUTSIDE_RUN_BOUND_MS);
+    expect(errors).toEqual([]);
+    await page.close();
+  }, 600_000);
+
+  it('opening a 50,000-row .xlsx shows progress and does not hold the page (figure printed)', async () => {
+    const wb = new ExcelJS.Workbook();
+    const ws = wb.addWorksheet('Claims');
+    const lines = claimsCsv(50_000).toString('utf8').split('\n');
+    for (const l of lines) ws.addRow(l.split(',').map((x, i) => (i === 4 && l !== lines[0] ? Number(x) : x)));
+    const buffer = Buffer.from(await wb.xlsx.writeBuffer());
+    const { page, errors } = await openPage(session, 'preview.html');
+    await page.getByTestId('row-count').waitFor({ timeout: 30_000 });
+    await startProbes(page);
+    const t0 = Date.now();
+    await page.getByTestId('file-input').setInputFiles({ name: 'large.xlsx', mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', buffer });
+    await page.getByTestId('preview-progress').waitFor({ timeout: 30_000 });
+    await expect.poll(() => page.getByTestId('row-count').textContent(), { timeout: 180_000, interval: 200 }).toMatch(/^50,?000$/);
+    const ms = Date.now() - t0;
+    const { longest, frameGap } = await readProbes(page);
+    console.log(`50,000-row .xlsx opened in ${ms} ms; longest main-thread task ${longest.toFixed(0)} ms, largest frame gap ${frameGap.toFixed(0)} ms`);
+    expect(longest, `longest task ${longest.toFixed(0)} ms`).toBeLessThan(OUTSIDE_RUN_BOUND_MS);
+    expect(errors).toEqual([]);
     await page.close();
   }, 600_000);
 });

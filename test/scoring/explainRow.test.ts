@@ -36,7 +36,7 @@ describe('explainRow', () => {
     const text = explainRow(res, col, 10);
     expect(text).toBe(
       `Amount 1,840.00 is ${formatScore(col.scores[10])} robust z above the median of its group "CC-410 / Travel" ` +
-      `(median ${formatNumber(g.median!)}, scaled MAD ${formatNumber(g.scaledMad!)}, n = 11); cutoff 3.5, both directions. Flagged.`,
+      `(median ${formatNumber(g.center!)}, scaled MAD ${formatNumber(g.scale!)}, n = 11); cutoff 3.5, both directions. Flagged.`,
     );
   });
   it('mentions the MAD = 0 fallback', () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
-  EXCLUSION_REASONS, MEANAD_NORMAL_CONSTANT, scoreTable, type RawCell, type ScoreOptions, type ScoreResult,
+  describeColumn, EXCLUSION_REASONS, MEANAD_NORMAL_CONSTANT, scoreTable, type RawCell, type ScoreOptions, type ScoreResult,
 } from '../../src/scoring/index.js';
 import { expectNear, rStats } from './helpers.js';
 
@@ -16,7 +16,7 @@ describe('robust and classic z per value against R (test/reference/r-stats.json)
     it(`${name}: robust z = (x - median) / mad(x) as R computes it; classic z = (x - mean) / sd(x)`, () => {
       const robust = one(d.x).columns[0];
       const classic = one(d.x, { method: 'classic' }).columns[0];
-      const g = robust.groups[0];
+      const g = describeColumn(robust).groups[0];
       expectNear(g.median!, d.median);
       expectNear(g.scaledMad!, d.mad);
       expectNear(g.mad!, d.mad1);
@@ -35,7 +35,7 @@ describe('robust and classic z per value against R (test/reference/r-stats.json)
     const d = rStats().madzero;
     const col = one(d.x).columns[0];
     const g = col.groups[0];
-    expect(g.mad).toBe(0);
+    expect(describeColumn(col).groups[0].mad).toBe(0);
     expect(g.fallbacks).toContain('mad-zero-used-meanad');
     expectNear(g.scale!, Math.sqrt(Math.PI / 2) * d.meanAbsDevMedian, 1e-13);
     expect(MEANAD_NORMAL_CONSTANT).toBeCloseTo(1.2533, 4);
@@ -62,7 +62,7 @@ describe('NIST/SEMATECH e-Handbook 1.3.5.17 (modified z-score, Iglewicz & Hoagli
     const x = [...core, 100 + 3.6 * 14.826, 100 - 3.4 * 14.826];
     const col = one(x).columns[0];
     expect(col.cutoff).toBe(3.5);
-    const g = col.groups[0];
+    const g = describeColumn(col).groups[0];
     expect(g.median).toBe(100);
     expect(g.mad).toBe(10);
     expect(col.flagged[12]).toBe(1);
@@ -117,7 +117,8 @@ describe('degenerate groups (explicit fallbacks)', () => {
     const col = one(amt, { method: 'iqr', minGroupSize: 8 }, [cc]).columns[0];
     const a = col.groups[0];
     expect(a.fallbacks).toEqual(['iqr-zero']);
-    const colIqr = col.pooled.q3! - col.pooled.q1!;
+    const whole = describeColumn(col).whole;
+    const colIqr = whole.q3! - whole.q1!;
     expect(colIqr).toBeGreaterThan(0);
     expect(a.scale).toBe(colIqr);
     expect(a.upper).toBeCloseTo(5 + 1.5 * colIqr, 12);
@@ -134,8 +135,8 @@ describe('degenerate groups (explicit fallbacks)', () => {
       for (const [k, v] of Object.entries(g)) if (typeof v === 'number') expect(Number.isFinite(v), `${g.key} ${k} = ${v}`).toBe(true);
     }
     expect(res.groups[0].n).toBe(0);
-    expect(res.groups[0].median).toBeNull();
-    expect(res.groups[1].sd).toBeNull();
+    expect(describeColumn(res).groups[0].median).toBeNull();
+    expect(describeColumn(res).groups[1].sd).toBeNull();
     expect(res.groups[1].maxAttainableZ).toBeNull();
   });
 });
@@ -150,7 +151,7 @@ describe('small groups: pool or skip (minGroupSize)', () => {
     expect(tiny.fallbacks).toContain('small-pooled');
     expect(col.population[10]).toBe(2);
     expect(col.population[0]).toBe(1);
-    expect(col.scores[10]).toBeCloseTo((5000 - col.pooled.median!) / col.pooled.scaledMad!, 10);
+    expect(col.scores[10]).toBeCloseTo((5000 - describeColumn(col).whole.median!) / describeColumn(col).whole.scaledMad!, 10);
     expect(col.flagged[10]).toBe(1);
     expect(col.pooled.flagged).toBe(1);
     expect(tiny.flagged).toBe(1);
@@ -211,7 +212,7 @@ describe('exclusions, log scale, directions, bounds', () => {
     expect(g.n).toBe(9);
     const logs = x.filter((v) => v > 0).map(Math.log).sort((a, b) => a - b);
     expect(g.center).toBeCloseTo(logs[4], 12); // median of 9 logs
-    expect(g.median).toBe(110); // descriptive stats stay in amounts
+    expect(describeColumn(col).groups[0].median).toBe(110); // descriptive stats stay in amounts
     expect(g.upper).toBeCloseTo(Math.exp(g.center! + 3.5 * g.scale!), 8);
     expect(g.lower).toBeCloseTo(Math.exp(g.center! - 3.5 * g.scale!), 8);
     expect(col.flagged[10]).toBe(1);
@@ -281,8 +282,8 @@ describe('contract details', () => {
   it('every GroupStats field is present', () => {
     const g = one([1, 2, 3, 4]).columns[0].groups[0];
     expect(Object.keys(g).sort()).toEqual([
-      'center', 'chanceRate', 'chanceRateAtMost', 'excluded', 'fallbacks', 'flagged', 'key', 'keyParts', 'label', 'lower', 'mad', 'maxAttainableZ', 'mean', 'meanAbsDev',
-      'medcouple', 'median', 'n', 'population', 'q1', 'q3', 'rows', 'scale', 'scaledMad', 'sd', 'unreachable', 'upper',
+      'center', 'chanceRate', 'chanceRateAtMost', 'excluded', 'fallbacks', 'fenceFrom', 'flagged', 'key', 'keyParts', 'label', 'lower', 'maxAttainableZ',
+      'medcouple', 'n', 'population', 'rows', 'scale', 'unreachable', 'upper',
     ]);
   });
   it('an empty table scores to empty arrays', () => {

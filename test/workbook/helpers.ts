@@ -3,7 +3,7 @@ import { SandboxWorkbook, sandboxFromRows } from '../../src/sandbox/index.js';
 import { createWorkbookLayer, type ExcelRunner, type TailmarkWorkbookLayer, type WorkbookLayerOptions } from '../../src/workbook/index.js';
 import type { RunSettings } from '../../src/workbook/api.js';
 import { mulberry32 } from '../../src/demo/random.js';
-import { officeClientFor, type OfficeClientHost } from '../../src/cli/office-client.js';
+import { clientSettled, officeClientFor, type OfficeClientHost } from '../../src/cli/office-client.js';
 
 /**
  * Which client the workbook-layer tests run through: the sandbox directly, or Microsoft's real
@@ -77,12 +77,22 @@ export const SETTINGS: RunSettings = {
   detailColumns: null,
 };
 
+/**
+ * Let the real client's clean-up requests of earlier Excel.runs arrive (it releases kept
+ * references in a request it does not wait for, answered a task later, as a round trip), so they
+ * are not counted with, or fault-injected into, what a test measures next. A no-op on the sandbox.
+ */
+export async function settled(): Promise<void> {
+  if (CLIENT === 'office-js') await clientSettled();
+}
+
 /** A runner whose k-th sync (counted from now, across everything run through the sandbox) fails part-way. */
 export function failingAt(sb: SandboxWorkbook, k: number): ExcelRunner {
   const run = hostRun(sb);
   let armed = false;
-  return (options, batch) => {
+  return async (options, batch) => {
     if (!armed) {
+      await settled();
       armed = true;
       sb.failSyncAt(k);
     }

@@ -70,12 +70,12 @@ describe('pane actions', () => {
       expect(s.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])).toEqual(expect.arrayContaining(b.conditionalFormats.map((c) => [c.formula, c.ranges, c.fill])));
       expect(s.validations).toEqual(expect.arrayContaining(b.validations));
     }
-    // The diff mentions only our columns (F..J), our sheets, our settings and our rules. Our rules
+    // The diff mentions only our columns (F..J: cells and widths), our sheets, our settings and our rules. Our rules
     // are added on top (Excel gives a new rule priority 0), so the user's rule moves down in number
     // but keeps its place relative to the user's other rules: compare the user's rules without it.
     const noPriority = (x: typeof before) => ({ ...x, sheets: x.sheets.map((s) => ({ ...s, conditionalFormats: s.conditionalFormats.map((c) => ({ ...c, priority: 0 })) })) });
     const foreign = diffSnapshots(noPriority(before), noPriority(afterRerun)).filter(
-      (d) => !/^Claims![F-J]\d+ /.test(d) && !/^sheet Tailmark (notes|log) added$/.test(d) && !/^setting tailmark\./.test(d) && !/^Claims (conditionalFormats|validations) added/.test(d),
+      (d) => !/^Claims![F-J]\d+ /.test(d) && !/^Claims column [F-J] width: /.test(d) && !/^sheet Tailmark (notes|log) added$/.test(d) && !/^setting tailmark\./.test(d) && !/^Claims (conditionalFormats|validations) added/.test(d),
     );
     expect(foreign).toEqual([]);
   });

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { statusLabel } from '../../src/report/index.js';
-import { CLIENT, claimsSandbox, layerFor, officeHost, SETTINGS } from './helpers.js';
+import { CLIENT, claimsSandbox, layerFor, officeHost, settled, SETTINGS } from './helpers.js';
 import type { SandboxWorkbook } from '../../src/sandbox/index.js';
 import { initialState, reducer } from '../../src/taskpane/state.js';
 import { selectionActions } from '../../src/taskpane/selection.js';
@@ -14,6 +14,7 @@ import { selectionActions } from '../../src/taskpane/selection.js';
 /** Round trips and response bytes of what `f` does, as the host under test counts them. */
 async function cost<T>(sb: SandboxWorkbook, f: () => Promise<T>): Promise<{ out: T; trips: number; bytes: number }> {
   const host = CLIENT === 'office-js' ? officeHost(sb) : null;
+  await settled();
   sb.stats.reset();
   host?.wire.reset();
   const out = await f();

@@ -23,6 +23,12 @@ export function ManageSection({ model }: { model: PaneModel }) {
   const { state, actions } = model;
   const [withNotes, setWithNotes] = useState(false);
   const [keepMarks, setKeepMarks] = useState(true);
+  /** What "keep a copy" did (shown in the dialog, announced), and whether it is at work. */
+  const [kept, setKept] = useState<{ busy: boolean; text: string }>({ busy: false, text: '' });
+  const keepCopy = (to: 'csv' | 'sheet') => {
+    setKept({ busy: true, text: '' });
+    void actions.exportMarks(to).then((text) => setKept({ busy: false, text }));
+  };
   if (!state.table?.hasResults) {
     // After a removal its message stays readable here.
     return state.notice?.area === 'manage' ? (
@@ -56,6 +62,24 @@ export function ManageSection({ model }: { model: PaneModel }) {
                     : `${plural(statuses, 'claim has a status', 'claims have a status')} and ${plural(notes, 'claim has a note', 'claims have a note')} that you set.`}
                 </span>
               </Text>
+              {marks > 0 && (
+                <div className={s.section} data-testid="keep-copy">
+                  <Text block className={s.small}>
+                    Keep a copy of them first (claim, status, note, who saved it and when):
+                  </Text>
+                  <div className={s.row}>
+                    <Button size="small" onClick={() => keepCopy('sheet')} disabled={kept.busy} data-testid="export-marks-sheet">
+                      Copy to a new sheet
+                    </Button>
+                    <Button size="small" onClick={() => keepCopy('csv')} disabled={kept.busy} data-testid="export-marks-csv">
+                      Save as CSV file
+                    </Button>
+                  </div>
+                  <Text block className={s.small} aria-live="polite" data-testid="export-marks-result">
+                    {kept.text}
+                  </Text>
+                </div>
+              )}
               <Checkbox
                 label={`Keep the status and note columns as plain cells${marks > 0 ? ` (${plural(marks, 'mark')} stay)` : ''}; a later run picks them up again`}
                 checked={keepMarks}
@@ -64,7 +88,7 @@ export function ManageSection({ model }: { model: PaneModel }) {
               />
               {!keepMarks && marks > 0 && (
                 <Text block className={s.small} data-testid="remove-warning">
-                  The statuses and notes will be deleted. Copy the two columns to another sheet first if you need them.
+                  The statuses and notes will be deleted. Keep a copy first (above) if you may need them.
                 </Text>
               )}
               <Checkbox

@@ -1,4 +1,5 @@
 import { Button, Checkbox, Field, Input, Select, Slider, Text, Textarea } from '@fluentui/react-components';
+import type { ReactNode } from 'react';
 import { CAUTION_SHORT } from '../../report/style.js';
 import type { DecimalMode, Direction, MethodId, SmallGroupPolicy } from '../../scoring/types.js';
 import { methodDefaultCutoff } from '../engine.js';
@@ -25,7 +26,8 @@ const DIRECTION_WORDS: Record<Direction, string> = {
 const MAX_GROUP_ROWS = 12;
 
 /** (b) Method, direction and cutoff, with the live (unwritten) preview of what they flag. */
-export function MethodSection({ model }: { model: PaneModel }) {
+/** `fileChoices`: how an opened file was read (the preview page only), shown beside the decimal separator. */
+export function MethodSection({ model, fileChoices }: { model: PaneModel; fileChoices?: ReactNode }) {
   const s = usePaneStyles();
   const { state, actions, preview } = model;
   const settings = state.settings;
@@ -69,6 +71,7 @@ export function MethodSection({ model }: { model: PaneModel }) {
           <option value="point">Decimal point (1,234.50)</option>
         </Select>
       </Field>
+      {fileChoices}
       <div className={s.row}>
         <Field label="Smallest peer group" className={s.grow}>
           <NumberInput

@@ -1,17 +1,16 @@
 import * as ss from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import {
-  groupRows, KEY_SEPARATOR, keyPart, MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
+  describeColumn, groupRows, KEY_SEPARATOR, keyPart, MAD_NORMAL_CONSTANT, scoreTable, type ColumnScores, type GroupStats, type MethodId, type RawCell, type ScoreOptions,
 } from '../../src/scoring/index.js';
 import { expectNear, rng, rStats } from './helpers.js';
 
-// The descriptive fields of GroupStats that scoring does not need are computed on first read
-// (src/scoring/lazyStats.ts). These tests check them against outside implementations and check
-// that they behave as ordinary fields (JSON, spread, `in`, Object.keys).
+// The descriptive statistics of each group and of the whole column (`describeColumn`,
+// src/scoring/describe.ts), checked against outside implementations, whatever the method scored.
 
 const DESCRIPTIVE = ['median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3'] as const;
 const ALL_FIELDS = [
-  'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'median', 'mad', 'scaledMad', 'meanAbsDev', 'mean', 'sd', 'q1', 'q3', 'medcouple',
+  'key', 'label', 'keyParts', 'rows', 'n', 'excluded', 'medcouple', 'fenceFrom',
   'center', 'scale', 'lower', 'upper', 'flagged', 'fallbacks', 'population', 'maxAttainableZ', 'chanceRate', 'chanceRateAtMost', 'unreachable',
 ];
 const METHODS: MethodId[] = ['robust', 'classic', 'iqr', 'adjusted'];
@@ -38,7 +37,7 @@ function reference(x: number[]): Record<(typeof DESCRIPTIVE)[number], number | n
   };
 }
 
-describe('lazy descriptive fields equal an eager computation (simple-statistics 7.12)', () => {
+describe('describeColumn equals simple-statistics 7.12', () => {
   // Invented claims: 6 cost centres of different sizes (one below the minimum, so pooled), skewed amounts.
   const r = rng(2024);
   const keys: RawCell[] = [];
@@ -53,36 +52,37 @@ describe('lazy descriptive fields equal an eager computation (simple-statistics 
   for (const method of METHODS) {
     it(`${method}: every descriptive field of every group and of the whole column`, () => {
       const col = score(amounts, keys, method);
-      col.groups.forEach((g, gi) => {
+      const d = describeColumn(col);
+      col.groups.forEach((_g, gi) => {
         const x = amounts.filter((_, i) => keys[i] === `CC-${410 + gi}`) as number[];
         const want = reference(x);
         for (const f of DESCRIPTIVE) {
-          const got = g[f];
+          const got = d.groups[gi][f];
           const w = want[f];
           if (w === null) expect(got).toBeNull();
           else expectNear(got as number, w, 1e-12);
         }
       });
       const whole = reference(amounts as number[]);
-      for (const f of DESCRIPTIVE) expectNear(col.pooled[f] as number, whole[f] as number, 1e-12);
+      for (const f of DESCRIPTIVE) expectNear(d.whole[f] as number, whole[f] as number, 1e-12);
     });
   }
-  it('a lazy field read twice gives the same number, and reading it changes no score or flag', () => {
+  it('describing twice gives the same numbers, and describing changes no score or flag', () => {
     const col = score(amounts, keys, 'classic');
     const scores = Float64Array.from(col.scores);
     const flags = Uint8Array.from(col.flagged);
-    const first = col.groups.map((g) => g.median);
-    expect(col.groups.map((g) => g.median)).toEqual(first);
+    const first = describeColumn(col).groups.map((g) => g.median);
+    expect(describeColumn(col).groups.map((g) => g.median)).toEqual(first);
     expect(Array.from(col.scores)).toEqual(Array.from(scores));
     expect(Array.from(col.flagged)).toEqual(Array.from(flags));
   });
 });
 
-describe('lazy fields against R 4.2 (test/reference/r-stats.json)', () => {
+describe('describeColumn against R 4.2 (test/reference/r-stats.json)', () => {
   for (const method of METHODS) {
     it(`${method}: median, MAD, mean, sd, Q1, Q3 and mean abs. deviation of each R set`, () => {
       for (const d of Object.values(rStats())) {
-        const g = score(d.x, d.x.map(() => 'CC-410'), method, { minGroupSize: 1 }).groups[0];
+        const g = describeColumn(score(d.x, d.x.map(() => 'CC-410'), method, { minGroupSize: 1 })).groups[0];
         expectNear(g.median!, d.median);
         expectNear(g.scaledMad!, d.mad);
         expectNear(g.mad!, d.mad1);
@@ -94,19 +94,20 @@ describe('lazy fields against R 4.2 (test/reference/r-stats.json)', () => {
       }
     });
   }
-  it('log scale: descriptive fields stay in amounts (R), the centre is on the log scale', () => {
+  it('log scale: descriptive statistics stay in amounts (R), the centre is on the log scale', () => {
     const d = rStats().lognormal40;
-    const g = score(d.x, d.x.map(() => 'A'), 'robust', { logScale: true, minGroupSize: 1 }).groups[0];
+    const col = score(d.x, d.x.map(() => 'A'), 'robust', { logScale: true, minGroupSize: 1 });
+    const g = describeColumn(col).groups[0];
     expectNear(g.median!, d.median);
     expectNear(g.mean!, d.mean, 1e-14);
-    expectNear(g.center!, ss.median(d.x.map(Math.log)), 1e-12); // centre: median of ln amounts (simple-statistics)
+    expectNear(col.groups[0].center!, ss.median(d.x.map(Math.log)), 1e-12); // centre: median of ln amounts (simple-statistics)
   });
 });
 
-describe('lazy fields read AFTER scoring, rows of groups interleaved (simple-statistics 7.12)', () => {
-  // Classic accumulates mean and SD per group in row order and builds the group-ordered copy only
-  // when a lazy field is first read; robust and IQR select in place in a work buffer shared by the
-  // value columns. Invented claims, groups shuffled through the rows, messy cells mixed in.
+describe('descriptions after scoring, rows of groups interleaved (simple-statistics 7.12)', () => {
+  // Classic accumulates mean and SD per group in row order; robust and IQR select in place in a
+  // work buffer; describeColumn reads the column's results afterwards. Invented claims, groups
+  // shuffled through the rows, messy cells mixed in.
   const r = rng(77);
   const keys: RawCell[] = [];
   const amounts: RawCell[] = [];
@@ -137,17 +138,19 @@ describe('lazy fields read AFTER scoring, rows of groups interleaved (simple-sta
       { method, direction: 'both', logScale: false, minGroupSize: 5, smallGroups: 'pool', ...extra },
     ).columns;
   const checkAll = (col: ColumnScores, sets: number[][]): void => {
-    col.groups.forEach((g) => {
+    const d = describeColumn(col);
+    col.groups.forEach((g, gi) => {
       const x = sets[Number(g.key.slice(3)) - 510];
       expect(g.n).toBe(x.length);
+      expect(d.groups[gi].n).toBe(x.length);
       const want = reference(x);
-      for (const f of DESCRIPTIVE) expectNear(g[f] as number, want[f] as number, 1e-12);
+      for (const f of DESCRIPTIVE) expectNear(d.groups[gi][f] as number, want[f] as number, 1e-12);
     });
     const whole = reference(sets.flat());
-    for (const f of DESCRIPTIVE) expectNear(col.pooled[f] as number, whole[f] as number, 1e-12);
+    for (const f of DESCRIPTIVE) expectNear(d.whole[f] as number, whole[f] as number, 1e-12);
   };
   for (const method of METHODS) {
-    it(`${method}: scores first, then every lazy field of both columns equals simple-statistics`, () => {
+    it(`${method}: scores first, then every descriptive statistic of both columns equals simple-statistics`, () => {
       const [col, col2] = run(method);
       // Read what scoring produced first (scores, centres), as a host does.
       let touched = 0;
@@ -166,15 +169,16 @@ describe('lazy fields read AFTER scoring, rows of groups interleaved (simple-sta
       expectNear(g.scale!, ss.sampleStandardDeviation(x), 1e-12);
     });
   });
-  it('classic on log scale: centre and scale are mean and SD of ln amounts, lazy fields in amounts', () => {
+  it('classic on log scale: centre and scale are mean and SD of ln amounts, descriptions in amounts', () => {
     const [col] = run('classic', { logScale: true });
-    col.groups.forEach((g) => {
+    const d = describeColumn(col);
+    col.groups.forEach((g, gi) => {
       const x = usable[Number(g.key.slice(3)) - 510];
       const lx = x.map(Math.log);
       expectNear(g.center!, ss.mean(lx), 1e-12);
       expectNear(g.scale!, ss.sampleStandardDeviation(lx), 1e-12);
-      expectNear(g.median!, ss.median(x), 1e-12);
-      expectNear(g.q3!, ss.quantile(x, 0.75), 1e-12);
+      expectNear(d.groups[gi].median!, ss.median(x), 1e-12);
+      expectNear(d.groups[gi].q3!, ss.quantile(x, 0.75), 1e-12);
     });
   });
   it('classic, extreme magnitudes (|x| ~ 1e300): mean and SD exact to rounding (simple-statistics on x / 2^996, scaled back)', () => {
@@ -190,31 +194,21 @@ describe('lazy fields read AFTER scoring, rows of groups interleaved (simple-sta
       const b = [...base, ...base].filter((_, i) => i % 2 === parity);
       expectNear(c.groups[gi].center!, ss.mean(b) * unit, 1e-13);
       expectNear(c.groups[gi].scale!, ss.sampleStandardDeviation(b) * unit, 1e-12);
-      expectNear(c.groups[gi].median!, ss.median(b) * unit, 1e-13);
+      expectNear(describeColumn(c).groups[gi].median!, ss.median(b) * unit, 1e-13);
     }
   });
 });
 
-describe('lazy fields behave as ordinary own fields', () => {
+describe('GroupStats and descriptions are plain data', () => {
   const col = score([100, 102, 98, 101, 99, 103, 97, 100, 5000, 40, 41], ['A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'A', 'B', 'B'], 'robust');
   const check = (g: GroupStats): void => {
     const json = JSON.parse(JSON.stringify(g)) as Record<string, unknown>;
     expect(Object.keys(json)).toEqual(ALL_FIELDS); // declaration order, every field
-    for (const f of DESCRIPTIVE) {
-      expect(f in g).toBe(true);
-      expect(json[f]).toBe(g[f]);
-      const d = Object.getOwnPropertyDescriptor(g, f);
-      expect(d?.enumerable).toBe(true);
-      expect(typeof d?.get).toBe('function');
-    }
-    const spread = { ...g };
-    expect(Object.keys(spread)).toEqual(ALL_FIELDS);
-    expect(spread.mean).toBe(g.mean);
-    expect(Object.getOwnPropertyDescriptor(spread, 'mean')?.value).toBe(g.mean); // a copy holds plain values
+    for (const f of Object.keys(g)) expect(typeof Object.getOwnPropertyDescriptor(g, f)?.get).toBe('undefined');
   };
-  it('JSON.stringify, spread, `in` and Object.keys see every field of a group', () => {
+  it('JSON.stringify and Object.keys see every field of a group, and no field is computed on read', () => {
     check(col.groups[0]);
-    check(col.groups[1]); // n = 2 < minimum: pooled, every descriptive field lazy
+    check(col.groups[1]); // n = 2 < minimum: pooled
   });
   it('the whole column (`pooled`) too, and `pooled` itself is an own enumerable field of ColumnScores', () => {
     check(col.pooled);
@@ -224,13 +218,17 @@ describe('lazy fields behave as ordinary own fields', () => {
   });
   it("a small group's pooled rows are scored against the whole column's median and scaled MAD", () => {
     // R: median(c(100,102,98,101,99,103,97,100,5000,40,41)) = 100; mad(...) = 2.9652 (1.4826 x 2)
-    expect(col.pooled.median).toBe(100);
-    expectNear(col.pooled.scaledMad!, 2.9652, 1e-12);
+    const whole = describeColumn(col).whole;
+    expect(whole.median).toBe(100);
+    expectNear(whole.scaledMad!, 2.9652, 1e-12);
+    expect(col.pooled.center).toBe(100);
+    expectNear(col.pooled.scale!, 2.9652, 1e-12);
     expectNear(col.scores[9], (40 - 100) / 2.9652, 1e-12);
   });
-  it('empty and one-value groups give null, not NaN, for lazy fields', () => {
-    const c = score(['x', 5], ['E', 'S'], 'classic', { minGroupSize: 1 });
+  it('empty and one-value groups give null, not NaN', () => {
+    const c = describeColumn(score(['x', 5], ['E', 'S'], 'classic', { minGroupSize: 1 }));
     for (const f of DESCRIPTIVE) expect(c.groups[0][f]).toBeNull();
+    expect(c.groups[0].medcouple).toBeNull();
     expect(c.groups[1].sd).toBeNull();
     expect(c.groups[1].median).toBe(5);
   });
