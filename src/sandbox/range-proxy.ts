@@ -2,9 +2,10 @@
 import { MAX_COLS, MAX_ROWS, type Rect, rect, formatAddress, intersect, parseAddress, inGrid } from './address.js';
 import { CellError, type SheetModel, interpretInput, type Attr } from './model.js';
 import type { SandboxContext } from './context.js';
-import { err, late, assertWritable, ProxyBase, CollectionBase, type LoadArg, type RangeTarget } from './proxy-base.js';
+import { err, late, assertWritable, ProxyBase, CollectionBase, type LoadArg, type RangeTarget, type SandboxClientResult } from './proxy-base.js';
 import { cellInput, formatText } from './cells.js';
 import { RangeFormatProxy } from './format-proxy.js';
+import { readCellProperties, writeCellProperties } from './cell-properties.js';
 import { DataValidationProxy } from './validation-proxy.js';
 import type { WorksheetProxy } from './worksheet-proxy.js';
 import type { TableCollectionProxy } from './table-proxy.js';
@@ -337,6 +338,16 @@ export class RangeProxy extends ProxyBase<RangeTarget> {
       assertWritable(t.sheet, 'Range.clear');
       if (!['All', 'Formats', 'Contents'].includes(applyTo)) throw err('NotImplemented', `clear("${applyTo}") is not modelled by the sandbox.`, 'Range.clear');
       this.context.model.clear(t.sheet, t.rect, applyTo);
+    });
+  }
+  /** Per-cell formats (ExcelApi 1.9): font bold and colour, fill colour, wrap (see cell-properties.ts). */
+  getCellProperties(cellPropertiesLoadOptions: unknown): SandboxClientResult<unknown[][]> {
+    return this.callResult('getCellProperties', cellPropertiesLoadOptions, (t) => readCellProperties(this.context.model, t, cellPropertiesLoadOptions));
+  }
+  setCellProperties(cellPropertiesData: unknown): void {
+    this.call('setCellProperties', cellPropertiesData, (t) => {
+      assertWritable(t.sheet, 'Range.setCellProperties');
+      writeCellProperties(this.context.model, t, cellPropertiesData);
     });
   }
   /** Selects the range (and activates its sheet); selection-changed listeners fire after the run. */

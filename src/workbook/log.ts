@@ -4,6 +4,7 @@
  */
 import { LOG_HEADER, LOG_SHEET_NAME, LOG_TITLE, isLogMarker, type PlanCell } from '../report/index.js';
 import { TailmarkError } from './api.js';
+import { structureError } from './resolve.js';
 import { formatFor, toCellValue } from './notes.js';
 import { jsonBytes, type Syncer } from './sync.js';
 
@@ -51,8 +52,10 @@ export async function appendLog(sync: Syncer, lines: readonly (readonly PlanCell
   const wb = sync.context.workbook;
   const found = wb.worksheets.getItemOrNullObject(LOG_SHEET_NAME);
   found.load('name');
+  wb.protection.load('protected');
   await sync.sync();
   if (found.isNullObject) {
+    if (wb.protection.protected) throw structureError([LOG_SHEET_NAME]);
     await queueLogLines(sync, wb.worksheets.add(LOG_SHEET_NAME), true, 2, lines);
     return;
   }

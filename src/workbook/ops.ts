@@ -13,7 +13,7 @@ import { LOG_SHEET_NAME, isLogMarker, isNotesMarker } from './notes.js';
 import { claimColumns, claimFrom, exceptionColumns, exceptionOf, headerColumns } from './exceptions.js';
 import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
 import { readRows } from './read.js';
-import { columnOf, protectedError, resolveTable } from './resolve.js';
+import { columnOf, protectedError, readOnlyError, resolveTable } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, parseSettings, parseState, type LayerState } from './state.js';
 import { utf8Bytes, type Syncer } from './sync.js';
 
@@ -34,6 +34,8 @@ interface Located {
   /** Sheet column of each user header (header row from firstColumn to the end of our block). */
   readonly userColumns: ReadonlyMap<string, number>;
   readonly protected: boolean;
+  /** The workbook is open read-only. */
+  readonly readOnly: boolean;
 }
 
 /**
@@ -46,6 +48,7 @@ export async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}
   st.load('value');
   const se = wb.settings.getItemOrNullObject(SETTINGS_KEY);
   se.load('value');
+  wb.load('readOnly');
   await sync.sync();
   const state = parseState(st.isNullObject ? null : st.value);
   if (!state) {
@@ -97,7 +100,7 @@ export async function locate(sync: Syncer, opts: { allowMissing?: boolean } = {}
   } else if (header) {
     ({ columns, userColumns } = headerColumns(state, header.values[0] as unknown[]));
   }
-  return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected };
+  return { state, settings, sheet, table, firstDataRow, rows, columns, userColumns, protected: sheet.protection.protected, readOnly: wb.readOnly };
 }
 
 /** Headers of the columns that hold the reviewer's marks (kept as plain cells on request). */
@@ -117,6 +120,7 @@ export async function removeResults(sync: Syncer, includeNotes: boolean, keepMar
   log.load('name');
   let cfs: Excel.ConditionalFormatCollection | null = null;
   if (loc) {
+    if (loc.readOnly) throw readOnlyError();
     if (loc.protected) throw protectedError(loc.state.sheet);
     const start = Math.min(loc.state.firstColumn, ...loc.columns.values());
     const end = Math.max(loc.state.blockColumn + loc.state.columns.length, ...[...loc.columns.values()].map((c) => c + 1));
@@ -132,6 +136,11 @@ export async function removeResults(sync: Syncer, includeNotes: boolean, keepMar
   for (const cf of custom) cf.custom.rule.load('formula');
   await sync.sync();
   if (!loc && !(includeNotes && (notesA1 || logA1))) throw noResults();
+  if (!loc) {
+    wb.load('readOnly');
+    await sync.sync();
+    if (wb.readOnly) throw readOnlyError();
+  }
 
   if (loc) {
     for (const cf of custom) if (isTailmarkFormula(cf.custom.rule.formula)) cf.delete();
@@ -173,8 +182,16 @@ export async function removeResults(sync: Syncer, includeNotes: boolean, keepMar
     if (!se.isNullObject) se.delete();
   }
   if (includeNotes) {
-    if (notesA1 && isNotesMarker(notesA1.values[0][0])) notes.delete();
-    if (logA1 && isLogMarker(logA1.values[0][0])) log.delete();
+    // Our sheets are cleared, not deleted (deleting a sheet wipes the user's undo history); each
+    // keeps its marker in A1, so either host still knows it as ours and reuses it.
+    for (const [sheet, a1, ours] of [[notes, notesA1, isNotesMarker], [log, logA1, isLogMarker]] as const) {
+      if (!a1 || !ours(a1.values[0][0])) continue;
+      sheet.getRange().clear('All');
+      const title = sheet.getRange('A1');
+      title.numberFormat = [['@']];
+      title.values = [[a1.values[0][0] as string]];
+      title.format.font.bold = true;
+    }
   }
   await sync.sync();
 }
@@ -205,6 +222,7 @@ export async function markRows(sync: Syncer, rows: readonly number[], status: st
   }
   const loc = await locate(sync);
   if (!loc) throw noResults();
+  if (loc.readOnly) throw readOnlyError();
   if (loc.protected) throw protectedError(loc.state.sheet);
   const sc = loc.columns.get(STATUS_HEADER);
   const nc = loc.columns.get(NOTE_HEADER);
@@ -375,8 +393,11 @@ export async function loadReviewPrefs(sync: Syncer): Promise<ReviewPrefs> {
  * the next status change and the next run record them. Needs a workbook with a saved run.
  */
 export async function saveReviewPrefs(sync: Syncer, prefs: ReviewPrefs): Promise<void> {
+  const wb = sync.context.workbook;
+  wb.load('readOnly');
   const saved = await loadRunSettings(sync);
   if (!saved) throw noResults();
+  if (wb.readOnly) throw readOnlyError();
   const next = validateSettings({ ...saved, reviewer: prefs.reviewer === null ? null : prefs.reviewer.trim() || null, detailColumns: prefs.detailColumns });
   await sync.reserve(2048);
   sync.context.workbook.settings.add(SETTINGS_KEY, JSON.stringify(next));

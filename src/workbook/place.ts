@@ -31,6 +31,8 @@ export interface Placement {
   /** Old status / note columns (sheet column) to read marks from. */
   readonly oldStatus: number | null;
   readonly oldNote: number | null;
+  /** Sheet columns of our columns as they are before this run (left to right). */
+  readonly oldColumns: number[];
   /** Whether anything of ours existed before this run. */
   readonly rerun: boolean;
   /** Last sheet column (exclusive) covered by the highlight rules. */
@@ -74,6 +76,7 @@ export function place(res: Resolved, plan: Plan): Placement {
       pristine: [],
       oldStatus: res.ours.get(statusHeader) ?? null,
       oldNote: res.ours.get(noteHeader) ?? null,
+      oldColumns: [...res.ours.values()].sort((a, b) => a - b),
       rerun: oursNow.length > 0,
       startColumn: res.tableColumn,
       endColumn: res.tableColumn + finalNames.length,
@@ -138,6 +141,7 @@ export function place(res: Resolved, plan: Plan): Placement {
     pristine,
     oldStatus: oldIdx(statusHeader),
     oldNote: oldIdx(noteHeader),
+    oldColumns: old.map((_, i) => spanEnd + i),
     rerun: w > 0,
     startColumn: res.spanStart,
     endColumn: spanEnd + k,

@@ -17,7 +17,8 @@ export const SUB_ROWS = 8_192;
 /** Conservative first guess of response bytes per cell, per property loaded (value, type, format). */
 const GUESS_BYTES_PER_CELL_PER_PROP = 48;
 
-export type ReadProps = 'typed' | 'values';
+/** 'typed': values, value types and number formats; 'values'; 'cells': formulas and number formats (to write back). */
+export type ReadProps = 'typed' | 'values' | 'cells';
 
 /** A rectangle of columns to read over the same rows. */
 export interface ReadSpan {
@@ -28,6 +29,7 @@ export interface ReadSpan {
 }
 
 export interface ChunkData {
+  /** Values ('typed', 'values') or formulas ('cells', where a constant reads as its value). */
   readonly values: unknown[][];
   readonly valueTypes: string[][] | null;
   readonly numberFormat: string[][] | null;
@@ -54,7 +56,7 @@ export interface ReadOutcome {
 }
 
 function propCount(p: ReadProps): number {
-  return p === 'typed' ? 3 : 1;
+  return p === 'typed' ? 3 : p === 'cells' ? 2 : 1;
 }
 
 export function guessBytesPerRow(spans: readonly ReadSpan[]): number {
@@ -104,7 +106,7 @@ export async function readRows(
         const n = Math.min(SUB_ROWS, rows - sub);
         spans.forEach((s, si) => {
           const range = sheet.getRangeByIndexes(firstRow + done + sub, s.column, n, s.columnCount);
-          range.load(s.props === 'typed' ? ['values', 'valueTypes', 'numberFormat'] : ['values']);
+          range.load(s.props === 'typed' ? ['values', 'valueTypes', 'numberFormat'] : s.props === 'cells' ? ['formulas', 'numberFormat'] : ['values']);
           loaded.push({ span: si, offset: done + sub, range, props: s.props });
         });
       }
@@ -123,9 +125,9 @@ export async function readRows(
       collect?.();
       let bytes = 0;
       for (const l of loaded) {
-        const values = l.range.values as unknown[][];
+        const values = (l.props === 'cells' ? l.range.formulas : l.range.values) as unknown[][];
         const valueTypes = l.props === 'typed' ? (l.range.valueTypes as string[][]) : null;
-        const numberFormat = l.props === 'typed' ? (l.range.numberFormat as string[][]) : null;
+        const numberFormat = l.props !== 'values' ? l.range.numberFormat : null;
         bytes += jsonBytes(values) + (valueTypes ? jsonBytes(valueTypes) : 0) + (numberFormat ? jsonBytes(numberFormat) : 0);
         consume(l.span, l.offset, { values, valueTypes, numberFormat });
       }

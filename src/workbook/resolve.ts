@@ -42,6 +42,10 @@ export interface Resolved {
   readonly state: LayerState | null;
   readonly savedSettings: RunSettings | null;
   readonly protected: boolean;
+  /** The workbook is open read-only (ExcelApi 1.8). */
+  readonly readOnly: boolean;
+  /** The workbook's structure is protected: no sheet can be added (ExcelApi 1.7). */
+  readonly structureProtected: boolean;
   /** Exclusive end column of the used range (values and formats); 0 when the sheet is empty. */
   readonly usedEnd: number;
   readonly notesSheet: Excel.Worksheet;
@@ -59,12 +63,29 @@ export function protectedError(sheet: string): TailmarkError {
   );
 }
 
+export function readOnlyError(): TailmarkError {
+  return new TailmarkError(
+    'read-only',
+    'This workbook is open read-only, so Tailmark cannot write its results. Save a copy you can edit (File > Save a Copy) or ask for edit access, open it, then run again. Nothing was changed.',
+  );
+}
+
+/** Refusal when a sheet must be added but the workbook's structure is protected. */
+export function structureError(sheets: readonly string[]): TailmarkError {
+  return new TailmarkError(
+    'protected',
+    `The workbook's structure is protected, so Tailmark cannot add its sheet${sheets.length > 1 ? 's' : ''} ${sheets.map((s) => `"${s}"`).join(' and ')}. Turn the protection off (Review > Protect Workbook), then run again. Nothing was changed.`,
+  );
+}
+
 export async function resolveTable(sync: Syncer, table: DetectedTable): Promise<Resolved> {
   const wb = sync.context.workbook;
   const span = spanOf(table);
   const sheet = wb.worksheets.getItem(table.sheetName);
   sheet.load('name');
   sheet.protection.load('protected');
+  wb.load('readOnly');
+  wb.protection.load('protected');
   const stateSetting = wb.settings.getItemOrNullObject(STATE_KEY);
   stateSetting.load('value');
   const settingsSetting = wb.settings.getItemOrNullObject(SETTINGS_KEY);
@@ -163,6 +184,8 @@ export async function resolveTable(sync: Syncer, table: DetectedTable): Promise<
     state,
     savedSettings,
     protected: sheet.protection.protected,
+    readOnly: wb.readOnly,
+    structureProtected: wb.protection.protected,
     usedEnd,
     notesSheet,
     logSheet,

@@ -1,19 +1,22 @@
 /**
  * run(): read -> score -> plan -> check -> write, inside one Excel.run.
  *
- * Syncs (5,000 rows x 10 columns, fits one chunk): resolve 1, read 1, check 1, write 1.
+ * Syncs (5,000 rows x 10 columns, fits one chunk): resolve 1, read 1, check 1, backup of an
+ * existing notes/log sheet 1 (re-runs), write 1.
  * Every phase grows with cells only: reads and writes go in row chunks under the payload budget;
  * nothing loops over groups or flagged rows with a sync.
  *
  * Safety:
- *  - protected sheet -> 'protected' before any write (checked at resolve and again at check);
+ *  - read-only workbook -> 'read-only'; protected sheet, or protected workbook structure when the
+ *    notes or log sheet must be added -> 'protected'; all before any write (the sheet's protection
+ *    again at check);
  *  - the data is re-read (values) in the check sync and compared by fingerprint -> 'changed-during-run';
  *  - notes/log sheet names taken by the user's own sheets -> 'name-clash'; no room right of the
  *    data -> 'column-limit'; all before any write;
  *  - cancellation is honoured between phases up to the write phase; a cancelled or refused run
  *    leaves the workbook as it was;
- *  - if a write sync fails part-way (only possible when the writes need several syncs), the
- *    layer compensates: a first run's additions are removed, a re-run's review marks are put back.
+ *  - before the first write, what the write may change is read back (backup.ts); if a write sync
+ *    fails part-way, undo.ts restores it, so a failed run or re-run leaves the workbook as it was.
  *
  * Where the parts live: placement of our columns in place.ts, the writes (values, dropdown, rules,
  * notes, log) in write-results.ts, undoing a failed write in undo.ts; the run itself (resolve ->
@@ -44,12 +47,13 @@ import {
   isNotesMarker,
 } from './notes.js';
 import { readRows } from './read.js';
-import { columnOf, protectedError, resolveTable, spanHeaders, type Resolved } from './resolve.js';
+import { columnOf, protectedError, readOnlyError, resolveTable, spanHeaders, structureError, type Resolved } from './resolve.js';
 import { SETTINGS_KEY, STATE_KEY, type LayerState } from './state.js';
 import { place } from './place.js';
 import { MERGED_AREAS_SET, MergedKeys } from './merged.js';
-import { writeAll, writeNotes } from './write-results.js';
-import { compensate } from './undo.js';
+import { logLinesFor, writeAll, writeNotes } from './write-results.js';
+import { queueSmallBackup, readSheetBackups, type Backup, type SavedCells } from './backup.js';
+import { undoWrites } from './undo.js';
 import type { Syncer } from './sync.js';
 
 export interface RunDeps {
@@ -70,6 +74,14 @@ export interface RunOutcome {
   readonly marksKept: number;
   /** Sheet columns (0-based) of our result columns, in plan order. */
   readonly resultColumns: readonly string[];
+}
+
+/** Refusal when inserting whole columns for our block would widen another table on the sheet. */
+function obstacleError(count: number, at: number, tables: readonly string[]): TailmarkError {
+  return new TailmarkError(
+    'column-limit',
+    `Tailmark's ${count} result columns need ${count} whole sheet columns inserted at column ${columnLetters(at)} (the cells right of your data are in use), which would widen the table ${tables.map((t) => `"${t}"`).join(', ')} elsewhere on this sheet. Leave ${count} empty columns right of your data, or move that table, then run again. Nothing was changed.`,
+  );
 }
 
 function cancelled(): TailmarkError {
@@ -149,6 +161,17 @@ function summarise(result: ScoreResult, plan: Plan, syncs: number): RunSummary {
   };
 }
 
+/** Runs of adjacent columns: [3, 4, 5, 9] -> 3 (3 columns), 9 (1). */
+function contiguous(columns: readonly number[]): { column: number; count: number }[] {
+  const out: { column: number; count: number }[] = [];
+  for (const c of columns) {
+    const last = out[out.length - 1];
+    if (last && last.column + last.count === c) last.count++;
+    else out.push({ column: c, count: 1 });
+  }
+  return out;
+}
+
 function textOf(v: unknown): string {
   if (v === null || v === undefined) return '';
   return typeof v === 'string' ? v : String(v);
@@ -169,7 +192,12 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
 
   // ---- resolve (the chosen columns are checked before the read) ----
   const res = await resolveTable(sync, table);
+  // Checked before anything is written: read-only, sheet protection, and structure protection
+  // when a sheet must be added.
+  if (res.readOnly) throw readOnlyError();
   if (res.protected) throw protectedError(res.sheetName);
+  const toAdd = [res.notesSheet.isNullObject ? NOTES_SHEET_NAME : null, res.logSheet.isNullObject ? LOG_SHEET_NAME : null].filter((n): n is string => n !== null);
+  if (res.structureProtected && toAdd.length > 0) throw structureError(toAdd);
   if (res.rows < 1) throw new TailmarkError('no-numbers', `The table at ${table.address} has no data rows under its header. Add claims, then run again.`);
   for (const n of settings.valueColumns) columnOf(res, n, 'value');
   for (const n of settings.groupColumns) columnOf(res, n, 'group');
@@ -223,6 +251,10 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const markSpans: { column: number; into: string[] }[] = [];
   if (placement.oldStatus !== null) markSpans.push({ column: placement.oldStatus, into: oldStatus });
   if (placement.oldNote !== null) markSpans.push({ column: placement.oldNote, into: oldNote });
+  // Our existing result columns, read back to write them back if the write fails (backup.ts).
+  const savedCells: SavedCells[] = [];
+  const backupSpans = contiguous(placement.oldColumns);
+  const firstSpan = 1 + markSpans.length;
   const notesA1 = res.notesSheet.isNullObject ? null : res.notesSheet.getRange('A1');
   const logA1 = res.logSheet.isNullObject ? null : res.logSheet.getRange('A1');
   // The previous run's list of marks (src/report/marks.ts) sits in the first columns of the notes.
@@ -230,6 +262,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const logUsed = res.logSheet.isNullObject ? null : res.logSheet.getUsedRangeOrNullObject(true);
   const customRules: Excel.ConditionalFormat[] = res.cfs.items.filter((cf) => cf.type === 'Custom');
   const tableRange = res.table ? res.table.getRange() : null;
+  let notesUsed: Excel.Range | null = null;
+  // Whole sheet columns inserted for our block must not widen another table on the sheet: a
+  // table found both in the column left of the insertion point and in the one right of it spans it.
+  const across: { left?: Excel.TableScopedCollection; right?: Excel.TableScopedCollection } = {};
+  let small: ReturnType<typeof queueSmallBackup> | null = null;
   // Widths of the empty columns we will write into, kept so removal (or a failed write) puts them back.
   const emptyWidths = placement.pristine.map((i) => res.sheet.getRangeByIndexes(0, placement.columns[i], 1, 1));
   await readRows(
@@ -240,17 +277,28 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
     [
       { column: res.spanStart, columnCount: res.spanCols, props: 'values' },
       ...markSpans.map((m) => ({ column: m.column, columnCount: 1, props: 'values' as const })),
+      ...backupSpans.map((b) => ({ column: b.column, columnCount: b.count, props: 'cells' as const })),
     ],
     (si, offset, d) => {
       if (si === 0) fp.addRows(d.values);
-      else {
+      else if (si >= firstSpan) {
+        savedCells.push({ row: res.headerRow + 1 + offset, column: backupSpans[si - firstSpan].column, formulas: d.values, numberFormat: d.numberFormat!, props: null });
+      } else {
         const into = markSpans[si - 1].into;
         for (let r = 0; r < d.values.length; r++) into[offset + r] = textOf(d.values[r][0]);
       }
     },
     {
-      bytesPerRowHint: Math.max(16, data.bytesPerRow / 2.5) + 24 * markSpans.length,
+      bytesPerRowHint: Math.max(16, data.bytesPerRow / 2.5) + 24 * markSpans.length + 40 * placement.oldColumns.length,
       withFirstSync: () => {
+        notesUsed = res.notesSheet.isNullObject ? null : res.notesSheet.getUsedRangeOrNullObject(false);
+        notesUsed?.load(['rowIndex', 'rowCount', 'columnIndex', 'columnCount']);
+        small = queueSmallBackup(sync, res, placement, customRules);
+        if (placement.insertCount > 0 && placement.insertAt > 0) {
+          const at = (c: number) => res.sheet.getRangeByIndexes(0, c, 1, 1).getEntireColumn().getTables(false);
+          across.left = at(placement.insertAt - 1).load('items/name');
+          across.right = at(placement.insertAt).load('items/name');
+        }
         res.sheet.protection.load('protected');
         notesA1?.load('values');
         notesMarks?.load('values');
@@ -281,6 +329,11 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
       `A sheet named "${LOG_SHEET_NAME}" already exists and was not made by Tailmark. Rename that sheet, then run again. Nothing was changed.`,
     );
   }
+  if (across.left && across.right) {
+    const right = new Set(across.right.items.map((t) => t.name));
+    const widened = across.left.items.map((t) => t.name).filter((n) => right.has(n));
+    if (widened.length > 0) throw obstacleError(placement.insertCount, placement.insertAt, widened);
+  }
   placement.pristine.forEach((i, j) => (placement.block[i] = { ...placement.block[i], width: emptyWidths[j].format.columnWidth }));
   const ourRules = customRules.filter((cf) => isTailmarkFormula(cf.custom.rule.formula));
   if (signal?.aborted) throw cancelled();
@@ -296,10 +349,26 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   const marksKept = merged.kept + merged.restored;
   const values: (readonly PlanCell[])[] = plan.columns.map((c) => c.values);
 
-  // ---- write ----
+  // ---- backup: what the write may change, read before it (backup.ts) ----
   const createdNotes = res.notesSheet.isNullObject;
   const createdLog = res.logSheet.isNullObject;
   const firstDataRow = res.headerRow + 1;
+  const logNext = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
+  const logLines = logLinesFor(res, plan, settings, deps.record);
+  const lastRows = !res.table && res.state && res.state.sheet === res.sheetName ? res.state.rowCount : 0;
+  if (lastRows > res.rows && backupSpans.length > 0) {
+    // The data shrank: our cells below it are cleared by the write, so read them too.
+    await readRows(sync, res.sheet, firstDataRow + res.rows, lastRows - res.rows, backupSpans.map((b) => ({ column: b.column, columnCount: b.count, props: 'cells' as const })), (si, offset, d) => {
+      savedCells.push({ row: firstDataRow + res.rows + offset, column: backupSpans[si].column, formulas: d.values, numberFormat: d.numberFormat!, props: null });
+    });
+  }
+  const backup: Backup = {
+    cells: savedCells,
+    ...small!(),
+    ...(await readSheetBackups(sync, res, createdNotes ? null : notesUsed, createdLog ? null : { next: logNext, lines: logLines.length })),
+  };
+
+  // ---- write ----
   const newState: LayerState = {
     v: 1,
     sheet: res.sheetName,
@@ -313,13 +382,13 @@ export async function runScoring(sync: Syncer, table: DetectedTable, chosen: Run
   };
   try {
     await writeAll(sync, res, plan, placement, values, ourRules, firstDataRow, deps);
-    await writeNotes(sync, res, plan, createdNotes, createdLog, logUsed, settings, deps.record);
+    await writeNotes(sync, res, plan, createdNotes, createdLog, logNext, logLines);
     await sync.reserve(2048);
     ctx.workbook.settings.add(SETTINGS_KEY, JSON.stringify(settings));
     ctx.workbook.settings.add(STATE_KEY, JSON.stringify(newState));
     await sync.flush();
   } catch (e) {
-    await compensate(sync, res, placement, plan, createdNotes, createdLog, oldStatus, oldNote, firstDataRow, e);
+    await undoWrites(sync, { res, placement, plan, createdNotes, createdLog, backup }, e);
     throw e;
   }
   deps.onProgress?.({ phase: 'notes', fraction: 1 });

@@ -11,7 +11,7 @@ import { runLogLines } from '../report/index.js';
 import type { RunRecord, RunSettings } from './api.js';
 import type { Placement } from './place.js';
 import type { Resolved } from './resolve.js';
-import { jsonBytes, type Syncer } from './sync.js';
+import { jsonBytes, utf8Bytes, type Syncer } from './sync.js';
 
 /** Points per character of column width (Excel: 8.43 characters = 48 points). */
 const POINTS_PER_CHAR = 5.7;
@@ -135,10 +135,12 @@ export async function writeAll(
   for (const cf of ourRules) cf.delete();
   const flagColumns = plan.columns.flatMap((c, i) => (c.kind === 'flag' ? [columnLetters(placement.columns[i])] : []));
   const cfRange = sheet.getRangeByIndexes(firstDataRow, placement.startColumn, rows, placement.endColumn - placement.startColumn);
-  const rules = [...plan.rules].sort((a, b) => a.priority - b.priority);
+  // Excel gives each new rule priority 0 (evaluated first): add the lowest-priority rule first so
+  // the plan's first rule ends on top and the rules keep the plan's order.
+  const rules = [...plan.rules].sort((a, b) => b.priority - a.priority);
   for (const rule of rules) {
     const formula = ruleFormula(rule, { firstDataRow: firstDataRow + 1, flagColumns, statusColumn: columnLetters(statusCol) });
-    await sync.reserve(formula.length + 200);
+    await sync.reserve(utf8Bytes(formula) + 200);
     const cf = cfRange.conditionalFormats.add('Custom');
     cf.custom.rule.formula = formula;
     cf.custom.format.fill.color = `#${rule.swatch.fill}`;
@@ -173,15 +175,20 @@ async function writeGrid(sync: Syncer, sheet: Excel.Worksheet, row0: number, gri
   }
 }
 
+/** The log lines of this run (src/report/log.ts): the run's line, and a cutoff-change line when the cutoff differs from the last run's. */
+export function logLinesFor(res: Resolved, plan: Plan, settings: RunSettings, record: RunRecord | undefined): PlanCell[][] {
+  const previous = res.savedSettings && res.savedSettings.method === settings.method ? res.savedSettings.cutoff : null;
+  return runLogLines(plan.log, settings.reviewer, previous, { reason: record?.cutoffReason ?? '', budget: record?.budget ?? null });
+}
+
 export async function writeNotes(
   sync: Syncer,
   res: Resolved,
   plan: Plan,
   createdNotes: boolean,
   createdLog: boolean,
-  logUsed: Excel.Range | null,
-  settings: RunSettings,
-  record: RunRecord | undefined,
+  logNext: number,
+  logLines: readonly (readonly PlanCell[])[],
 ): Promise<void> {
   const wb = sync.context.workbook;
   await sync.reserve(1024);
@@ -200,11 +207,7 @@ export async function writeNotes(
   for (const r of grid.headerRows) notes.getRangeByIndexes(r, 0, 1, grid.width).format.font.bold = true;
   if (createdNotes) notes.getRange('A:A').format.columnWidth = 200;
 
-  // Log: the run's line, and a cutoff-change line when the cutoff differs from the last run's
-  // (src/report/log.ts); lines are only appended.
+  // Log: lines are only appended.
   const log = createdLog ? wb.worksheets.add(LOG_SHEET_NAME) : res.logSheet;
-  const next = createdLog || !logUsed || logUsed.isNullObject ? 2 : Math.max(2, logUsed.rowIndex + logUsed.rowCount);
-  const previous = res.savedSettings && res.savedSettings.method === settings.method ? res.savedSettings.cutoff : null;
-  const lines = runLogLines(plan.log, settings.reviewer, previous, { reason: record?.cutoffReason ?? '', budget: record?.budget ?? null });
-  await queueLogLines(sync, log, createdLog, next, lines);
+  await queueLogLines(sync, log, createdLog, logNext, logLines);
 }

@@ -181,3 +181,15 @@ describe('pane actions', () => {
     expect(log.slice(before.length).map((r) => [r[col('Event')], r[col('Who')]])).toEqual([['Run', 'JD']]);
   });
 });
+
+describe('highlight rules', () => {
+  it('are added in priority order: escalated, asked, cleared, open (a new rule in Excel goes on top)', async () => {
+    const sb = claimsSandbox(200);
+    const layer = layerFor(sb);
+    await layer.run(await layer.detect(), SETTINGS);
+    const ours = sb.snapshot().sheets.find((s) => s.name === 'Claims')!.conditionalFormats.filter((c) => c.formula.includes('tailmark:'));
+    // The order the review states are meant to win in (src/report/rules.ts documents it; written out here).
+    expect(ours.map((c) => /tailmark:([a-z]+)/.exec(c.formula)![1])).toEqual(['escalated', 'asked', 'cleared', 'open']);
+    expect(ours.map((c) => c.priority)).toEqual([0, 1, 2, 3]);
+  });
+});

@@ -103,6 +103,22 @@ describe('tailmark sandbox', () => {
     expect((await capture([input, '--fail-sync', '0'])).code).toBe(2);
   });
 
+  it('--rerun --fail-sync <k>: a re-run failing at its last syncs leaves the workbook as it was (all-or-nothing re-runs)', async () => {
+    type Report = { faultInjected: boolean; syncsOfLastRun: number | null; workbookUnchangedByFailedRun: boolean; changedByFailedRun?: string[] };
+    const args = [input, '--group', 'Cost centre', '--id', 'Claim ID', '--rerun', '--json'];
+    const whole = JSON.parse((await capture([...args, '--fail-sync', '999'])).out) as Report;
+    expect(whole.faultInjected).toBe(false);
+    const syncs = whole.syncsOfLastRun!;
+    expect(syncs).toBeGreaterThan(3);
+    // The last syncs write the values, rules, notes, log and settings; the first ones only read.
+    for (const k of [syncs, syncs - 1, Math.ceil(syncs / 2)]) {
+      const j = JSON.parse((await capture([...args, '--fail-sync', String(k)])).out) as Report;
+      expect(j.faultInjected, `sync ${k}`).toBe(true);
+      expect(j.changedByFailedRun ?? [], `sync ${k}`).toEqual([]);
+      expect(j.workbookUnchangedByFailedRun, `sync ${k}`).toBe(true);
+    }
+  });
+
   it('exits 2 with one line on bad input', async () => {
     const missing = await capture([path.join(dir, 'nope.xlsx')]);
     expect(missing.code).toBe(2);

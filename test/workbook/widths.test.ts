@@ -44,7 +44,8 @@ describe('result column widths', () => {
     expect(sb.columnWidth('Claims', 6)!).toBeGreaterThanOrEqual(needPoints(H.flag));
     await layer.remove(true);
     expect(sb.columnWidth('Claims', 6)).toBe(30);
-    expect(diffSnapshots(before, sb.snapshot())).toEqual([]);
+    // Remove clears our notes and log sheets instead of deleting them (guards.test.ts).
+    expect(diffSnapshots(before, sb.snapshot()).filter((d) => !/^sheet Tailmark (notes|log) added$/.test(d))).toEqual([]);
   });
 
   it('a run that fails after the widths were set puts the earlier widths back', async () => {

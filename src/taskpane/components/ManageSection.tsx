@@ -92,7 +92,7 @@ export function ManageSection({ model }: { model: PaneModel }) {
                 </Text>
               )}
               <Checkbox
-                label="Also delete the notes and log sheets (the record of cutoffs and runs is lost)"
+                label="Also clear the notes and log sheets (the record of cutoffs and runs is lost; the empty sheets stay)"
                 checked={withNotes}
                 onChange={(_, d) => setWithNotes(d.checked === true)}
                 data-testid="remove-notes"
