@@ -127,8 +127,8 @@ function tidy(x: number | null): number | null {
   return Number(x.toPrecision(4));
 }
 
-function finiteOrNull(x: number): number | null {
-  return Number.isFinite(x) ? x : null;
+function round2(x: number): number | null {
+  return Number.isFinite(x) ? Math.round(x * 100) / 100 : null;
 }
 
 
@@ -207,10 +207,10 @@ export function buildPlan(result: ScoreResult, ctx: PlanContext): Plan {
     const lazy = ctx.reasonText === 'on-demand';
     const reason: PlanCell[] = lazy ? [] : new Array<PlanCell>(rows);
     for (let r = 0; r < rows; r++) {
-      // Full precision, shown to 2 decimals by the column's number format: the value in the cell
-      // is the one the flag was compared with (a 3.504 flagged at cutoff 3.5 reads 3.50 but holds
-      // 3.504, and its "why" text says 3.504).
-      score[r] = finiteOrNull(col.scores[r]);
+      // Rounded to 2 decimals in the cell; the "why" text shows enough decimals to tell the side of the
+      // cutoff (3.504, not 3.5). Writing full precision made a re-run's requests larger and exposed an
+      // undo gap (issue 10 note), so it waits for that fix.
+      score[r] = round2(col.scores[r]);
       flag[r] = flagWord(col, r);
       if (!lazy) reason[r] = explainRowShort(result, col, r);
       if (col.flagged[r]) anyFlag[r] = 1;
