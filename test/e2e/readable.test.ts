@@ -9,12 +9,11 @@ import ExcelJS from 'exceljs';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { NOTE_HEADER, STATUS_HEADER, resultHeaders } from '../../src/report/style.js';
-import { buildWeb, openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
+import { openPage, ROOT, SCREENSHOT_DIR, startSession, type Session } from './harness.js';
 
 let session: Session;
 
 beforeAll(async () => {
-  buildWeb();
   session = await startSession();
 }, 300_000);
 
